@@ -1,0 +1,609 @@
+/**
+ * Steady flow in a network of nonlinear hydraulic elements (sprue, runners, gates,
+ * cavities at one instant of filling): node pressures and element flows such that
+ * every element obeys its law ΔP = h(Q) and mass balances at every free node.
+ *
+ * Method: the global gradient algorithm of Todini & Pilati (1988), "A gradient
+ * algorithm for the analysis of pipe networks", in *Computer Applications in Water
+ * Supply* vol. 1 (Research Studies Press), pp. 1–20; also Rossman, *EPANET 2 Users
+ * Manual*, EPA/600/R-00/057 (2000), appendix D. The Newton system on (pressures, flows)
+ * is reduced to the symmetric positive definite nodal system A21·D⁻¹·A12 on the free
+ * pressures, solved by the sparse LDLᵀ of `sparse_cholesky.ts`, whose symbolic
+ * analysis is reused for every solve of one topology.
+ *
+ * @module
+ */
+
+import { analyse, type SymbolicCholesky } from "./sparse_cholesky.ts";
+
+/** An element's law evaluated at one flow. SI. */
+export interface ElementLaw {
+  /** Pressure drop from the `from` node to the `to` node, Pa. */
+  pressureDrop: number;
+  /** dΔP/dQ, Pa·s/m³ (> 0). */
+  dPressureDropDFlow: number;
+}
+
+/** One element of the network. */
+export interface HydraulicElement {
+  /** Upstream node index (positive flow leaves it). */
+  from: number;
+  /** Downstream node index. */
+  to: number;
+  /** ΔP = h(Q) and h'(Q) for flow Q in m³/s (from → to); h odd and strictly increasing. */
+  law(flow: number): ElementLaw;
+}
+
+/** A steady network problem. SI. */
+export interface HydraulicProblem {
+  /** Number of nodes; node indices are 0 … nodeCount − 1. */
+  nodeCount: number;
+  /** The elements; a pair of nodes may be joined by several elements. */
+  elements: readonly HydraulicElement[];
+  /** Nodes with a prescribed pressure, Pa (at least one per connected component). */
+  fixedPressure: ReadonlyMap<number, number>;
+  /** External inflow into free nodes, m³/s (absent: 0; negative: a withdrawal). */
+  inflow: ReadonlyMap<number, number>;
+}
+
+/** Options of {@link solveHydraulics}. */
+export interface HydraulicOptions {
+  /** Warm start: one flow per element, m³/s (default: a linear-theory start). */
+  initialFlows?: Float64Array;
+  /**
+   * Stop when the first-order flow correction Σ|r_e/h'_e| / Σ|Q_e| (r_e: the energy
+   * residual of element e) is at most this; dimensionless, default 1e-10.
+   */
+  flowTolerance?: number;
+  /**
+   * …and the worst nodal mass residual, relative to the total inflow (or, with no
+   * inflow, the largest flow), is at most this; dimensionless, default 1e-10.
+   */
+  massTolerance?: number;
+  /** Most linear solves (Newton iterations), default 100. */
+  maxIterations?: number;
+}
+
+/** How well a solve balanced. */
+export interface HydraulicDiagnostics {
+  /** Newton iterations done (one sparse solve each). */
+  iterations: number;
+  /** Worst nodal mass residual relative to the total inflow (or the largest flow); dimensionless. */
+  worstMassResidual: number;
+  /** Node where it occurs (−1 when no free node). */
+  worstNode: number;
+  /** Σ|ΔQ|/Σ|Q| of the last accepted step; dimensionless. */
+  relativeFlowChange: number;
+}
+
+/** Outcome of {@link solveHydraulics}. */
+export type HydraulicSolution =
+  | {
+    ok: true;
+    /** Pressure at every node, Pa (fixed nodes: their prescribed value). */
+    pressures: Float64Array;
+    /** Flow in every element from → to, m³/s. */
+    flows: Float64Array;
+    diagnostics: HydraulicDiagnostics;
+  }
+  | {
+    ok: false;
+    code: "did_not_converge" | "singular" | "invalid_topology";
+    message: string;
+    diagnostics?: HydraulicDiagnostics;
+  };
+
+/** Below this fraction of the flow scale, h' is taken at the floor flow (h'(0) is infinite for n < 1). */
+const FLOW_FLOOR_RATIO = 1e-30;
+/** Armijo sufficient-decrease constant of the backtracking line search. */
+const ARMIJO = 1e-4;
+/** Elements carrying less than this fraction of the flow scale always take the secant step. */
+const STAGNANT_RATIO = 1e-12;
+/** A tangent step that leaves less than this fraction of an element's flow is redone with the secant. */
+const SHRINK_LIMIT = 0.5;
+/** Relative size of rounding noise in flows, below which the merit cannot be resolved. */
+const ROUNDOFF = 1e-13;
+/** Smallest element conductance used, as a fraction of the largest. */
+const CONDUCTANCE_RANGE = 1e-12;
+/** Smallest step fraction tried by the line search. */
+const MIN_STEP = 1 / 1024;
+/** Flow scale for the linear-theory start when there is no inflow, m³/s (1 cm³/s). */
+const DEFAULT_FLOW_SCALE = 1e-6;
+
+type Failure = Extract<HydraulicSolution, { ok: false }>;
+
+/** Topology reduced to arrays, with its symbolic factorisation. */
+interface Topology {
+  nodeCount: number;
+  from: Int32Array;
+  to: Int32Array;
+  fixed: Uint8Array;
+  /** node → index among the free nodes, or −1 when fixed. */
+  freeIndex: Int32Array;
+  freeNodes: Int32Array;
+  /** element → its off-diagonal entry in the pattern, or −1 unless both ends are free. */
+  slot: Int32Array;
+  symbolic: SymbolicCholesky;
+}
+
+const topologyCache: Topology[] = [];
+const TOPOLOGY_CACHE_SIZE = 4;
+
+function listNodes(nodes: number[]): string {
+  const shown = nodes.slice(0, 10).join(", ");
+  return nodes.length > 10 ? `${shown}, … (${nodes.length} in all)` : shown;
+}
+
+function invalid(message: string): Failure {
+  return { ok: false, code: "invalid_topology", message };
+}
+
+/** Check indices and connectivity; return the arrays or an `invalid_topology` failure. */
+function checkTopology(
+  problem: HydraulicProblem,
+): { ok: true; from: Int32Array; to: Int32Array; fixed: Uint8Array } | Failure {
+  const n = problem.nodeCount;
+  if (!Number.isInteger(n) || n < 0) return invalid(`nodeCount must be an integer ≥ 0, got ${n}`);
+  const inRange = (i: number) => Number.isInteger(i) && i >= 0 && i < n;
+  const m = problem.elements.length;
+  const from = new Int32Array(m), to = new Int32Array(m);
+  for (let e = 0; e < m; e++) {
+    const el = problem.elements[e];
+    if (!inRange(el.from) || !inRange(el.to)) {
+      return invalid(
+        `element ${e} joins nodes ${el.from} → ${el.to}; node indices must be integers in 0…${
+          n - 1
+        }`,
+      );
+    }
+    if (el.from === el.to) return invalid(`element ${e} starts and ends at node ${el.from}`);
+    from[e] = el.from;
+    to[e] = el.to;
+  }
+  const fixed = new Uint8Array(n);
+  for (const [node, pressure] of problem.fixedPressure) {
+    if (!inRange(node)) {
+      return invalid(`fixed pressure at node ${node}, which is not in 0…${n - 1}`);
+    }
+    if (!Number.isFinite(pressure)) {
+      return invalid(`fixed pressure at node ${node} must be finite, got ${pressure}`);
+    }
+    fixed[node] = 1;
+  }
+  for (const [node, q] of problem.inflow) {
+    if (!inRange(node)) return invalid(`inflow at node ${node}, which is not in 0…${n - 1}`);
+    if (!Number.isFinite(q)) return invalid(`inflow at node ${node} must be finite, got ${q}`);
+    if (fixed[node] && q !== 0) {
+      return invalid(`inflow ${q} m³/s at node ${node}, which has a fixed pressure`);
+    }
+  }
+  // Union–find over the elements; every component needs a fixed-pressure node.
+  const root = Int32Array.from({ length: n }, (_, i) => i);
+  const find = (i: number): number => {
+    while (root[i] !== i) {
+      root[i] = root[root[i]];
+      i = root[i];
+    }
+    return i;
+  };
+  for (let e = 0; e < m; e++) {
+    const a = find(from[e]), b = find(to[e]);
+    if (a !== b) root[a] = b;
+  }
+  const anchored = new Uint8Array(n);
+  for (let i = 0; i < n; i++) if (fixed[i]) anchored[find(i)] = 1;
+  const floating: number[] = [];
+  for (let i = 0; i < n; i++) if (!anchored[find(i)]) floating.push(i);
+  if (floating.length > 0) {
+    return invalid(
+      `nodes ${listNodes(floating)} are not connected to any node with a fixed pressure`,
+    );
+  }
+  return { ok: true, from, to, fixed };
+}
+
+function sameArray(a: ArrayLike<number>, b: ArrayLike<number>): boolean {
+  if (a.length !== b.length) return false;
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
+  return true;
+}
+
+/** The cached topology with these arrays, or a new analysis (kept among the last few). */
+function topologyOf(
+  nodeCount: number,
+  from: Int32Array,
+  to: Int32Array,
+  fixed: Uint8Array,
+): Topology {
+  for (const t of topologyCache) {
+    if (
+      t.nodeCount === nodeCount && sameArray(t.from, from) && sameArray(t.to, to) &&
+      sameArray(t.fixed, fixed)
+    ) return t;
+  }
+  const freeIndex = new Int32Array(nodeCount).fill(-1);
+  const free: number[] = [];
+  for (let i = 0; i < nodeCount; i++) {
+    if (!fixed[i]) {
+      freeIndex[i] = free.length;
+      free.push(i);
+    }
+  }
+  const slot = new Int32Array(from.length).fill(-1);
+  const rows: number[] = [], cols: number[] = [];
+  for (let e = 0; e < from.length; e++) {
+    const a = freeIndex[from[e]], b = freeIndex[to[e]];
+    if (a >= 0 && b >= 0) {
+      slot[e] = rows.length;
+      rows.push(a);
+      cols.push(b);
+    }
+  }
+  const topology: Topology = {
+    nodeCount,
+    from,
+    to,
+    fixed,
+    freeIndex,
+    freeNodes: Int32Array.from(free),
+    slot,
+    symbolic: analyse({ size: free.length, rows, cols }),
+  };
+  topologyCache.unshift(topology);
+  if (topologyCache.length > TOPOLOGY_CACHE_SIZE) topologyCache.pop();
+  return topology;
+}
+
+function checkOptions(options: HydraulicOptions, elementCount: number) {
+  const flowTolerance = options.flowTolerance ?? 1e-10;
+  const massTolerance = options.massTolerance ?? 1e-10;
+  const maxIterations = options.maxIterations ?? 100;
+  if (!(flowTolerance > 0)) {
+    throw new RangeError(
+      `Cannot solve hydraulics: flowTolerance must be > 0, got ${flowTolerance}`,
+    );
+  }
+  if (!(massTolerance > 0)) {
+    throw new RangeError(
+      `Cannot solve hydraulics: massTolerance must be > 0, got ${massTolerance}`,
+    );
+  }
+  if (!Number.isInteger(maxIterations) || maxIterations < 1) {
+    throw new RangeError(
+      `Cannot solve hydraulics: maxIterations must be an integer ≥ 1, got ${maxIterations}`,
+    );
+  }
+  const initial = options.initialFlows;
+  if (initial !== undefined) {
+    if (initial.length !== elementCount) {
+      throw new RangeError(
+        `Cannot solve hydraulics: initialFlows has ${initial.length} values for ${elementCount} elements`,
+      );
+    }
+    if (!initial.every(Number.isFinite)) {
+      throw new RangeError("Cannot solve hydraulics: initialFlows must all be finite");
+    }
+  }
+  return { flowTolerance, massTolerance, maxIterations, initial };
+}
+
+/**
+ * Solve a steady hydraulic network: pressures at the free nodes and flows in every
+ * element, given each element's law ΔP = h(Q), fixed pressures and nodal inflows. SI
+ * (Pa, m³/s). Global gradient algorithm (Todini & Pilati 1988; Rossman 2000, EPANET 2
+ * manual, appendix D) with a backtracking line search. Topology problems, a singular
+ * system and non-convergence come back as `{ ok: false, code }`, never as a throw;
+ * malformed options throw `RangeError`.
+ *
+ * @example
+ * ```ts
+ * // Two linear resistances in series, 1 m³/s into node 0, node 2 at 0 Pa.
+ * const law = (r: number) => (q: number) => ({ pressureDrop: r * q, dPressureDropDFlow: r });
+ * const s = solveHydraulics({
+ *   nodeCount: 3,
+ *   elements: [{ from: 0, to: 1, law: law(2) }, { from: 1, to: 2, law: law(3) }],
+ *   fixedPressure: new Map([[2, 0]]),
+ *   inflow: new Map([[0, 1]]),
+ * });
+ * // s.ok && s.pressures → [5, 3, 0]
+ * ```
+ */
+export function solveHydraulics(
+  problem: HydraulicProblem,
+  options: HydraulicOptions = {},
+): HydraulicSolution {
+  const checked = checkTopology(problem);
+  if (!checked.ok) return checked;
+  const { flowTolerance, massTolerance, maxIterations, initial } = checkOptions(
+    options,
+    problem.elements.length,
+  );
+  const n = problem.nodeCount;
+  const elements = problem.elements;
+  const m = elements.length;
+  const topology = topologyOf(n, checked.from, checked.to, checked.fixed);
+  const { from, to, freeIndex, freeNodes, slot, symbolic } = topology;
+  const freeCount = freeNodes.length;
+
+  const inflow = new Float64Array(n);
+  for (const [node, q] of problem.inflow) inflow[node] += q;
+  let totalInflow = 0;
+  for (let i = 0; i < n; i++) if (inflow[i] > 0) totalInflow += inflow[i];
+  const flowScale = totalInflow > 0 ? totalInflow : DEFAULT_FLOW_SCALE;
+  const flowFloor = FLOW_FLOOR_RATIO * flowScale;
+  const stagnantFlow = STAGNANT_RATIO * flowScale;
+
+  const pressure = new Float64Array(n);
+  for (const [node, p] of problem.fixedPressure) pressure[node] = p;
+  const flow = new Float64Array(m);
+  const drop = new Float64Array(m), slope = new Float64Array(m);
+  const trialPressure = pressure.slice();
+  const trialFlow = new Float64Array(m);
+  const trialDrop = new Float64Array(m), trialSlope = new Float64Array(m);
+  const conductance = new Float64Array(m), offset = new Float64Array(m);
+  const newFlow = new Float64Array(m);
+  const diagonal = new Float64Array(freeCount);
+  const offDiagonal = new Float64Array(countSlots(slot));
+  const rhs = new Float64Array(freeCount);
+  const solved = new Float64Array(freeCount);
+  const newPressure = pressure.slice();
+  const balance = new Float64Array(n);
+
+  let lawFailure: Failure | undefined;
+  const floorSecant = (e: number) => elements[e].law(flowFloor).pressureDrop / flowFloor;
+  /** h and h' at `q`; h' at the floor flow when |Q| is below it or h' is not finite there. */
+  const evaluate = (q: Float64Array, h: Float64Array, dh: Float64Array): boolean => {
+    for (let e = 0; e < m; e++) {
+      const law = elements[e].law(q[e]);
+      let d = law.dPressureDropDFlow;
+      if (Math.abs(q[e]) < flowFloor || !Number.isFinite(d)) {
+        d = elements[e].law(q[e] < 0 ? -flowFloor : flowFloor).dPressureDropDFlow;
+      }
+      if (!Number.isFinite(law.pressureDrop) || !(d > 0) || !Number.isFinite(d)) {
+        lawFailure = {
+          ok: false,
+          code: "did_not_converge",
+          message: `element ${e} law at Q = ${q[e]} m³/s gave ΔP = ${law.pressureDrop} Pa, ` +
+            `dΔP/dQ = ${d} Pa·s/m³; need finite values and dΔP/dQ > 0`,
+        };
+        return false;
+      }
+      h[e] = law.pressureDrop;
+      dh[e] = d;
+    }
+    return true;
+  };
+
+  /**
+   * Nodal solve for Q_e = c_e + g_e·(P_from − P_to) with mass balance at the free nodes:
+   * (A21·G·A12)·P = inflow + A21·c + fixed-pressure terms. Fills newPressure and newFlow.
+   * Linearised about the current flows (`aboutFlows`): c = Q − g·h, so the law is
+   * Q* = Q + g·(ΔP − h); otherwise c = 0 (a linear law Q = g·ΔP). Conductances below
+   * CONDUCTANCE_RANGE × the largest are raised to that bound (a chord slope: it keeps
+   * the pivots of elements carrying almost no flow above rounding).
+   */
+  const nodalSolve = (aboutFlows: boolean): Failure | undefined => {
+    let largest = 0;
+    for (let e = 0; e < m; e++) largest = Math.max(largest, conductance[e]);
+    const smallest = CONDUCTANCE_RANGE * largest;
+    for (let e = 0; e < m; e++) {
+      if (conductance[e] < smallest) conductance[e] = smallest;
+      offset[e] = aboutFlows ? flow[e] - conductance[e] * drop[e] : 0;
+    }
+    diagonal.fill(0);
+    rhs.fill(0);
+    for (let e = 0; e < m; e++) {
+      const g = conductance[e], c = offset[e];
+      const a = freeIndex[from[e]], b = freeIndex[to[e]];
+      if (a >= 0) {
+        diagonal[a] += g;
+        rhs[a] -= c;
+        if (b < 0) rhs[a] += g * pressure[to[e]];
+      }
+      if (b >= 0) {
+        diagonal[b] += g;
+        rhs[b] += c;
+        if (a < 0) rhs[b] += g * pressure[from[e]];
+      }
+      if (slot[e] >= 0) offDiagonal[slot[e]] = -g;
+    }
+    for (let k = 0; k < freeCount; k++) rhs[k] += inflow[freeNodes[k]];
+    const factored = symbolic.factor({ diagonal, offDiagonal });
+    if (!factored.ok) {
+      return {
+        ok: false,
+        code: "singular",
+        message: `nodal system is singular near node ${
+          factored.column < 0 ? "?" : freeNodes[factored.column]
+        }: ${factored.message}`,
+      };
+    }
+    factored.factor.solve(rhs, solved);
+    for (let k = 0; k < freeCount; k++) newPressure[freeNodes[k]] = solved[k];
+    for (let e = 0; e < m; e++) {
+      newFlow[e] = offset[e] + conductance[e] * (newPressure[from[e]] - newPressure[to[e]]);
+    }
+    return undefined;
+  };
+
+  let worstMass = 0, worstNode = -1;
+  /** Worst relative nodal mass residual of `q`; sets worstMass and worstNode, returns Σ m_i². */
+  const massResidual = (q: Float64Array): number => {
+    balance.set(inflow);
+    let largest = 0;
+    for (let e = 0; e < m; e++) {
+      balance[from[e]] -= q[e];
+      balance[to[e]] += q[e];
+      largest = Math.max(largest, Math.abs(q[e]));
+    }
+    const scale = totalInflow > 0 ? totalInflow : largest > 0 ? largest : DEFAULT_FLOW_SCALE;
+    let sum = 0;
+    worstMass = 0;
+    worstNode = -1;
+    for (let k = 0; k < freeCount; k++) {
+      const i = freeNodes[k];
+      const r = Math.abs(balance[i]);
+      sum += r * r;
+      if (worstNode < 0 || r / scale > worstMass) {
+        worstMass = r / scale;
+        worstNode = i;
+      }
+    }
+    return sum;
+  };
+
+  /** Merit ½‖S·F‖² with S = diag(g) on the energy rows (a flow, m³/s) and 1 on the mass rows. */
+  const merit = (p: Float64Array, q: Float64Array, h: Float64Array): number => {
+    let sum = massResidual(q);
+    for (let e = 0; e < m; e++) {
+      const r = conductance[e] * (h[e] - (p[from[e]] - p[to[e]]));
+      sum += r * r;
+    }
+    return sum / 2;
+  };
+
+  /** Convergence measure: the first-order relative flow correction Σ|r_e/h'_e| / Σ|Q_e|. */
+  const convergenceMeasure = (): number => {
+    let num = 0, den = 0;
+    for (let e = 0; e < m; e++) {
+      num += Math.abs((drop[e] - (pressure[from[e]] - pressure[to[e]])) / slope[e]);
+      den += Math.abs(flow[e]);
+    }
+    return den > 0 ? num / den : num / flowScale;
+  };
+
+  const diagnostics = (iterations: number, change: number): HydraulicDiagnostics => {
+    massResidual(flow);
+    return { iterations, worstMassResidual: worstMass, worstNode, relativeFlowChange: change };
+  };
+
+  // Start: the warm-start flows, or one linear-theory solve with every law replaced by
+  // its secant resistance h(q)/q at the flow scale (Wood & Charles (1972) J. Hydraulics
+  // Div. ASCE 98(HY7):1157).
+  if (initial) {
+    flow.set(initial);
+  } else {
+    for (let e = 0; e < m; e++) {
+      const h = elements[e].law(flowScale).pressureDrop;
+      if (!(h > 0) || !Number.isFinite(h)) {
+        return {
+          ok: false,
+          code: "did_not_converge",
+          message:
+            `element ${e} law at Q = ${flowScale} m³/s gave ΔP = ${h} Pa; need a finite ΔP > 0`,
+        };
+      }
+      conductance[e] = flowScale / h;
+    }
+    const failure = nodalSolve(false);
+    if (failure) return failure;
+    flow.set(newFlow);
+  }
+  if (!evaluate(flow, drop, slope)) return lawFailure!;
+
+  /*
+   * Global gradient Newton (Todini & Pilati 1988; Rossman 2000, app. D).
+   * Each iteration linearises every law at the current flows, h(Q+δ) ≈ h + D·δ, solves
+   * the reduced SPD system for the new free pressures and gets the new flows
+   * Q* = Q + D⁻¹·(P_from − P_to − h).
+   * Safeguards for strongly shear-thinning (concave, n ≈ 0.3) laws, whose tangent step
+   * overshoots past the root when a flow must fall:
+   *  1. secant guard: an element whose tangent step would leave < ½ of its flow (or flip
+   *     it), or whose flow is at rounding level (< 1e-12 of the inflow), is re-linearised
+   *     with its secant slope h(Q)/Q — the linear-theory step (Wood & Charles 1972), which
+   *     never overshoots a concave law — and the system is solved again;
+   *  2. line search: the step (P, Q) → (P*, Q*) is scaled by the largest α in 1, ½, ¼, …
+   *     (down to 1/1024) that passes the Armijo test on the merit ½‖S·F‖² (F: energy and
+   *     mass residuals, S: D⁻¹ on the energy rows, frozen for the iteration), or brings
+   *     the merit to rounding level.
+   * The first solve defines the starting pressures (the Newton pressures do not depend
+   * on the old ones). Near the solution neither safeguard acts: quadratic convergence.
+   * Stopping: at the current point, the first-order flow correction Σ|r_e/h'_e| / Σ|Q|
+   * ≤ flowTolerance and the worst nodal mass residual / total inflow ≤ massTolerance;
+   * otherwise `did_not_converge` after maxIterations solves.
+   */
+  let havePressure = false;
+  let change = NaN;
+  for (let iteration = 0;; iteration++) {
+    if (havePressure) {
+      const correction = convergenceMeasure();
+      massResidual(flow);
+      if (correction <= flowTolerance && worstMass <= massTolerance) {
+        return {
+          ok: true,
+          pressures: pressure,
+          flows: flow,
+          diagnostics: diagnostics(iteration, change),
+        };
+      }
+    }
+    if (iteration >= maxIterations) {
+      return {
+        ok: false,
+        code: "did_not_converge",
+        message: `no convergence in ${maxIterations} iterations (convergence measure ` +
+          `${convergenceMeasure().toExponential(2)}, tolerance ${flowTolerance})`,
+        diagnostics: diagnostics(iteration, change),
+      };
+    }
+    for (let e = 0; e < m; e++) {
+      conductance[e] = 1 / slope[e];
+    }
+    let failure = nodalSolve(true);
+    if (failure) return { ...failure, diagnostics: diagnostics(iteration, change) };
+    let guarded = 0;
+    for (let e = 0; e < m; e++) {
+      const q = flow[e];
+      if (Math.abs(q) >= stagnantFlow && newFlow[e] / q >= SHRINK_LIMIT) continue;
+      const secant = q !== 0 ? drop[e] / q : floorSecant(e);
+      if (!(secant > 0) || !Number.isFinite(secant)) continue;
+      conductance[e] = 1 / secant;
+      guarded++;
+    }
+    if (guarded > 0) {
+      failure = nodalSolve(true);
+      if (failure) return { ...failure, diagnostics: diagnostics(iteration, change) };
+    }
+    if (!havePressure) {
+      pressure.set(newPressure);
+      havePressure = true;
+    }
+    const merit0 = merit(pressure, flow, drop);
+    let largestFlow = flowScale;
+    for (let e = 0; e < m; e++) largestFlow = Math.max(largestFlow, Math.abs(flow[e]));
+    const meritNoise = (m + freeCount) * (ROUNDOFF * largestFlow) ** 2;
+    let alpha = 1;
+    for (;;) {
+      for (let k = 0; k < freeCount; k++) {
+        const i = freeNodes[k];
+        trialPressure[i] = pressure[i] + alpha * (newPressure[i] - pressure[i]);
+      }
+      for (let e = 0; e < m; e++) trialFlow[e] = flow[e] + alpha * (newFlow[e] - flow[e]);
+      if (!evaluate(trialFlow, trialDrop, trialSlope)) {
+        return { ...lawFailure!, diagnostics: diagnostics(iteration + 1, change) };
+      }
+      const meritTrial = merit(trialPressure, trialFlow, trialDrop);
+      if (
+        meritTrial <= (1 - 2 * ARMIJO * alpha) * merit0 || meritTrial <= meritNoise ||
+        alpha <= MIN_STEP
+      ) break;
+      alpha /= 2;
+    }
+    let moved = 0, size = 0;
+    for (let e = 0; e < m; e++) {
+      moved += Math.abs(trialFlow[e] - flow[e]);
+      size += Math.abs(trialFlow[e]);
+    }
+    change = size > 0 ? moved / size : 0;
+    pressure.set(trialPressure);
+    flow.set(trialFlow);
+    drop.set(trialDrop);
+    slope.set(trialSlope);
+  }
+}
+
+function countSlots(slot: Int32Array): number {
+  let count = 0;
+  for (const s of slot) if (s >= 0) count++;
+  return count;
+}

@@ -1,0 +1,312 @@
+import assert from "node:assert/strict";
+import { assertClose } from "../assert_close.ts";
+import {
+  type HydraulicElement,
+  type HydraulicProblem,
+  solveHydraulics,
+} from "../../src/network/hydraulic_solve.ts";
+
+/** ΔP = r·|Q|ⁿ·sign(Q): the power-law channel form (e.g. Bird, Armstrong & Hassager vol. 1, ch. 5). */
+function powerLaw(r: number, n: number): HydraulicElement["law"] {
+  return (q: number) => ({
+    pressureDrop: r * Math.sign(q) * Math.pow(Math.abs(q), n),
+    dPressureDropDFlow: r * n * Math.pow(Math.abs(q), n - 1),
+  });
+}
+
+function element(from: number, to: number, law: HydraulicElement["law"]): HydraulicElement {
+  return { from, to, law };
+}
+
+/** Seeded uniform [0, 1): LCG of Press et al., *Numerical Recipes*, 2nd ed., §7.1. */
+function lcg(seed: number): () => number {
+  let x = seed >>> 0;
+  return () => {
+    x = (Math.imul(1664525, x) + 1013904223) >>> 0;
+    return x / 4294967296;
+  };
+}
+
+/** Net inflow at each node (external + incoming − outgoing), m³/s; computed here, not by the solver. */
+function nodalImbalance(problem: HydraulicProblem, flows: Float64Array): Float64Array {
+  const b = new Float64Array(problem.nodeCount);
+  for (const [node, q] of problem.inflow) b[node] += q;
+  problem.elements.forEach((el, e) => {
+    b[el.from] -= flows[e];
+    b[el.to] += flows[e];
+  });
+  return b;
+}
+
+function solveOk(problem: HydraulicProblem, options = {}) {
+  const s = solveHydraulics(problem, options);
+  if (!s.ok) throw new Error(`solve failed: ${s.code}: ${s.message}`);
+  return s;
+}
+
+Deno.test("linear network: series, parallel and a loop against resistances in series/parallel", () => {
+  // ΔP = R·Q (Ohm's-law analogue; Kirchhoff's laws, any circuits text). R in 1e10 Pa·s/m³:
+  //   0 →R1=2→ 1;  1 →R2=1→ 2 →R3=3→ 3 (element 3→2 written backwards);  1 →R4=4→ 3;
+  //   3 →R5=1→ 4 (fixed at 2e5 Pa); 1e-5 m³/s into node 0.
+  // Paths 1→3: (R2 + R3) = 4 ∥ R4 = 4 → 2, equal split 0.5e-5 each. Total R = 2 + 2 + 1 = 5:
+  //   P0 = 2e5 + 5e10·1e-5 = 7e5; P1 = 7e5 − 2e5 = 5e5; P2 = 5e5 − 1e10·0.5e-5 = 4.5e5;
+  //   P3 = 2e5 + 1e10·1e-5 = 3e5; flows [1, 0.5, −0.5, 0.5, 1]·1e-5 (arithmetic).
+  const linear = (r: number) => powerLaw(r * 1e10, 1);
+  const problem: HydraulicProblem = {
+    nodeCount: 5,
+    elements: [
+      element(0, 1, linear(2)),
+      element(1, 2, linear(1)),
+      element(3, 2, linear(3)),
+      element(1, 3, linear(4)),
+      element(3, 4, linear(1)),
+    ],
+    fixedPressure: new Map([[4, 2e5]]),
+    inflow: new Map([[0, 1e-5]]),
+  };
+  const s = solveOk(problem);
+  [7e5, 5e5, 4.5e5, 3e5, 2e5].forEach((p, i) =>
+    assertClose(s.pressures[i], p, { rel: 1e-12, what: `P${i}` })
+  );
+  [1, 0.5, -0.5, 0.5, 1].forEach((q, e) =>
+    assertClose(s.flows[e], q * 1e-5, { rel: 1e-12, what: `Q${e}` })
+  );
+  assert.ok(
+    s.diagnostics.iterations <= 2,
+    `linear laws take ${s.diagnostics.iterations} iterations`,
+  );
+});
+
+Deno.test("power-law parallel branches: split ∝ r_i^(−1/n) and the inlet pressure in closed form", () => {
+  // Sprue 0→1 (r_s), branches 1→(i+2) (r_i) to outlets at 0 Pa. Same ΔP = P1 on every branch,
+  // so Q_i = (P1/r_i)^(1/n); Σ Q_i = Q gives P1 = [Q / Σ r_i^(−1/n)]ⁿ, and P0 = P1 + r_s·Qⁿ
+  // (algebra on the law; the parallel-pipe argument of any hydraulics text).
+  const r = [3e9, 5e9, 8e9, 2e10];
+  const rs = 4e9;
+  const Q = 2e-5;
+  for (const n of [1, 0.5, 0.3]) {
+    const elements = [element(0, 1, powerLaw(rs, n))];
+    const fixedPressure = new Map<number, number>();
+    r.forEach((ri, i) => {
+      elements.push(element(1, i + 2, powerLaw(ri, n)));
+      fixedPressure.set(i + 2, 0);
+    });
+    const s = solveOk({
+      nodeCount: r.length + 2,
+      elements,
+      fixedPressure,
+      inflow: new Map([[0, Q]]),
+    });
+    const sum = r.reduce((acc, ri) => acc + Math.pow(ri, -1 / n), 0);
+    const p1 = Math.pow(Q / sum, n);
+    assertClose(s.pressures[1], p1, { rel: 1e-10, what: `n=${n} P1` });
+    assertClose(s.pressures[0], p1 + rs * Math.pow(Q, n), { rel: 1e-10, what: `n=${n} P0` });
+    r.forEach((ri, i) =>
+      assertClose(s.flows[i + 1], (Q * Math.pow(ri, -1 / n)) / sum, {
+        rel: 1e-10,
+        what: `n=${n} Q${i}`,
+      })
+    );
+  }
+});
+
+Deno.test("power-law loop (a cavity fed by two gates): mass balance and equal path drops", () => {
+  // 0 →sprue→ 1; path A: 1 → 2 (runner) → 4 (gate); path B: 1 → 3 → 4; cavity 4 → 5 at 0 Pa.
+  // Same n on a path in series adds resistances: path drop (r_run + r_gate)·Qⁿ, so the split is
+  // Q_A/Q_B = ((rB_run + rB_gate)/(rA_run + rA_gate))^(1/n) (algebra on the law).
+  const n = 0.35;
+  const [rA1, rA2, rB1, rB2] = [2e9, 9e9, 5e9, 3e9];
+  const problem: HydraulicProblem = {
+    nodeCount: 6,
+    elements: [
+      element(0, 1, powerLaw(3e9, n)),
+      element(1, 2, powerLaw(rA1, n)),
+      element(2, 4, powerLaw(rA2, n)),
+      element(1, 3, powerLaw(rB1, n)),
+      element(4, 3, powerLaw(rB2, n)), // written against the flow
+      element(4, 5, powerLaw(6e9, n)),
+    ],
+    fixedPressure: new Map([[5, 0]]),
+    inflow: new Map([[0, 3e-5]]),
+  };
+  const s = solveOk(problem);
+  const imbalance = nodalImbalance(problem, s.flows);
+  for (let i = 0; i < 5; i++) {
+    assertClose(imbalance[i], 0, { abs: 1e-10 * 3e-5, what: `mass balance at node ${i}` });
+  }
+  const law = (e: number) => problem.elements[e].law(s.flows[e]).pressureDrop;
+  assertClose(law(1) + law(2), -law(4) + law(3), { rel: 1e-9, what: "path A drop vs path B drop" });
+  const qA = s.flows[1], qB = s.flows[3];
+  assertClose(qA / qB, Math.pow((rB1 + rB2) / (rA1 + rA2), 1 / n), { rel: 1e-9, what: "QA/QB" });
+  assertClose(qA + qB, 3e-5, { rel: 1e-10, what: "QA + QB" });
+});
+
+interface PowerLawElement extends HydraulicElement {
+  r: number;
+  n: number;
+}
+
+/** Random connected network: a random tree plus a few extra loop edges, power laws, outlets. */
+function randomNetwork(
+  seed: number,
+  inflowScale = 1,
+): Omit<HydraulicProblem, "elements"> & { elements: PowerLawElement[] } {
+  const rand = lcg(seed);
+  const nodeCount = 3 + Math.floor(rand() * 25);
+  const n = [1, 0.7, 0.5, 0.4, 0.3][Math.floor(rand() * 5)];
+  const elements: PowerLawElement[] = [];
+  const add = (a: number, b: number) => {
+    const r = Math.pow(10, 8 + 4 * rand());
+    elements.push({ ...element(a, b, powerLaw(r, n)), r, n });
+  };
+  for (let i = 1; i < nodeCount; i++) {
+    const parent = Math.floor(rand() * i);
+    if (rand() < 0.5) add(parent, i);
+    else add(i, parent);
+  }
+  const loops = Math.floor(rand() * 4);
+  for (let k = 0; k < loops; k++) {
+    const a = Math.floor(rand() * nodeCount), b = Math.floor(rand() * nodeCount);
+    if (a !== b) add(a, b);
+  }
+  const fixedPressure = new Map<number, number>();
+  const outlets = 1 + Math.floor(rand() * 3);
+  for (let k = 0; k < outlets; k++) {
+    fixedPressure.set(1 + Math.floor(rand() * (nodeCount - 1)), rand() < 0.5 ? 0 : rand() * 1e7);
+  }
+  return {
+    nodeCount,
+    elements,
+    fixedPressure,
+    inflow: new Map([[0, inflowScale * 1e-5 * (0.1 + rand())]]),
+  };
+}
+
+Deno.test("random networks: converge, balance mass at every node, ΔP = h(Q), feed pressure rises with inflow", () => {
+  let worstMass = 0, worstLaw = 0;
+  for (let seed = 1; seed <= 150; seed++) {
+    const problem = randomNetwork(seed);
+    // A tighter stop than the default (Newton converges quadratically: about one more
+    // iteration) so that ΔP = h(Q) holds to 1e-9 also on elements carrying a small share.
+    const s = solveOk(problem, { flowTolerance: 1e-12 });
+    const inflow = [...problem.inflow.values()].reduce((a, b) => a + b, 0);
+    const imbalance = nodalImbalance(problem, s.flows);
+    for (let i = 0; i < problem.nodeCount; i++) {
+      if (problem.fixedPressure.has(i)) continue;
+      worstMass = Math.max(worstMass, Math.abs(imbalance[i]) / inflow);
+      assertClose(imbalance[i], 0, { abs: 1e-10 * inflow, what: `seed ${seed} mass at node ${i}` });
+    }
+    // Each element's (Q, ΔP) must lie on its curve ΔP = r|Q|ⁿsign(Q), within tolerance in either
+    // direction: |h(Q) − ΔP| ≤ 1e-9·(|ΔP| + P_scale), or |Q − h⁻¹(ΔP)| ≤ 1e-8·Q_in with
+    // h⁻¹(ΔP) = sign(ΔP)(|ΔP|/r)^(1/n) (algebra on the law). The inverse form is the meaningful
+    // one for elements of a stagnant region (Q at rounding level, where for n < 1 h is
+    // ill-conditioned: dΔP/dQ → ∞ as Q → 0).
+    const pressureScale = Math.max(...s.pressures.map(Math.abs));
+    problem.elements.forEach((el, e) => {
+      const dp = s.pressures[el.from] - s.pressures[el.to];
+      const q = s.flows[e];
+      const h = el.law(q).pressureDrop;
+      const inverse = Math.sign(dp) * Math.pow(Math.abs(dp) / el.r, 1 / el.n);
+      const byPressure = Math.abs(h - dp) / (Math.abs(dp) + pressureScale);
+      const byFlow = Math.abs(q - inverse) / inflow;
+      const deviation = Math.min(byPressure / 1e-9, byFlow / 1e-8);
+      worstLaw = Math.max(worstLaw, deviation);
+      assert.ok(
+        deviation <= 1,
+        `seed ${seed} element ${e}: Q = ${q}, ΔP = ${dp}, h(Q) = ${h}, h⁻¹(ΔP) = ${inverse}`,
+      );
+    });
+    // Monotone network (strictly increasing laws): more inflow, higher feed pressure.
+    const more = solveOk({ ...problem, inflow: new Map([[0, 1.1 * inflow]]) });
+    assert.ok(more.pressures[0] > s.pressures[0], `seed ${seed}: feed pressure did not rise`);
+  }
+  console.log(
+    `worst mass residual ${worstMass.toExponential(2)}, worst law deviation ${
+      worstLaw.toExponential(2)
+    } of its tolerance`,
+  );
+});
+
+Deno.test("warm start after a 1 % change of one law converges in ≤ 3 iterations", () => {
+  for (let seed = 1; seed <= 60; seed++) {
+    const problem = randomNetwork(seed);
+    const first = solveOk(problem);
+    const changed: HydraulicElement[] = problem.elements.slice();
+    const k = seed % changed.length;
+    const old = changed[k].law;
+    changed[k] = element(changed[k].from, changed[k].to, (q) => {
+      const l = old(q);
+      return {
+        pressureDrop: 1.01 * l.pressureDrop,
+        dPressureDropDFlow: 1.01 * l.dPressureDropDFlow,
+      };
+    });
+    const next = { ...problem, elements: changed };
+    const warm = solveOk(next, { initialFlows: first.flows.slice() });
+    assert.ok(
+      warm.diagnostics.iterations <= 3,
+      `seed ${seed}: warm start took ${warm.diagnostics.iterations} iterations`,
+    );
+    const cold = solveOk(next);
+    const scale = Math.max(...cold.flows.map(Math.abs));
+    cold.flows.forEach((q, e) =>
+      assertClose(warm.flows[e], q, { abs: 1e-8 * scale, what: `seed ${seed} warm vs cold Q${e}` })
+    );
+  }
+});
+
+Deno.test("topology errors come back as values: floating component, self-loop, bad index, lone node", () => {
+  const law = powerLaw(1e10, 0.5);
+  const base = { fixedPressure: new Map([[2, 0]]), inflow: new Map([[0, 1e-5]]) };
+  const cases: [string, HydraulicProblem, RegExp][] = [
+    [
+      "component 3–4 without a fixed pressure",
+      {
+        ...base,
+        nodeCount: 5,
+        elements: [element(0, 1, law), element(1, 2, law), element(3, 4, law)],
+      },
+      /3, 4/,
+    ],
+    [
+      "self-loop",
+      { ...base, nodeCount: 3, elements: [element(0, 2, law), element(1, 1, law)] },
+      /1/,
+    ],
+    ["index out of range", { ...base, nodeCount: 3, elements: [element(0, 3, law)] }, /3/],
+    ["negative index", { ...base, nodeCount: 3, elements: [element(-1, 2, law)] }, /-1/],
+    ["fractional index", { ...base, nodeCount: 3, elements: [element(0.5, 2, law)] }, /0\.5/],
+    ["isolated free node", {
+      ...base,
+      nodeCount: 4,
+      elements: [element(0, 2, law), element(1, 2, law)],
+    }, /3/],
+    [
+      "fixed pressure at a missing node",
+      { ...base, nodeCount: 3, elements: [element(0, 2, law)], fixedPressure: new Map([[7, 0]]) },
+      /7/,
+    ],
+  ];
+  for (const [what, problem, names] of cases) {
+    const s = solveHydraulics(problem);
+    assert.equal(s.ok, false, what);
+    if (!s.ok) {
+      assert.equal(s.code, "invalid_topology", what);
+      assert.match(s.message, names, `${what}: message names the nodes`);
+    }
+  }
+});
+
+Deno.test("non-convergence is a value with diagnostics", () => {
+  const problem = randomNetwork(3);
+  const nonlinear = {
+    ...problem,
+    elements: problem.elements.map((el) => element(el.from, el.to, powerLaw(1e10, 0.3))),
+  };
+  const s = solveHydraulics(nonlinear, { maxIterations: 1 });
+  assert.equal(s.ok, false);
+  if (!s.ok) {
+    assert.equal(s.code, "did_not_converge");
+    assert.equal(s.diagnostics?.iterations, 1);
+  }
+});
