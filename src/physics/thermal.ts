@@ -169,3 +169,26 @@ export function cylinderCoolingTime(diameter: number, options: CoolingTimeOption
   if (!(log > 0)) return 0;
   return (diameter * diameter) / (CYLINDER_MEAN_EXPONENT * options.diffusivity) * log;
 }
+
+/** J1(λ₁), the Bessel function of the first kind, order 1, at the first zero of J0 (A&S Table 9.5 gives J1(j0,1) = 0.5191474973). */
+export const BESSEL_J1_AT_J0_FIRST_ZERO = 0.5191474972894669;
+/** Centre-line amplitude of the cylinder's first series term, 2/(λ₁·J1(λ₁)) = 1.6020. */
+export const CYLINDER_CENTRE_AMPLITUDE = 2 / (BESSEL_J0_FIRST_ZERO * BESSEL_J1_AT_J0_FIRST_ZERO);
+
+/**
+ * Time for the axis of a long cylinder (diameter D, m) to cool from Tm to Te with its
+ * surface held at Tw: the first term of the series solution,
+ * t = D²/(4λ₁²α)·ln[(2/(λ₁J1(λ₁)))·(Tm−Tw)/(Te−Tw)] = D²/(23.13α)·ln[1.602(Tm−Tw)/(Te−Tw)]
+ * (Carslaw & Jaeger, *Conduction of Heat in Solids*, 2nd ed., §7.6). The centre-line
+ * counterpart of {@link cylinderCoolingTime}'s mean-temperature form (Menges, Michaeli &
+ * Mohren): compare it with {@link plateCoolingTime}, which is also centre-line. Returns 0 when
+ * the logarithm is ≤ 0, Infinity when Te ≤ Tw. Units: s.
+ */
+export function cylinderCentreCoolingTime(diameter: number, options: CoolingTimeOptions): number {
+  const what = "cylinder centre-line cooling time";
+  requirePositive(what, "diameter", diameter);
+  const ratio = temperatureRatio(what, options);
+  const log = Math.log(CYLINDER_CENTRE_AMPLITUDE * ratio);
+  if (!(log > 0)) return 0;
+  return (diameter * diameter) / (CYLINDER_MEAN_EXPONENT * options.diffusivity) * log;
+}

@@ -214,3 +214,22 @@ Deno.test("cooling times: edge cases", () => {
     what: "s² scaling",
   });
 });
+
+Deno.test("cylinder centre-line amplitude 2/(λ₁·J1(λ₁)) = 1.6020 (A&S Table 9.5: j0,1 = 2.4048255577, J1(j0,1) = 0.5191474973)", async () => {
+  const { CYLINDER_CENTRE_AMPLITUDE, cylinderCentreCoolingTime } = await import(
+    "../../src/physics/thermal.ts"
+  );
+  assertClose(CYLINDER_CENTRE_AMPLITUDE, 2 / (2.4048255577 * 0.5191474973), {
+    rel: 1e-9,
+    what: "amplitude",
+  });
+  // Hand-worked: D = 6 mm, α = 1e-7 m²/s, Tm = 250, Tw = 50, Te = 100 °C →
+  // t = 3.6e-5/(23.1327·1e-7)·ln(1.60197·200/50) = 15.5625·1.85753 = 28.907 s.
+  const t = cylinderCentreCoolingTime(6e-3, {
+    diffusivity: 1e-7,
+    meltTemperature: 523.15,
+    moldTemperature: 323.15,
+    ejectionTemperature: 373.15,
+  });
+  assertClose(t, 28.907, { rel: 2e-4, what: "hand-worked centre-line time" });
+});
