@@ -1,0 +1,155 @@
+/**
+ * Command-line entry: `simulate`, `validate`, `materials`, `schema` over scenario
+ * files. Exit codes: 0 done, 1 usage error, 2 invalid scenario (issues on stderr),
+ * 3 the simulation failed.
+ *
+ * @module
+ */
+import { MATERIALS } from "./materials/library.ts";
+import { scenarioJsonSchema } from "./model/json_schema.ts";
+import { parseScenarioText, type ScenarioIssue } from "./model/parse_scenario.ts";
+import type { Scenario } from "./model/scenario_schema.ts";
+import { LIBRARY_MATERIAL_IDS, runScenario } from "./network/simulate_scenario.ts";
+import { fillHistoryCsv } from "./report/fill_csv.ts";
+import { resultJson } from "./report/result_json.ts";
+import { textReport } from "./report/text_report.ts";
+
+const USAGE = `evenfill — runner balancing for multi-cavity and family molds
+
+usage:
+  evenfill simulate <scenario.json> [--json] [--history] [--csv] [--units metric|dual]
+  evenfill validate <scenario.json>
+  evenfill materials
+  evenfill schema [--write <path>]
+
+(with Deno: deno task simulate scenarios/family_four_housing.json)`;
+
+interface Args {
+  positional: string[];
+  flags: Map<string, string | true>;
+}
+
+function parseArgs(argv: readonly string[]): Args {
+  const positional: string[] = [];
+  const flags = new Map<string, string | true>();
+  const valued = new Set(["units", "write"]);
+  for (let i = 0; i < argv.length; i++) {
+    const a = argv[i];
+    if (a.startsWith("--")) {
+      const [name, inline] = a.slice(2).split("=", 2);
+      if (inline !== undefined) flags.set(name, inline);
+      else if (valued.has(name) && i + 1 < argv.length) flags.set(name, argv[++i]);
+      else flags.set(name, true);
+    } else positional.push(a);
+  }
+  return { positional, flags };
+}
+
+function printIssues(file: string, issues: readonly ScenarioIssue[]): void {
+  console.error(`${file}: ${issues.length} problem${issues.length === 1 ? "" : "s"}`);
+  for (const i of issues) console.error(`  ${i.at}: ${i.message} [${i.code}]`);
+}
+
+type ReadResult = { scenario: Scenario } | { scenario?: undefined; exit: 1 | 2; message?: string };
+
+async function readScenario(file: string | undefined): Promise<ReadResult> {
+  if (!file) return { exit: 1, message: USAGE };
+  let text: string;
+  try {
+    text = await Deno.readTextFile(file);
+  } catch (error) {
+    return { exit: 1, message: `Cannot read ${file}: ${(error as Error).message}` };
+  }
+  const parsed = parseScenarioText(text, { materialIds: LIBRARY_MATERIAL_IDS });
+  if (!parsed.ok) {
+    printIssues(file, parsed.issues);
+    return { exit: 2 };
+  }
+  return { scenario: parsed.scenario };
+}
+
+/** Run the CLI with the given arguments; returns the process exit code. */
+export async function main(argv: readonly string[]): Promise<number> {
+  const [command, ...rest] = argv;
+  const args = parseArgs(rest);
+  switch (command) {
+    case "simulate": {
+      const read = await readScenario(args.positional[0]);
+      if (read.scenario === undefined) {
+        if (read.message) console.error(read.message);
+        return read.exit;
+      }
+      const units = args.flags.get("units") ?? "metric";
+      if (units !== "metric" && units !== "dual") {
+        console.error(`--units must be metric or dual, got ${units}`);
+        return 1;
+      }
+      const quiet = args.flags.has("json") || args.flags.has("csv");
+      let lastShown = -1;
+      const outcome = runScenario(read.scenario, {
+        onProgress: (f) => {
+          const tenth = Math.floor(f * 10);
+          if (!quiet && Deno.stderr.isTerminal() && tenth > lastShown) {
+            lastShown = tenth;
+            Deno.stderr.writeSync(new TextEncoder().encode(`\rfilling… ${tenth * 10} %`));
+          }
+        },
+      });
+      if (lastShown >= 0) Deno.stderr.writeSync(new TextEncoder().encode("\r\x1b[K"));
+      if (!outcome.ok) {
+        if (outcome.code === "invalid_scenario") {
+          printIssues(args.positional[0], outcome.issues);
+          return 2;
+        }
+        console.error(`Simulation failed: ${outcome.message}`);
+        return 3;
+      }
+      if (args.flags.has("csv")) console.log(fillHistoryCsv(outcome.run).trimEnd());
+      else if (args.flags.has("json")) {
+        console.log(
+          JSON.stringify(resultJson(outcome.run, { history: args.flags.has("history") }), null, 2),
+        );
+      } else console.log(textReport(outcome.run, { units }).trimEnd());
+      return 0;
+    }
+    case "validate": {
+      const read = await readScenario(args.positional[0]);
+      if (read.scenario === undefined) {
+        if (read.message) console.error(read.message);
+        return read.exit;
+      }
+      console.log(
+        `${
+          args.positional[0]
+        }: valid (${read.scenario.cavities.length} cavities, ${read.scenario.runners.length} runners, ${read.scenario.gates.length} gates)`,
+      );
+      return 0;
+    }
+    case "materials": {
+      for (const m of MATERIALS) console.log(`${m.id.padEnd(18)} ${m.name}`);
+      console.log(
+        "\nGeneric, representative data: replace with your grade's (supplier, or measured to ISO 11443).",
+      );
+      return 0;
+    }
+    case "schema": {
+      const text = JSON.stringify(scenarioJsonSchema(), null, 2) + "\n";
+      const target = args.flags.get("write");
+      if (typeof target === "string") {
+        await Deno.writeTextFile(target, text);
+        console.error(`wrote ${target}`);
+      } else console.log(text.trimEnd());
+      return 0;
+    }
+    case undefined:
+    case "help":
+    case "--help":
+      console.log(USAGE);
+      return command === undefined ? 1 : 0;
+    default:
+      console.error(`Unknown command "${command}".\n\n${USAGE}`);
+      return 1;
+  }
+}
+
+if (import.meta.main) Deno.exit(await main(Deno.args));

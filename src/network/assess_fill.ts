@@ -1,0 +1,310 @@
+import type { Scenario } from "../model/scenario_schema.ts";
+import { cylinderCentreCoolingTime, plateCoolingTime } from "../physics/thermal.ts";
+import type { FeedNetwork } from "./feed_network.ts";
+import type { FillResult } from "./fill_result.ts";
+
+/**
+ * Freeze and cooling estimates and the rule-of-thumb warnings of physics.md §7,
+ * computed from a fill result. Rules marked "common practice" have no published
+ * source; the thresholds are those the trade quotes.
+ *
+ * @module
+ */
+
+/** Thermal data the estimates need, SI (temperatures in K). */
+export interface ThermalData {
+  diffusivity: number;
+  meltTemperature: number;
+  moldTemperature: number;
+  noFlowTemperature: number;
+  ejectionTemperature: number;
+  maxShearRate: number;
+}
+
+/** One element's freeze and cooling times, s. */
+export interface FreezeEntry {
+  id: string;
+  kind: "part" | "gate" | "runner" | "sprue";
+  /** Governing thickness or diameter, m. */
+  size: number;
+  /** Time for the centre (plate) or mean (cylinder) to reach the no-flow temperature, s. */
+  freezeTime: number;
+  /** Time to reach the ejection temperature, s. */
+  coolingTime: number;
+  /** Which closed form: plate or cylinder, both for the centre-line temperature. */
+  formula: "plate_centre" | "cylinder_centre";
+}
+
+/** Freeze summary. */
+export interface FreezeTimes {
+  entries: FreezeEntry[];
+  /** Longest part cooling time, s. */
+  partCoolingTime: number;
+  /** Longest cold-runner / sprue cooling time, s. */
+  runnerCoolingTime: number;
+  /** What sets the cooling time of the cycle. */
+  cycleSetBy: string;
+}
+
+/** A warning: a stable code, the element it concerns, and plain words. */
+export interface FillWarning {
+  code: string;
+  severity: "warning" | "caution" | "info";
+  element?: string;
+  message: string;
+}
+
+/** Press maker's rule of thumb for a clamp reserve (common practice, no source). */
+export const CLAMP_RESERVE = 1.2;
+
+/**
+ * Freeze and cooling times per part, gate, runner and sprue: the first-term
+ * closed forms for the centre line of a plate (walls, edge gates; Menges, Michaeli &
+ * Mohren, *How to Make Injection Molds*) and of a cylinder (round channels; Carslaw &
+ * Jaeger §7.6). Both are centre-line forms, so times of walls and channels compare.
+ */
+export function freezeTimes(network: FeedNetwork, data: ThermalData): FreezeTimes {
+  const common = {
+    diffusivity: data.diffusivity,
+    meltTemperature: data.meltTemperature,
+    moldTemperature: data.moldTemperature,
+  };
+  const entries: FreezeEntry[] = [];
+  for (const e of network.elements) {
+    if (e.heated) continue;
+    const round = e.kind === "runner" || e.kind === "feed" ||
+      (e.kind === "gate" && e.geometry.type !== "uniform") ||
+      (e.kind === "gate" && e.geometry.type === "uniform" && e.geometry.section.kind === "circle");
+    const formula = round ? "cylinder_centre" : "plate_centre";
+    const time = (target: number) =>
+      round
+        ? cylinderCentreCoolingTime(e.thickness, { ...common, ejectionTemperature: target })
+        : plateCoolingTime(e.thickness, { ...common, ejectionTemperature: target });
+    entries.push({
+      id: e.id,
+      kind: e.kind === "cavity" ? "part" : e.kind === "feed" ? "sprue" : e.kind,
+      size: e.thickness,
+      freezeTime: time(data.noFlowTemperature),
+      coolingTime: time(data.ejectionTemperature),
+      formula,
+    });
+  }
+  const parts = entries.filter((x) => x.kind === "part");
+  const cold = entries.filter((x) => x.kind === "runner" || x.kind === "sprue");
+  const partCoolingTime = Math.max(0, ...parts.map((x) => x.coolingTime));
+  const runnerCoolingTime = Math.max(0, ...cold.map((x) => x.coolingTime));
+  const slowest = [...parts, ...cold].sort((a, b) => b.coolingTime - a.coolingTime)[0];
+  return {
+    entries,
+    partCoolingTime,
+    runnerCoolingTime,
+    cycleSetBy: slowest
+      ? (slowest.kind === slowest.id ? slowest.kind : `${slowest.kind} ${slowest.id}`)
+      : "none",
+  };
+}
+
+/** Options of {@link fillWarnings}. */
+export interface FillWarningsOptions {
+  thermal: ThermalData;
+  freeze: FreezeTimes;
+}
+
+/** The warnings of physics.md §7 for one simulated design. */
+export function fillWarnings(
+  context: { scenario: Scenario; network: FeedNetwork; fill: FillResult },
+  options: FillWarningsOptions,
+): FillWarning[] {
+  const { scenario, network, fill } = context;
+  const { thermal, freeze } = options;
+  const warnings: FillWarning[] = [];
+  const mpa = (pa: number) => (pa / 1e6).toFixed(1);
+
+  if (fill.diagnostics.stoppedBecause !== "all_full") {
+    warnings.push({
+      code: fill.diagnostics.stoppedBecause,
+      severity: "warning",
+      message: `The simulation did not fill every cavity: ${fill.diagnostics.message}.`,
+    });
+  }
+  for (const e of fill.elements) {
+    if (e.frozenShut) {
+      warnings.push({
+        code: "frozen_shut",
+        severity: "warning",
+        element: e.id,
+        message: `${e.id} froze shut during filling (frozen layer closed the section).`,
+      });
+    }
+  }
+
+  const shearLimit = scenario.goals.gate_shear_limit_1_s ?? thermal.maxShearRate;
+  for (const c of fill.cavities) {
+    if (c.gateShearRatePeak > shearLimit) {
+      warnings.push({
+        code: "gate_shear_over_limit",
+        severity: "warning",
+        element: c.gateAtPeak,
+        message: `Gate ${c.gateAtPeak} peaks at ${
+          Math.round(c.gateShearRatePeak)
+        } 1/s wall shear, over the ${Math.round(shearLimit)} 1/s limit of the resin.`,
+      });
+    }
+  }
+
+  const machinePressure = scenario.machine.max_injection_pressure_MPa * 1e6;
+  const allowed = scenario.goals.max_pressure_fraction * machinePressure;
+  if (fill.feedPressurePeak > machinePressure) {
+    warnings.push({
+      code: "pressure_over_machine",
+      severity: "warning",
+      message: `Peak injection pressure ${mpa(fill.feedPressurePeak)} MPa exceeds the press's ${
+        mpa(machinePressure)
+      } MPa: the press would not reach the set rate.`,
+    });
+  } else if (fill.feedPressurePeak > allowed) {
+    warnings.push({
+      code: "pressure_over_target",
+      severity: "warning",
+      message: `Peak injection pressure ${mpa(fill.feedPressurePeak)} MPa is over ${
+        Math.round(scenario.goals.max_pressure_fraction * 100)
+      } % of the press's ${mpa(machinePressure)} MPa (common practice: keep a 20–25 % reserve).`,
+    });
+  }
+
+  const clamp = scenario.machine.clamp_force_kN * 1e3;
+  if (fill.clampForcePeak * CLAMP_RESERVE > clamp) {
+    warnings.push({
+      code: "clamp_reserve_low",
+      severity: "warning",
+      message: `Peak mold-opening force ${
+        (fill.clampForcePeak / 1e3).toFixed(0)
+      } kN × ${CLAMP_RESERVE} exceeds the ${scenario.machine.clamp_force_kN} kN clamp (common practice: clamp ≥ 1.2 × computed force). Packing adds to this.`,
+    });
+  }
+
+  if (
+    Number.isFinite(fill.imbalancePercent) &&
+    fill.imbalancePercent > scenario.goals.max_imbalance_percent
+  ) {
+    warnings.push({
+      code: "imbalance_over_target",
+      severity: "info",
+      message: `Fill-time imbalance ${
+        fill.imbalancePercent.toFixed(1)
+      } % is over the ${scenario.goals.max_imbalance_percent} % target.`,
+    });
+  }
+
+  // Size rules (common practice, no source).
+  const wallOf = new Map(scenario.cavities.map((c) => [c.id, c.wall_mm]));
+  for (const g of scenario.gates) {
+    const wall = wallOf.get(g.cavity)!;
+    if (g.type === "edge") {
+      const ratio = g.thickness_mm / wall;
+      if (ratio < 0.5 || ratio > 0.8) {
+        warnings.push({
+          code: "gate_size_rule",
+          severity: "caution",
+          element: g.id,
+          message: `Edge gate ${g.id} is ${
+            (ratio * 100).toFixed(0)
+          } % of the ${wall} mm wall; common practice is 50–80 %.`,
+        });
+      }
+    } else {
+      const ratio = g.diameter_mm / wall;
+      if (ratio < 0.25 || ratio > 0.6) {
+        warnings.push({
+          code: "gate_size_rule",
+          severity: "caution",
+          element: g.id,
+          message: `${g.type === "pin" ? "Pin" : "Tunnel"} gate ${g.id} is ${
+            (ratio * 100).toFixed(0)
+          } % of the ${wall} mm wall; common practice is 25–60 %.`,
+        });
+      }
+    }
+  }
+  const thickestDownstream = new Map<string, number>();
+  for (const path of fill.paths) {
+    const wall = wallOf.get(path.cavity)!;
+    for (const id of path.elements) {
+      thickestDownstream.set(id, Math.max(thickestDownstream.get(id) ?? 0, wall));
+    }
+  }
+  for (const r of scenario.runners) {
+    const wall = thickestDownstream.get(r.id);
+    if (wall !== undefined && r.diameter_mm < wall + 1.5) {
+      warnings.push({
+        code: "runner_below_wall_rule",
+        severity: "caution",
+        element: r.id,
+        message: `Runner ${r.id} (${r.diameter_mm} mm) is under wall + 1.5 mm (${
+          (wall + 1.5).toFixed(1)
+        } mm) for the ${wall} mm part it feeds: it may freeze before the part is packed (common practice).`,
+      });
+    }
+  }
+
+  // Freeze order (common practice): gate before the part, runner after the part.
+  const byId = new Map(freeze.entries.map((x) => [x.id, x]));
+  for (const c of network.cavities) {
+    const part = byId.get(c.id);
+    if (!part) continue;
+    for (const g of c.gates) {
+      const gate = byId.get(network.elements[g].id);
+      if (gate && gate.freezeTime >= part.freezeTime) {
+        warnings.push({
+          code: "gate_freezes_after_part",
+          severity: "caution",
+          element: gate.id,
+          message: `Gate ${gate.id} freezes after part ${c.id} (${
+            gate.freezeTime.toFixed(1)
+          } s vs ${part.freezeTime.toFixed(1)} s): packing cannot be ended by gate freeze.`,
+        });
+      }
+    }
+  }
+  for (const path of fill.paths) {
+    const part = byId.get(path.cavity);
+    if (!part) continue;
+    for (const id of path.elements) {
+      const entry = byId.get(id);
+      if (entry && entry.kind === "runner" && entry.freezeTime < part.freezeTime) {
+        warnings.push({
+          code: "runner_freezes_before_part",
+          severity: "caution",
+          element: id,
+          message: `Runner ${id} freezes (${
+            entry.freezeTime.toFixed(1)
+          } s) before part ${path.cavity} (${
+            part.freezeTime.toFixed(1)
+          } s): the part cannot be packed through it to the end.`,
+        });
+      }
+    }
+  }
+  if (freeze.runnerCoolingTime > freeze.partCoolingTime) {
+    warnings.push({
+      code: "runner_sets_cycle",
+      severity: "info",
+      message: `The cold runner needs ${
+        freeze.runnerCoolingTime.toFixed(1)
+      } s to cool, longer than the thickest part (${
+        freeze.partCoolingTime.toFixed(1)
+      } s): ${freeze.cycleSetBy} sets the cooling time.`,
+    });
+  }
+  const unique = new Map<string, FillWarning>();
+  for (const w of warnings) unique.set(`${w.code}:${w.element ?? ""}`, w);
+  return [...unique.values()];
+}
+
+/** The cautions every report carries (product.md). */
+export const CAUTIONS: readonly string[] = [
+  "A one-dimensional network model: it does not see venting, cooling-line faults, mold deflection, cold-slug blockage or shear-induced melt variation at branches.",
+  "Steel removal cannot be undone: cut one step, re-measure with weighed short shots, then decide.",
+  "Pressures and clamp forces are estimates: confirm on the press, within the press maker's limits, local safety codes and licensed practice.",
+  "Resin data from the built-in library are generic and representative: use your grade's data (supplier, or measured to ISO 11443) before cutting steel.",
+];

@@ -1,0 +1,338 @@
+import type { Gate, Runner, Scenario } from "../model/scenario_schema.ts";
+import type { ScenarioIssue } from "../model/parse_scenario.ts";
+import { cm2ToM2, cm3ToM3, degToRad, mmToM } from "../model/units.ts";
+import { partingPlaneWidth, type Section } from "../physics/mod.ts";
+import { geometryVolume } from "./_fill_geometry.ts";
+import type {
+  ElementGeometry,
+  FeedNetwork,
+  NetworkCavity,
+  NetworkElement,
+  NetworkNode,
+} from "./feed_network.ts";
+
+/** Result of building the network: the graph, or topology issues with JSON paths. */
+export type BuildNetworkResult =
+  | { ok: true; network: FeedNetwork }
+  | { ok: false; issues: ScenarioIssue[] };
+
+/** Side draft of a trapezoidal runner, per side (common practice, no source: 5–10°). */
+export const TRAPEZOID_DRAFT_RAD = degToRad(10);
+/** Default included angle of a tunnel gate's cone (common practice, no source). */
+export const TUNNEL_TAPER_DEFAULT_DEG = 30;
+
+/**
+ * Cross-section of a runner from its scenario fields. Trapezoids and parabolas
+ * without explicit depth/width take the section that circumscribes the round of
+ * the same diameter (depth = D), so a trapezoid "of 6 mm" holds a 6 mm ball cutter path.
+ */
+export function runnerSection(
+  runner: Pick<Runner, "shape" | "diameter_mm" | "depth_mm" | "width_mm">,
+): Section {
+  const d = mmToM(runner.diameter_mm);
+  switch (runner.shape) {
+    case "round":
+      return { kind: "circle", radius: d / 2 };
+    case "half_round":
+      return { kind: "half_round", radius: d / 2 };
+    case "trapezoid": {
+      const depth = runner.depth_mm !== undefined ? mmToM(runner.depth_mm) : d;
+      // Trapezoid of depth D whose drafted sides touch a circle of diameter D
+      // (tangent-line geometry): bottom = D(1 − sin θ)/cos θ, top = bottom + 2D tan θ.
+      const t = TRAPEZOID_DRAFT_RAD;
+      const bottom = runner.width_mm !== undefined
+        ? mmToM(runner.width_mm) - 2 * depth * Math.tan(t)
+        : (d * (1 - Math.sin(t))) / Math.cos(t);
+      return {
+        kind: "trapezoid",
+        topWidth: bottom + 2 * depth * Math.tan(t),
+        bottomWidth: bottom,
+        depth,
+      };
+    }
+    case "parabolic": {
+      const depth = runner.depth_mm !== undefined ? mmToM(runner.depth_mm) : d;
+      // The narrowest parabola y = h(1 − (2x/w)²) of depth D that contains the
+      // circle of diameter D tangent at its vertex needs w = 2D (curvature 8h/w² ≤ 2/D).
+      const width = runner.width_mm !== undefined ? mmToM(runner.width_mm) : 2 * d;
+      return { kind: "parabolic", width, depth };
+    }
+  }
+}
+
+function tunnelSection(gate: Extract<Gate, { type: "tunnel" }>, diameter: number): Section {
+  switch (gate.section) {
+    case "round":
+      return { kind: "circle", radius: diameter / 2 };
+    case "oval":
+      return { kind: "ellipse", minorAxis: diameter, majorAxis: diameter * gate.oval_ratio };
+    case "d": {
+      const radius = diameter / 2;
+      // depth = R + offset
+      return { kind: "d_shape", radius, flatOffset: diameter * gate.d_depth_ratio - radius };
+    }
+  }
+}
+
+/** Geometry of a gate from its scenario fields (SI). */
+export function gateGeometry(gate: Gate): ElementGeometry {
+  switch (gate.type) {
+    case "edge":
+      return {
+        type: "uniform",
+        section: {
+          kind: "rectangle",
+          width: mmToM(gate.width_mm),
+          height: mmToM(gate.thickness_mm),
+        },
+        length: mmToM(gate.land_mm),
+      };
+    case "pin":
+      return {
+        type: "uniform",
+        section: { kind: "circle", radius: mmToM(gate.diameter_mm) / 2 },
+        length: mmToM(gate.land_mm),
+      };
+    case "tunnel": {
+      const tip = mmToM(gate.diameter_mm);
+      const length = mmToM(gate.length_mm);
+      const angle = degToRad(gate.taper_angle_deg ?? TUNNEL_TAPER_DEFAULT_DEG);
+      const entry = gate.entry_diameter_mm !== undefined
+        ? mmToM(gate.entry_diameter_mm)
+        : tip + 2 * length * Math.tan(angle / 2);
+      return {
+        type: "tapered",
+        entry: tunnelSection(gate, entry),
+        exit: tunnelSection(gate, tip),
+        length,
+      };
+    }
+  }
+}
+
+/** The size a gate's freeze is governed by: edge thickness, or the tip diameter, m. */
+function gateThickness(gate: Gate): number {
+  return mmToM(gate.type === "edge" ? gate.thickness_mm : gate.diameter_mm);
+}
+
+/**
+ * Build the SI network from a validated scenario. The scenario's own checks
+ * (ids, references) have passed; this adds the graph checks: every cavity must be
+ * reachable from the feed.
+ */
+export function buildNetwork(scenario: Scenario): BuildNetworkResult {
+  const nodes: NetworkNode[] = [];
+  const byId = new Map<string, number>();
+  const addNode = (id: string, x: number, y: number, role: NetworkNode["role"]) => {
+    const index = nodes.length;
+    nodes.push({ id, index, x, y, role });
+    byId.set(id, index);
+    return index;
+  };
+  for (const n of scenario.nodes) addNode(n.id, mmToM(n.x_mm), mmToM(n.y_mm), "junction");
+  const feedNode = byId.get(scenario.feed.node)!;
+  const inlet = addNode("inlet", nodes[feedNode].x, nodes[feedNode].y, "inlet");
+
+  const elements: NetworkElement[] = [];
+  const add = (e: Omit<NetworkElement, "index" | "volume"> & { volume?: number }) => {
+    const index = elements.length;
+    elements.push({ ...e, index, volume: e.volume ?? geometryVolume(e.geometry) });
+    return index;
+  };
+
+  const feed = scenario.feed;
+  const feedIndex = feed.kind === "sprue"
+    ? add({
+      id: "sprue",
+      kind: "feed",
+      from: inlet,
+      to: feedNode,
+      geometry: {
+        type: "tapered",
+        entry: { kind: "circle", radius: mmToM(feed.entry_diameter_mm) / 2 },
+        exit: { kind: "circle", radius: mmToM(feed.exit_diameter_mm) / 2 },
+        length: mmToM(feed.length_mm),
+      },
+      heated: false,
+      projectedArea: 0,
+      thickness: mmToM(feed.exit_diameter_mm),
+      cavity: -1,
+    })
+    : add({
+      id: "hot_drop",
+      kind: "feed",
+      from: inlet,
+      to: feedNode,
+      geometry: {
+        type: "uniform",
+        section: { kind: "circle", radius: mmToM(feed.diameter_mm) / 2 },
+        length: mmToM(feed.length_mm),
+      },
+      heated: true,
+      projectedArea: 0,
+      thickness: mmToM(feed.diameter_mm),
+      cavity: -1,
+    });
+
+  for (const r of scenario.runners) {
+    const from = byId.get(r.from)!;
+    const to = byId.get(r.to)!;
+    const length = r.length_mm !== undefined
+      ? mmToM(r.length_mm)
+      : Math.hypot(nodes[from].x - nodes[to].x, nodes[from].y - nodes[to].y);
+    const section = runnerSection(r);
+    add({
+      id: r.id,
+      kind: "runner",
+      from,
+      to,
+      geometry: { type: "uniform", section, length },
+      heated: false,
+      projectedArea: partingPlaneWidth(section) * length,
+      thickness: mmToM(r.diameter_mm),
+      cavity: -1,
+    });
+  }
+
+  const cavityIndex = new Map(scenario.cavities.map((c, i) => [c.id, i]));
+  const cavityNodes = scenario.cavities.map((c) => {
+    const gate = scenario.gates.find((g) => g.cavity === c.id);
+    const at = gate ? nodes[byId.get(gate.from)!] : nodes[feedNode];
+    return addNode(c.id, at.x, at.y, "cavity");
+  });
+  const gatesOf: number[][] = scenario.cavities.map(() => []);
+  for (const g of scenario.gates) {
+    const k = cavityIndex.get(g.cavity)!;
+    const geometry = gateGeometry(g);
+    const width = geometry.type === "uniform"
+      ? partingPlaneWidth(geometry.section)
+      : partingPlaneWidth((geometry as { entry: Section }).entry);
+    const length = geometry.type === "uniform" || geometry.type === "tapered" ? geometry.length : 0;
+    gatesOf[k].push(add({
+      id: g.id,
+      kind: "gate",
+      from: byId.get(g.from)!,
+      to: cavityNodes[k],
+      geometry,
+      heated: false,
+      // A tunnel gate runs below the parting plane, into the cavity wall.
+      projectedArea: g.type === "tunnel" ? 0 : width * length,
+      thickness: gateThickness(g),
+      cavity: k,
+    }));
+  }
+
+  const cavities: NetworkCavity[] = scenario.cavities.map((c, k) => {
+    const volume = cm3ToM3(c.volume_cm3);
+    const wall = mmToM(c.wall_mm);
+    let geometry: ElementGeometry;
+    if (c.fill_pattern === "radial") {
+      const firstGate = elements[gatesOf[k][0]];
+      const gateRadius = c.gate_radius_mm !== undefined
+        ? mmToM(c.gate_radius_mm)
+        : Math.max(firstGate.thickness / 2, wall / 2);
+      const maxRadius = Math.sqrt(gateRadius * gateRadius + volume / (Math.PI * wall));
+      geometry = { type: "radial", gap: wall, gateRadius, maxRadius };
+    } else {
+      const flowLength = mmToM(c.flow_length_mm!);
+      geometry = { type: "strip", width: volume / (wall * flowLength), gap: wall, flowLength };
+    }
+    const element = add({
+      id: c.id,
+      kind: "cavity",
+      from: cavityNodes[k],
+      to: -1,
+      geometry,
+      volume,
+      heated: false,
+      projectedArea: cm2ToM2(c.projected_area_cm2),
+      thickness: wall,
+      cavity: k,
+    });
+    return {
+      id: c.id,
+      name: c.name ?? c.id,
+      element,
+      gates: gatesOf[k],
+      volume,
+      projectedArea: cm2ToM2(c.projected_area_cm2),
+      wall,
+    };
+  });
+
+  const issues = reachability(nodes, elements, inlet, scenario);
+  if (issues.length > 0) return { ok: false, issues };
+
+  let feedSystemVolume = 0;
+  let coldRunnerVolume = 0;
+  let cavityVolume = 0;
+  for (const e of elements) {
+    if (e.kind === "cavity") cavityVolume += e.volume;
+    else {
+      feedSystemVolume += e.volume;
+      if (!e.heated) coldRunnerVolume += e.volume;
+    }
+  }
+  return {
+    ok: true,
+    network: {
+      nodes,
+      elements,
+      cavities,
+      inlet,
+      feed: feedIndex,
+      feedSystemVolume,
+      coldRunnerVolume,
+      cavityVolume,
+    },
+  };
+}
+
+function reachability(
+  nodes: readonly NetworkNode[],
+  elements: readonly NetworkElement[],
+  inlet: number,
+  scenario: Scenario,
+): ScenarioIssue[] {
+  const adjacency: number[][] = nodes.map(() => []);
+  for (const e of elements) {
+    if (e.to < 0) continue;
+    adjacency[e.from].push(e.to);
+    adjacency[e.to].push(e.from);
+  }
+  const seen = new Uint8Array(nodes.length);
+  const stack = [inlet];
+  seen[inlet] = 1;
+  while (stack.length > 0) {
+    const n = stack.pop()!;
+    for (const m of adjacency[n]) {
+      if (!seen[m]) {
+        seen[m] = 1;
+        stack.push(m);
+      }
+    }
+  }
+  const issues: ScenarioIssue[] = [];
+  scenario.cavities.forEach((c, i) => {
+    const node = nodes.findIndex((n) => n.role === "cavity" && n.id === c.id);
+    if (!seen[node]) {
+      issues.push({
+        path: ["cavities", i, "id"],
+        at: `cavities[${i}].id`,
+        code: "cavity_unreachable",
+        message: `No path of runners and gates leads from the feed to cavity "${c.id}"`,
+      });
+    }
+  });
+  scenario.nodes.forEach((n, i) => {
+    if (!seen[i]) {
+      issues.push({
+        path: ["nodes", i, "id"],
+        at: `nodes[${i}].id`,
+        code: "node_unreachable",
+        message: `Node "${n.id}" is not connected to the feed`,
+      });
+    }
+  });
+  return issues;
+}

@@ -1,0 +1,143 @@
+import { materialById, materialIds } from "../materials/library.ts";
+import { type Material, toMaterial } from "../materials/material.ts";
+import { flowCurveAt } from "../materials/viscosity.ts";
+import { parseScenario, type ScenarioIssue } from "../model/parse_scenario.ts";
+import type { Scenario } from "../model/scenario_schema.ts";
+import { cm3PerSToM3PerS, cToK } from "../model/units.ts";
+import {
+  CAUTIONS,
+  type FillWarning,
+  fillWarnings,
+  type FreezeTimes,
+  freezeTimes,
+  type ThermalData,
+} from "./assess_fill.ts";
+import { buildNetwork } from "./build_network.ts";
+import type { FeedNetwork } from "./feed_network.ts";
+import type { FillResult } from "./fill_result.ts";
+import { type FillProcess, type MeltModel, simulateFill } from "./simulate_fill.ts";
+
+/** Everything one simulation of a scenario produced. SI inside. */
+export interface ScenarioRun {
+  scenario: Scenario;
+  material: Material;
+  network: FeedNetwork;
+  process: FillProcess;
+  fill: FillResult;
+  freeze: FreezeTimes;
+  warnings: FillWarning[];
+  cautions: readonly string[];
+  /** Part masses, kg, in cavity order. */
+  partMasses: number[];
+  /** Cold feed-system (sprue + runners + gates) mass per shot, kg. */
+  runnerMass: number;
+  /** Whole shot (parts + cold feed system), kg. */
+  shotMass: number;
+}
+
+/** Outcome of {@link runScenario}: a run, or issues / a failure as data. */
+export type RunOutcome =
+  | { ok: true; run: ScenarioRun }
+  | { ok: false; code: "invalid_scenario"; issues: ScenarioIssue[] }
+  | { ok: false; code: "simulation_failed"; message: string };
+
+/** Options of {@link runScenario}. */
+export interface RunScenarioOptions {
+  /** Progress callback, injected fraction 0…1. */
+  onProgress?: (fraction: number) => void;
+}
+
+/** The library's material ids, as the scenario parser wants them. */
+export const LIBRARY_MATERIAL_IDS: ReadonlySet<string> = new Set(materialIds());
+
+/** Validate raw JSON and run it. Never throws on bad input. */
+export function simulateScenario(input: unknown, options: RunScenarioOptions = {}): RunOutcome {
+  const parsed = parseScenario(input, { materialIds: LIBRARY_MATERIAL_IDS });
+  if (!parsed.ok) return { ok: false, code: "invalid_scenario", issues: parsed.issues };
+  return runScenario(parsed.scenario, options);
+}
+
+/** Resolve the scenario's material (library id or inline) to the SI domain type. */
+export function resolveMaterial(scenario: Scenario): Material {
+  const m = scenario.material;
+  if (typeof m === "string") {
+    const found = materialById(m);
+    if (!found) throw new RangeError(`Cannot resolve material: unknown id "${m}"`);
+    return toMaterial(found);
+  }
+  return toMaterial(m);
+}
+
+/** Fill process settings of a scenario, SI. */
+export function processOf(scenario: Scenario, network: FeedNetwork): FillProcess {
+  const p = scenario.process;
+  const shot = network.feedSystemVolume + network.cavityVolume;
+  const injectionRate = "flow_rate_cm3_s" in p.injection
+    ? cm3PerSToM3PerS(p.injection.flow_rate_cm3_s)
+    : shot / p.injection.fill_time_s;
+  const tip = scenario.feed.kind === "hot_drop" ? scenario.feed.tip_temperature_C : undefined;
+  return {
+    injectionRate,
+    switchoverFraction: p.switchover_percent / 100,
+    feedTemperature: cToK(tip ?? p.melt_temperature_C),
+    moldTemperature: cToK(p.mold_temperature_C),
+    isothermal: p.thermal === "isothermal",
+  };
+}
+
+/** The melt model the fill simulation uses, from a material. */
+export function meltModelOf(material: Material): MeltModel {
+  return {
+    curveAt: (temperature, pressure) => flowCurveAt(material, temperature, pressure),
+    meltDensity: material.meltDensity,
+    specificHeat: material.specificHeat,
+    diffusivity: material.thermalDiffusivity,
+    noFlowTemperature: material.noFlowTemperature,
+  };
+}
+
+/** Simulate a validated scenario: network, fill, freeze times, warnings, masses. */
+export function runScenario(scenario: Scenario, options: RunScenarioOptions = {}): RunOutcome {
+  const built = buildNetwork(scenario);
+  if (!built.ok) return { ok: false, code: "invalid_scenario", issues: built.issues };
+  const network = built.network;
+  const material = resolveMaterial(scenario);
+  const process = processOf(scenario, network);
+  const fill = simulateFill(network, {
+    melt: meltModelOf(material),
+    process,
+    onProgress: options.onProgress,
+  });
+  if (fill.diagnostics.stoppedBecause === "solver_failure") {
+    return { ok: false, code: "simulation_failed", message: fill.diagnostics.message };
+  }
+  const thermal: ThermalData = {
+    diffusivity: material.thermalDiffusivity,
+    meltTemperature: process.feedTemperature,
+    moldTemperature: process.moldTemperature,
+    noFlowTemperature: material.noFlowTemperature,
+    ejectionTemperature: material.ejectionTemperature,
+    maxShearRate: material.maxShearRate,
+  };
+  const freeze = freezeTimes(network, thermal);
+  const warnings = fillWarnings({ scenario, network, fill }, { thermal, freeze });
+  const partMasses = network.cavities.map((c) => c.volume * material.solidDensity);
+  const runnerMass = network.coldRunnerVolume * material.solidDensity;
+  const shotMass = partMasses.reduce((a, b) => a + b, 0) + runnerMass;
+  return {
+    ok: true,
+    run: {
+      scenario,
+      material,
+      network,
+      process,
+      fill,
+      freeze,
+      warnings,
+      cautions: CAUTIONS,
+      partMasses,
+      runnerMass,
+      shotMass,
+    },
+  };
+}
