@@ -16,6 +16,15 @@ export interface FlowCurve {
   stressSlope(shearRate: number): number;
   /** Set when the curve is an exact power law τ = K·γ̇ⁿ (n = 1: Newtonian). */
   readonly powerLaw?: { readonly consistency: number; readonly index: number };
+  /**
+   * Set when the curve is exactly the Cross model η = η0/(1 + (η0·γ̇/τ*)^(1−n)) (η0 in
+   * Pa·s, τ* in Pa, 0 < n < 1); the channel laws then use tabulated master curves.
+   */
+  readonly cross?: {
+    readonly zeroShearViscosity: number;
+    readonly tauStar: number;
+    readonly index: number;
+  };
 }
 
 /** Newtonian fluid, τ = μ·γ̇ (μ in Pa·s). */
@@ -75,5 +84,6 @@ export function crossCurve(
       const xm = Math.pow((eta0 * g) / tauStar, m);
       return (eta0 * (1 + n * xm)) / ((1 + xm) * (1 + xm));
     },
+    cross: { zeroShearViscosity: eta0, tauStar, index: n },
   };
 }

@@ -20,12 +20,15 @@
  * dI/dγ̇w comes from Leibniz's rule, and every Newton step only adds the integral over
  * the step, so a solve costs one full quadrature plus a few short ones. A cursor keeps
  * (ln γ̇w, I) between calls with the same curve and c, so a taper or a disk is integrated
- * from one full quadrature. Stops when |Δ ln γ̇w| < 1e-13; at most 60 steps.
+ * from one full quadrature. Stops when |Δ ln γ̇w| < 1e-13; at most 60 steps. Curves
+ * tagged `cross` are solved on the tabulated master curves of `_cross_master.ts` instead
+ * (same results to ≲ 1e-9 relative), falling back to this integral outside their domain.
  *
  * @module
  */
 import type { FlowCurve } from "../materials/flow_curve.ts";
 import { compositeRule, gaussLegendre } from "./_quadrature.ts";
+import { crossMasterWall } from "./_cross_master.ts";
 
 /** Kozicki constants of a section: a, b (dimensionless, a > 0, b > 0). */
 export interface KozickiConstants {
@@ -167,6 +170,21 @@ export function wallResponse(
     const shearRate = ((a + b * n) / n) * apparent;
     const stress = law.consistency * Math.pow(shearRate, n);
     return { shearRate, stress, dStressDApparent: (n * stress) / apparent };
+  }
+  const cross = curve.cross;
+  if (cross) {
+    // Tabulated master curve (see _cross_master.ts); null outside its domain.
+    const { zeroShearViscosity: eta0, tauStar } = cross;
+    const wall = crossMasterWall(cross.index, c, (a * apparent * eta0) / tauStar);
+    if (wall) {
+      const stress = tauStar * wall.stressRatio;
+      // dτw/dΓ = f'(γ̇w)·γ̇w/(Γ·φ'), f'·γ̇w = ν·τw.
+      return {
+        shearRate: (tauStar / eta0) * wall.x,
+        stress,
+        dStressDApparent: (wall.localIndex * stress) / (apparent * wall.logSlope),
+      };
+    }
   }
   const target = Math.log(a * apparent);
   // Start from the local power law at the Newtonian wall rate, refined once.

@@ -1,0 +1,234 @@
+/**
+ * Dimensionless master curves of the Kozicki wall integral for a Cross flow curve,
+ * private to `physics/`: the fast path of `_wall_shear.ts` for curves tagged `cross`.
+ *
+ * For τ = τ*·F(x), x = η0·γ̇/τ*, F(x) = x/(1 + x^m), m = 1 − n (Cross (1965) J. Colloid
+ * Sci. 20:417), the substitution γ̇ = x·τ* / η0 turns the wall integral of
+ * `_wall_shear.ts` (Kozicki, Chou & Tiu (1966) Chem. Eng. Sci. 21:665, eq. 23; for c = 3
+ * the Weissenberg–Rabinowitsch–Mooney equation, Bird, Armstrong & Hassager, *Dynamics of
+ * Polymeric Liquids* vol. 1, 2nd ed., §5.3) into
+ *
+ *   a·Γ·η0/τ* = G(x_w) = J(x_w)/F(x_w)^c,   J(x) = ∫₀^x F(t)^(c−1)·t·F'(t) dt,
+ *
+ * which depends only on n, c = b/a and the dimensionless wall shear rate x_w. The
+ * tabulated quantity is R(s) = ln J − c·ln F − s, s = ln x_w, which is bounded: it runs
+ * from the Newtonian −ln(c + 1) to the power-law ln(n/(n·c + 1)). Then ln G = R + s and
+ * φ' = d ln Γ/d ln γ̇w = 1 + R' = ν·(e^−R − c) with the local index
+ * ν = x·F'/F = (1 + n·x^m)/(1 + x^m), so R' at each node is exact given J.
+ *
+ * J is accumulated on a uniform grid in s over x ∈ [1e-8, 1e12] by 4-point
+ * Gauss–Legendre per cell (start value by 8-point panels over 40 units of s below the
+ * grid), and R is interpolated by cubic Hermite with those exact node slopes (error
+ * h⁴/384·max|R⁗|, h = 0.025). Circle (c = 3) and slit (c = 2) have their own tables;
+ * other c in [2, 3.25] are interpolated between tables at 9 Chebyshev points of c
+ * (barycentric form, Berrut & Trefethen (2004) SIAM Rev. 46:501), R being analytic in c.
+ * φ' is evaluated from the interpolated R by the exact formula above (relative error
+ * ≈ (n·c + 1)× that of R), not by differentiating the interpolant.
+ *
+ * Tables are built once per n (a few ms) and kept in a module-level Map; the c-family for
+ * general sections is built on first use. Outside the grid, outside n ∈ [0.05, 0.98] or
+ * c ∈ [2, 3.25] the caller falls back to the exact integral.
+ *
+ * @module
+ */
+import { compositeRule, gaussLegendre } from "./_quadrature.ts";
+
+/** Grid of the tables in s = ln x. */
+const S_MIN = Math.log(1e-8);
+const S_MAX = Math.log(1e12);
+const STEP = 0.025;
+const CELLS = Math.ceil((S_MAX - S_MIN) / STEP);
+const CELL_RULE = gaussLegendre(4);
+/** Quadrature of J below the grid: 40 units of s (integrand ∝ e^((c·n+1)s) at least). */
+const HEAD_RULE = compositeRule(Array.from({ length: 41 }, (_, k) => S_MIN - 40 + k), 8);
+
+/** Fast-path domain of n and c (validated by tests/physics/master_curve_test.ts). */
+const N_LO = 0.05;
+const N_HI = 0.98;
+const C_LO = 2;
+const C_HI = 3.25;
+const C_COUNT = 9;
+/** Chebyshev points of the second kind on [C_LO, C_HI], descending, and their weights. */
+const C_NODES = Array.from(
+  { length: C_COUNT },
+  (_, j) => 0.5 * (C_LO + C_HI) + 0.5 * (C_HI - C_LO) * Math.cos((j * Math.PI) / (C_COUNT - 1)),
+);
+C_NODES[0] = C_HI;
+C_NODES[C_COUNT - 1] = C_LO;
+const C_WEIGHTS = C_NODES.map((_, j) =>
+  (j % 2 === 0 ? 1 : -1) * (j === 0 || j === C_COUNT - 1 ? 0.5 : 1)
+);
+
+/** R and R' at the grid nodes s_k = S_MIN + k·STEP, k = 0…CELLS, for one c. */
+interface MasterTable {
+  readonly r: Float64Array;
+  readonly dr: Float64Array;
+}
+
+/** The master curves of one n. */
+interface CrossMaster {
+  readonly n: number;
+  circle?: MasterTable;
+  slit?: MasterTable;
+  family?: MasterTable[];
+}
+
+const masters = new Map<number, CrossMaster>();
+
+/** ln F and ln(x²·F') at s = ln x. */
+function logParts(s: number, n: number, m: number): { lnF: number; lnW: number } {
+  const xm = Math.exp(m * s);
+  const lnF = s - Math.log1p(xm);
+  // x²·F' = x²(1 + n·x^m)/(1 + x^m)²
+  const lnW = 2 * s + Math.log1p(n * xm) - 2 * Math.log1p(xm);
+  return { lnF, lnW };
+}
+
+/** Tables for several c at once (the integrand's F-dependent parts are shared). */
+function buildTables(n: number, cs: readonly number[]): MasterTable[] {
+  const m = 1 - n;
+  const k = cs.length;
+  const integral = new Float64Array(k);
+  const { nodes: hn, weights: hw } = HEAD_RULE;
+  for (let i = 0; i < hn.length; i++) {
+    const { lnF, lnW } = logParts(hn[i], n, m);
+    for (let j = 0; j < k; j++) integral[j] += hw[i] * Math.exp((cs[j] - 1) * lnF + lnW);
+  }
+  const tables = cs.map(() => ({
+    r: new Float64Array(CELLS + 1),
+    dr: new Float64Array(CELLS + 1),
+  }));
+  const record = (index: number) => {
+    const s = S_MIN + index * STEP;
+    const xm = Math.exp(m * s);
+    const lnF = s - Math.log1p(xm);
+    const nu = (1 + n * xm) / (1 + xm);
+    for (let j = 0; j < k; j++) {
+      const r = Math.log(integral[j]) - cs[j] * lnF - s;
+      tables[j].r[index] = r;
+      tables[j].dr[index] = nu * (Math.exp(-r) - cs[j]) - 1;
+    }
+  };
+  record(0);
+  const half = 0.5 * STEP;
+  for (let cell = 0; cell < CELLS; cell++) {
+    const mid = S_MIN + (cell + 0.5) * STEP;
+    for (let i = 0; i < CELL_RULE.nodes.length; i++) {
+      const { lnF, lnW } = logParts(mid + half * CELL_RULE.nodes[i], n, m);
+      const w = half * CELL_RULE.weights[i];
+      for (let j = 0; j < k; j++) integral[j] += w * Math.exp((cs[j] - 1) * lnF + lnW);
+    }
+    record(cell + 1);
+  }
+  return tables;
+}
+
+let lastMaster: CrossMaster | null = null;
+
+function masterOf(n: number): CrossMaster {
+  if (lastMaster !== null && lastMaster.n === n) return lastMaster;
+  let hit = masters.get(n);
+  if (!hit) {
+    hit = { n };
+    masters.set(n, hit);
+  }
+  lastMaster = hit;
+  return hit;
+}
+
+/** Hermite basis at fractional position t in a cell of width STEP. */
+function hermite(table: MasterTable, cell: number, t: number): number {
+  const t2 = t * t;
+  const u = 1 - t;
+  const u2 = u * u;
+  return (1 + 2 * t) * u2 * table.r[cell] + t * u2 * STEP * table.dr[cell] +
+    t2 * (3 - 2 * t) * table.r[cell + 1] - t2 * u * STEP * table.dr[cell + 1];
+}
+
+/** Barycentric weights for the current c (scratch, reused between calls). */
+const LW = new Float64Array(C_COUNT);
+
+/**
+ * Tables for (n, c): one table (circle, slit or a Chebyshev node), or the c-family with
+ * its barycentric weights for c written into LW; null if c is outside [C_LO, C_HI].
+ */
+function tablesFor(master: CrossMaster, c: number): MasterTable | MasterTable[] | null {
+  if (c === 3) return master.circle ??= buildTables(master.n, [3])[0];
+  if (c === 2) return master.slit ??= buildTables(master.n, [2])[0];
+  if (!(c >= C_LO && c <= C_HI)) return null;
+  const family = master.family ??= buildTables(master.n, C_NODES);
+  let total = 0;
+  for (let j = 0; j < C_COUNT; j++) {
+    if (c === C_NODES[j]) return family[j];
+    LW[j] = C_WEIGHTS[j] / (c - C_NODES[j]);
+    total += LW[j];
+  }
+  for (let j = 0; j < C_COUNT; j++) LW[j] /= total;
+  return family;
+}
+
+/** R(s) (s inside the grid) from one table or from the family weighted by LW. */
+function evalR(tables: MasterTable | MasterTable[], s: number): number {
+  const pos = (s - S_MIN) / STEP;
+  let cell = Math.floor(pos);
+  if (cell >= CELLS) cell = CELLS - 1;
+  const t = pos - cell;
+  if (!Array.isArray(tables)) return hermite(tables, cell, t);
+  let sum = 0;
+  for (let j = 0; j < C_COUNT; j++) sum += LW[j] * hermite(tables[j], cell, t);
+  return sum;
+}
+
+/** Dimensionless wall state: x_w, F(x_w), ν(x_w) and φ' = d ln Γ/d ln γ̇w. */
+export interface MasterWall {
+  /** x_w = η0·γ̇w/τ*. */
+  x: number;
+  /** F(x_w) = τw/τ*. */
+  stressRatio: number;
+  /** Local index ν = d ln τ/d ln γ̇ at the wall. */
+  localIndex: number;
+  /** φ' = d ln Γ/d ln γ̇w (> 0). */
+  logSlope: number;
+}
+
+/**
+ * Solve G(x_w) = g (g = a·Γ·η0/τ* > 0) for the Cross index n and ratio c = b/a, or
+ * null when (n, c, x_w) lies outside the tabulated domain (then use the exact integral).
+ */
+export function crossMasterWall(n: number, c: number, g: number): MasterWall | null {
+  if (!(n >= N_LO && n <= N_HI) || !(g > 0) || !Number.isFinite(g)) return null;
+  const tables = tablesFor(masterOf(n), c);
+  if (!tables) return null;
+  const m = 1 - n;
+  const target = Math.log(g);
+  // Newtonian start (R = −ln(c + 1)); φ ≈ s − const with slope ≈ 1, so Newton is fast.
+  let s = target + Math.log(c + 1);
+  for (let iter = 0; iter < 40; iter++) {
+    if (s < S_MIN || s > S_MAX) {
+      // Try once from the clamped end; a root outside the grid falls back.
+      const edge = s < S_MIN ? S_MIN : S_MAX;
+      const r = evalR(tables, edge);
+      if ((s < S_MIN && r + edge > target) || (s > S_MAX && r + edge < target)) return null;
+      s = edge;
+    }
+    const r = evalR(tables, s);
+    const xm = Math.exp(m * s);
+    const nu = (1 + n * xm) / (1 + xm);
+    const slope = nu * (Math.exp(-r) - c);
+    const step = (target - r - s) / slope;
+    s += step;
+    if (Math.abs(step) < 1e-12) {
+      if (s < S_MIN || s > S_MAX) return null;
+      const x = Math.exp(s);
+      const xmFinal = Math.exp(m * s);
+      const nuFinal = (1 + n * xmFinal) / (1 + xmFinal);
+      return {
+        x,
+        stressRatio: x / (1 + xmFinal),
+        localIndex: nuFinal,
+        logSlope: nuFinal * (Math.exp(-evalR(tables, s)) - c),
+      };
+    }
+  }
+  return null;
+}
