@@ -33,6 +33,8 @@ export interface ElementFigures {
   flowAtSwitchover: number;
   /** Peak true wall shear rate up to switchover, 1/s. */
   wallShearRatePeak: number;
+  /** Peak true wall shear rate while every cavity is still filling (before the first is full), 1/s. */
+  wallShearRatePeakBeforeFirstFull: number;
   /** Peak apparent (Newtonian) wall shear rate up to switchover, 1/s. */
   apparentShearRatePeak: number;
   /** Volume, m³. */
@@ -59,6 +61,11 @@ export interface CavityFigures {
   fillAtSwitchover: number;
   /** Peak true wall shear rate over its gates up to switchover, 1/s. */
   gateShearRatePeak: number;
+  /**
+   * The same peak while every cavity is still filling: the shear of the balanced split,
+   * without the surge a cavity takes once others are full (smooth in the sizes).
+   */
+  gateShearRatePeakBeforeFirstFull: number;
   /** Id of the gate with that peak. */
   gateAtPeak: string;
   /** Pressure drop over its gate(s) at switchover (largest), Pa. */

@@ -400,6 +400,7 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
   // --- records --------------------------------------------------------------
   const history: FillSample[] = [];
   const shearPeak = new Float64Array(E);
+  const shearPeakEarly = new Float64Array(E);
   const apparentPeak = new Float64Array(E);
   const cavityFullTime = network.cavities.map(() => NaN);
   let fillAtFirstFull: number[] | undefined;
@@ -457,8 +458,15 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
     if (t <= switchoverTime * (1 + 1e-12)) {
       feedPressurePeak = Math.max(feedPressurePeak, feedPressure);
       clampForcePeak = Math.max(clampForcePeak, force);
+      const beforeFirstFull = cavityFullTime.every((x) => Number.isNaN(x));
       s.assembly.branches.forEach((br, k) => {
         shearPeak[br.element] = Math.max(shearPeak[br.element], s.channel[k].wallShearRate);
+        if (beforeFirstFull) {
+          shearPeakEarly[br.element] = Math.max(
+            shearPeakEarly[br.element],
+            s.channel[k].wallShearRate,
+          );
+        }
         apparentPeak[br.element] = Math.max(
           apparentPeak[br.element],
           s.channel[k].apparentWallShearRate,
@@ -708,6 +716,7 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
       pressureDropAtSwitchover: k >= 0 ? sw.channel[k].pressureDrop : 0,
       flowAtSwitchover: k >= 0 ? sw.flows[k] : 0,
       wallShearRatePeak: shearPeak[e.index],
+      wallShearRatePeakBeforeFirstFull: shearPeakEarly[e.index],
       apparentShearRatePeak: apparentPeak[e.index],
       volume: e.volume,
       fullTime: fullTime[e.index],
@@ -720,7 +729,9 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
     let peak = 0;
     let gateAtPeak = elements[c.gates[0]].id;
     let gateDrop = 0;
+    let early = 0;
     for (const g of c.gates) {
+      early = Math.max(early, shearPeakEarly[g]);
       if (shearPeak[g] >= peak) {
         peak = shearPeak[g];
         gateAtPeak = elements[g].id;
@@ -737,6 +748,7 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
         : Math.min(1, fill[2 * c.element] / c.volume),
       fillAtSwitchover: historyFillAt(history, Math.min(switchoverTime, t), i),
       gateShearRatePeak: peak,
+      gateShearRatePeakBeforeFirstFull: early,
       gateAtPeak,
       gatePressureDrop: gateDrop,
       inletPressureAtSwitchover: Number.isFinite(p) ? p : 0,
