@@ -1,0 +1,455 @@
+import type { Scenario } from "../model/scenario_schema.ts";
+import { mToMm } from "../model/units.ts";
+import { type DesignSpace, designSpace } from "./design_space.ts";
+import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
+import { createHighsSolver } from "./highs_solver.ts";
+import type { LinearProgram, LpRow, LpSolver, LpVariable } from "./lp_solver.ts";
+import { finiteDifferenceSensitivities, type Sensitivities } from "./sensitivities.ts";
+import { snapDesign, type SnapReport } from "./snap_design.ts";
+
+/**
+ * Balancing by sequential linear programming (SLP) with a trust region.
+ *
+ * Problem: minimise the cold runner volume V(x) over the adjustable sizes x,
+ * subject to fill-time imbalance ≤ ε (written as t_i ≤ τ and t_i ≥ (1 − ε)τ for
+ * every cavity with one free reference time τ), every gate's peak wall shear ≤
+ * the resin's limit, peak feed pressure ≤ fraction × machine, each feeding runner
+ * ≥ the runner it feeds, and the bounds of the design space.
+ *
+ * Iteration (Fletcher's Sℓ₁LP form of SLP: Fletcher & de la Maza (1989) Math.
+ * Programming 43:235; trust-region ratio test as in Conn, Gould & Toint,
+ * *Trust-Region Methods*, 2000, ch. 6): linearise every response around the
+ * current design (finite differences on the full simulation), solve the LP in
+ * trust-region units u = δ/Δ (|u| ≤ 1) with penalised slacks on every linearised
+ * constraint (so the LP is always feasible), re-simulate the step, and accept it
+ * if the true ℓ₁ merit φ = V/V₀ + M·violation falls by at least 10 % of the LP's
+ * predicted fall; the trust region doubles after a good step that reached its
+ * edge and halves after a rejected one. Stops: converged (feasible and the
+ * predicted gain below 1e-4, or the region below 0.2 % of the sizes), infeasible
+ * (the region has collapsed with limits still violated), iteration limit, or
+ * cancelled. Every accepted design is a full simulation, never the linear model.
+ */
+
+/** Why the optimizer stopped. */
+export type BalanceStatus = "converged" | "infeasible" | "iteration_limit" | "cancelled";
+
+/** One SLP iteration, for the history and progress reports. */
+export interface BalanceIteration {
+  iteration: number;
+  accepted: boolean;
+  imbalancePercent: number;
+  feedPressurePeak: number;
+  runnerVolume: number;
+  merit: number;
+  predictedReduction: number;
+  actualReduction: number;
+  trustRadius: number;
+  simulations: number;
+}
+
+/** Options of {@link optimizeBalance}. */
+export interface OptimizeBalanceOptions {
+  /** Iteration limit (default 40). */
+  maxIterations?: number;
+  /** LP adapter (default: HiGHS). */
+  solver?: LpSolver;
+  /** Called after every iteration. */
+  onProgress?: (iteration: BalanceIteration) => void;
+  /** Polled between iterations; true stops with status "cancelled". */
+  cancelled?: () => boolean;
+  /** Skip the cutter snapping (continuous answer only). Default false. */
+  continuousOnly?: boolean;
+}
+
+/** What the optimizer found. */
+export interface BalanceOutcome {
+  status: BalanceStatus;
+  reason: string;
+  space: DesignSpace;
+  before: DesignEvaluation;
+  /** The continuous optimum (before snapping). */
+  continuous: DesignEvaluation;
+  /** The final design: snapped to the cutter catalogue (or = continuous). */
+  after: DesignEvaluation;
+  snap?: SnapReport;
+  iterations: BalanceIteration[];
+  simulations: number;
+  /** When infeasible: changes outside today's bounds that the linear model says would help. */
+  wouldNeed: string[];
+}
+
+/** Expected failures as values. */
+export type BalanceResult =
+  | { ok: true; outcome: BalanceOutcome }
+  | {
+    ok: false;
+    code: "bounds_conflict" | "no_variables" | "simulation_failed" | "lp_failed";
+    message: string;
+  };
+
+/** Penalty weight of a unit of (relative) constraint violation against the relative volume. */
+const PENALTY = 20;
+
+/** Balance a validated scenario. */
+export async function optimizeBalance(
+  scenario: Scenario,
+  options: OptimizeBalanceOptions = {},
+): Promise<BalanceResult> {
+  const space = designSpace(scenario);
+  if (space.variables.length === 0) {
+    return {
+      ok: false,
+      code: "no_variables",
+      message: "No element is marked adjustable: nothing to change.",
+    };
+  }
+  if (space.conflicts.length > 0) {
+    return {
+      ok: false,
+      code: "bounds_conflict",
+      message: `Size bounds cannot all hold: ${space.conflicts.join("; ")}`,
+    };
+  }
+  const solver = options.solver ?? await createHighsSolver();
+  const maxIterations = options.maxIterations ?? 40;
+  let simulations = 0;
+
+  const evaluate = (x: Float64Array) => {
+    simulations++;
+    return evaluateDesign(space, x);
+  };
+
+  const start = Float64Array.from(
+    space.variables,
+    (v) => Math.min(v.upper, Math.max(v.lower, v.current)),
+  );
+  const beforeOutcome = evaluate(Float64Array.from(space.variables, (v) => v.current));
+  if (!beforeOutcome.ok) {
+    return { ok: false, code: "simulation_failed", message: beforeOutcome.message };
+  }
+  const before = beforeOutcome.evaluation;
+  let currentOutcome = start.every((v, j) => v === space.variables[j].current)
+    ? beforeOutcome
+    : evaluate(start);
+  if (!currentOutcome.ok) {
+    return { ok: false, code: "simulation_failed", message: currentOutcome.message };
+  }
+  let current = currentOutcome.evaluation;
+  const V0 = before.runnerVolume;
+  const epsilon = scenario.goals.max_imbalance_percent / 100;
+  const merit = (e: DesignEvaluation) => e.runnerVolume / V0 + PENALTY * violation(e, epsilon);
+
+  let radius = 0.2; // trust region as a fraction of each size
+  const iterations: BalanceIteration[] = [];
+  let status: BalanceStatus = "iteration_limit";
+  let reason = `stopped after ${maxIterations} iterations`;
+  let lastLinear: { sens: Sensitivities; program: ReturnType<typeof buildProgram> } | undefined;
+  let sens: Sensitivities | undefined;
+
+  for (let iteration = 1; iteration <= maxIterations; iteration++) {
+    if (options.cancelled?.()) {
+      status = "cancelled";
+      reason = "cancelled by request";
+      break;
+    }
+    if (!sens) {
+      const s = finiteDifferenceSensitivities(space, current);
+      if ("failure" in s) return { ok: false, code: "simulation_failed", message: s.failure };
+      simulations += s.simulations;
+      sens = s;
+    }
+    const program = buildProgram(space, current, sens, { radius, epsilon, V0 });
+    lastLinear = { sens, program };
+    const lp = await solver.solve(program.lp, { timeLimitSeconds: 20 });
+    if (lp.status !== "optimal") {
+      return {
+        ok: false,
+        code: "lp_failed",
+        message: `LP step ${iteration}: ${lp.status} ${"message" in lp ? lp.message : ""}`,
+      };
+    }
+    const step = program.toDesign(lp.x);
+    const meritNow = merit(current);
+    const predicted = program.linearMeritAtZero - lp.objective;
+    const trialOutcome = evaluate(step.x);
+    let accepted = false;
+    let actual = 0;
+    if (trialOutcome.ok) {
+      const trial = trialOutcome.evaluation;
+      actual = meritNow - merit(trial);
+      accepted = predicted > 0 && actual >= 0.1 * predicted;
+      if (accepted) {
+        const good = actual >= 0.75 * predicted;
+        current = trial;
+        currentOutcome = trialOutcome;
+        sens = undefined;
+        if (good && step.atEdge) radius = Math.min(0.5, radius * 2);
+      } else radius *= 0.5;
+    } else radius *= 0.5;
+    const record: BalanceIteration = {
+      iteration,
+      accepted,
+      imbalancePercent: current.imbalancePercent,
+      feedPressurePeak: current.feedPressurePeak,
+      runnerVolume: current.runnerVolume,
+      merit: merit(current),
+      predictedReduction: predicted,
+      actualReduction: actual,
+      trustRadius: radius,
+      simulations,
+    };
+    iterations.push(record);
+    options.onProgress?.(record);
+    const feasible = violation(current, epsilon) === 0;
+    if (feasible && predicted < 1e-4) {
+      status = "converged";
+      reason =
+        "every limit met and no step the linear model trusts lowers the runner volume further";
+      break;
+    }
+    if (radius < 2e-3) {
+      status = feasible ? "converged" : "infeasible";
+      reason = feasible
+        ? "every limit met; the trust region has shrunk to below 0.2 % of the sizes"
+        : "limits still violated and no step within the bounds improves them";
+      break;
+    }
+  }
+
+  if (status === "converged" && !current.feasible) {
+    status = "infeasible";
+    reason = "the smooth model's limits are met, but the simulated design still breaks a limit";
+  }
+  const wouldNeed = status === "infeasible" && lastLinear
+    ? await explainInfeasible(space, current, lastLinear.sens, solver, { epsilon, V0 })
+    : [];
+  if (status === "infeasible") {
+    reason +=
+      `; best imbalance reached ${
+        current.imbalancePercent.toFixed(2)
+      } % (target ${scenario.goals.max_imbalance_percent} %)` +
+      `; binding: ${current.violations.map((v) => v.message).join("; ") || "none"}`;
+  }
+
+  let after = current;
+  let snap: SnapReport | undefined;
+  if (!options.continuousOnly) {
+    const snapped = snapDesign(space, current, sens ?? lastLinear?.sens, { merit });
+    simulations += snapped.simulations;
+    after = snapped.evaluation;
+    snap = snapped;
+  }
+  return {
+    ok: true,
+    outcome: {
+      status,
+      reason,
+      space,
+      before,
+      continuous: current,
+      after,
+      snap,
+      iterations,
+      simulations,
+      wouldNeed,
+    },
+  };
+}
+
+/**
+ * Violation of the goals in log measure (0 when every limit is met): the ℓ₁ log-band
+ * distance of the fill times, plus ln(value/limit) for each gate's shear and the feed
+ * pressure when over. Log measure makes power-law responses linear in log sizes.
+ */
+export function violation(e: DesignEvaluation, epsilon: number): number {
+  let v = imbalanceViolation(e.fillTimes, epsilon);
+  for (const s of e.gateShearBalanced) v += Math.max(0, Math.log(s / e.gateShearLimit));
+  v += Math.max(0, Math.log(e.feedPressurePeak / e.pressureLimit));
+  for (const x of e.violations) {
+    if (x.code === "not_filled") v += 1;
+    if (x.code === "ordering") v += Math.log(1 + x.excess);
+  }
+  return v;
+}
+
+/**
+ * ℓ₁ distance of the log fill times from a band [ln τ + ln(1 − ε), ln τ], minimised
+ * over τ: zero exactly when (t_max − t_min)/t_max ≤ ε. Piecewise linear and convex in
+ * ln τ, so the minimum sits at a breakpoint ln t_i or ln t_i − ln(1 − ε).
+ */
+export function imbalanceViolation(times: readonly number[], epsilon: number): number {
+  if (times.some((t) => !(t > 0 && Number.isFinite(t)))) return 1;
+  const logs = times.map(Math.log);
+  const width = -Math.log(1 - epsilon);
+  let best = Infinity;
+  for (const l of logs) {
+    for (const top of [l, l + width]) {
+      let sum = 0;
+      for (const li of logs) sum += Math.max(0, li - top) + Math.max(0, top - width - li);
+      best = Math.min(best, sum);
+    }
+  }
+  return best <= 1e-12 ? 0 : best;
+}
+
+interface ProgramOptions {
+  radius: number;
+  epsilon: number;
+  V0: number;
+  /** Ignore the design space's lower/upper bounds and use these (for the infeasibility explanation). */
+  bounds?: { lower: number[]; upper: number[] };
+}
+
+/**
+ * The LP of one SLP step in log sizes: x_j → x_j·exp(Δ·u_j), |u_j| ≤ 1, Δ = radius.
+ * Fill times, gate shear and pressure are linearised in log–log form (exact for
+ * power laws), so rows read ln r + Σ (∂ln r/∂ln x_j)·Δ·u_j ≤ ln limit + slack.
+ * Columns: u (n), v = ln τ − ln t_max, then one slack per linearised row.
+ */
+function buildProgram(
+  space: DesignSpace,
+  e: DesignEvaluation,
+  s: Sensitivities,
+  o: ProgramOptions,
+) {
+  const n = space.variables.length;
+  const x = e.x;
+  const R = o.radius;
+  const variables: LpVariable[] = [];
+  const rows: LpRow[] = [];
+  space.variables.forEach((v, j) => {
+    const lower = o.bounds ? o.bounds.lower[j] : v.lower;
+    const upper = o.bounds ? o.bounds.upper[j] : v.upper;
+    variables.push({
+      name: `u_${v.element}`,
+      lower: Math.min(0, Math.max(-1, Math.log(lower / x[j]) / R)),
+      upper: Math.max(0, Math.min(1, Math.log(upper / x[j]) / R)),
+      cost: (s.runnerVolume[j] * x[j] * R) / o.V0,
+    });
+  });
+  const logSlope = (row: readonly number[], value: number): [number, number][] =>
+    space.variables.map((_, j) => [j, (row[j] * x[j] * R) / value] as [number, number]);
+  const tMax = Math.max(...e.fillTimes);
+  const band = -Math.log(1 - o.epsilon);
+  const w = variables.length;
+  variables.push({ name: "v", lower: -1, upper: 1, cost: 0 });
+  let linearMeritAtZero = e.runnerVolume / o.V0 +
+    PENALTY * imbalanceViolation(e.fillTimes, o.epsilon);
+  const slack = (name: string) => {
+    variables.push({ name, lower: 0, upper: Infinity, cost: PENALTY });
+    return variables.length - 1;
+  };
+  e.fillTimes.forEach((t, i) => {
+    const lt = Math.log(t / tMax);
+    const slope = logSlope(s.fillTime[i], t);
+    const late = slack(`s_late_${i}`);
+    rows.push({
+      name: `late_${i}`,
+      terms: [...slope, [w, -1], [late, -1]],
+      lower: -Infinity,
+      upper: -lt,
+    });
+    const early = slack(`s_early_${i}`);
+    rows.push({
+      name: `early_${i}`,
+      terms: [...slope.map(([j, c]) => [j, -c] as [number, number]), [w, 1], [early, -1]],
+      lower: -Infinity,
+      upper: lt + band,
+    });
+  });
+  e.gateShearBalanced.forEach((g, i) => {
+    if (!(g > 0)) return;
+    const over = Math.log(g / e.gateShearLimit);
+    linearMeritAtZero += PENALTY * Math.max(0, over);
+    const k = slack(`s_shear_${i}`);
+    rows.push({
+      name: `shear_${i}`,
+      terms: [...logSlope(s.gateShear[i], g), [k, -1]],
+      lower: -Infinity,
+      upper: -over,
+    });
+  });
+  const over = Math.log(e.feedPressurePeak / e.pressureLimit);
+  linearMeritAtZero += PENALTY * Math.max(0, over);
+  const kp = slack("s_pressure");
+  rows.push({
+    name: "pressure",
+    terms: [...logSlope(s.pressure, e.feedPressurePeak), [kp, -1]],
+    lower: -Infinity,
+    upper: -over,
+  });
+  // Feeding runner ≥ fed runner, in logs: ln x_a + Δu_a ≥ ln x_b + Δu_b; never worse than today.
+  for (const rule of space.ordering) {
+    const a = rule.upstream;
+    const b = rule.downstream;
+    const gap = Math.log(x[a] / x[b]);
+    rows.push({
+      name: `order_${space.variables[a].element}_${space.variables[b].element}`,
+      terms: [[a, R], [b, -R]],
+      lower: Math.min(0, -gap),
+      upper: Infinity,
+    });
+  }
+  const lp: LinearProgram = { sense: "minimize", variables, rows };
+  return {
+    lp,
+    linearMeritAtZero,
+    toDesign: (solution: Float64Array) => {
+      const next = new Float64Array(n);
+      let atEdge = false;
+      for (let j = 0; j < n; j++) {
+        const v = space.variables[j];
+        next[j] = Math.min(v.upper, Math.max(v.lower, x[j] * Math.exp(R * solution[j])));
+        if (Math.abs(Math.abs(solution[j]) - 1) < 1e-6) atEdge = true;
+      }
+      return { x: next, atEdge };
+    },
+  };
+}
+
+/**
+ * For an infeasible outcome: solve the last linear model again with the mode's and
+ * the size rules' bounds lifted (scenario min/max only, a generous region) and list
+ * the sizes that would have to leave today's bounds.
+ */
+async function explainInfeasible(
+  space: DesignSpace,
+  e: DesignEvaluation,
+  s: Sensitivities,
+  solver: LpSolver,
+  o: { epsilon: number; V0: number },
+): Promise<string[]> {
+  const lower = space.variables.map((v) => v.current * 0.3);
+  const upper = space.variables.map((v) => v.current * 3);
+  const program = buildProgram(space, e, s, {
+    radius: 1,
+    epsilon: o.epsilon,
+    V0: o.V0,
+    bounds: { lower, upper },
+  });
+  const lp = await solver.solve(program.lp, { timeLimitSeconds: 20 });
+  if (lp.status !== "optimal") return [];
+  const proposal = space.variables.map((_, j) => e.x[j] * Math.exp(lp.x[j]));
+  const needs: string[] = [];
+  space.variables.forEach((v, j) => {
+    const want = proposal[j];
+    if (want < v.lower * (1 - 1e-3)) {
+      needs.push(
+        `${v.element} would have to go down to about ${
+          mToMm(want).toFixed(2)
+        } mm, below its ${v.lowerReason} (${mToMm(v.lower).toFixed(2)} mm)${
+          v.lowerReason.startsWith("steel-safe")
+            ? ": not steel-safe, needs steel added (weld or insert)"
+            : ""
+        }`,
+      );
+    } else if (want > v.upper * (1 + 1e-3)) {
+      needs.push(
+        `${v.element} would have to grow to about ${
+          mToMm(want).toFixed(2)
+        } mm, beyond ${v.upperReason} (${mToMm(v.upper).toFixed(2)} mm)`,
+      );
+    }
+  });
+  return needs;
+}

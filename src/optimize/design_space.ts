@@ -1,0 +1,229 @@
+import type { Scenario } from "../model/scenario_schema.ts";
+import { mmToM, mToMm } from "../model/units.ts";
+
+/**
+ * The design variables of a scenario: one size per element marked
+ * `adjustable` (runner diameter; gate thickness for edge gates, diameter for
+ * pin and tunnel gates), with bounds from the scenario, the size rules and the
+ * mode. Sizes are in metres here; `applyDesign` writes them back in mm.
+ *
+ * @module
+ */
+
+/** One adjustable size. */
+export interface DesignVariable {
+  /** Element id in the scenario. */
+  element: string;
+  kind: "runner" | "gate";
+  /** Which dimension changes. */
+  dimension: "diameter" | "thickness";
+  /** Index in `scenario.runners` or `scenario.gates`. */
+  index: number;
+  /** Today's size, m. */
+  current: number;
+  /** Bounds, m, after scenario limits, size rules and mode. */
+  lower: number;
+  upper: number;
+  /** Why the bounds are what they are, for an infeasibility report. */
+  lowerReason: string;
+  upperReason: string;
+}
+
+/** Pairs (upstream, downstream) of runner variables: the feeding runner is never the smaller one. */
+export interface OrderingRule {
+  upstream: number;
+  downstream: number;
+}
+
+/** The design space of a scenario. */
+export interface DesignSpace {
+  scenario: Scenario;
+  variables: DesignVariable[];
+  ordering: OrderingRule[];
+  /** Variables whose bounds cross (lower > upper): the goals cannot be met as stated. */
+  conflicts: string[];
+}
+
+/** Runner-size rule: runner ≥ wall + 1.5 mm (common practice, no source). */
+export const RUNNER_OVER_WALL_MM = 1.5;
+/** Tunnel and pin gate diameter 25–60 % of the wall (common practice, no source). */
+export const ROUND_GATE_WALL_FRACTION = [0.25, 0.6] as const;
+/** Edge gate depth 50–80 % of the wall (common practice, no source). */
+export const EDGE_GATE_WALL_FRACTION = [0.5, 0.8] as const;
+
+/** Build the design space of a validated scenario. */
+export function designSpace(scenario: Scenario): DesignSpace {
+  const rules = scenario.goals.size_rules;
+  const steelSafe = scenario.goals.mode === "steel_safe";
+  const wall = new Map(scenario.cavities.map((c) => [c.id, c.wall_mm]));
+  const downstreamWall = thickestDownstreamWall(scenario);
+  const variables: DesignVariable[] = [];
+  const conflicts: string[] = [];
+
+  const push = (
+    v: Omit<DesignVariable, "lower" | "upper" | "lowerReason" | "upperReason">,
+    bounds: {
+      lower: [number, string][];
+      upper: [number, string][];
+    },
+  ) => {
+    let lower = -Infinity;
+    let lowerReason = "";
+    for (const [value, why] of bounds.lower) {
+      if (value > lower) {
+        lower = value;
+        lowerReason = why;
+      }
+    }
+    let upper = Infinity;
+    let upperReason = "";
+    for (const [value, why] of bounds.upper) {
+      if (value < upper) {
+        upper = value;
+        upperReason = why;
+      }
+    }
+    if (lower > upper * (1 + 1e-12)) {
+      conflicts.push(
+        `${v.element}: ${lowerReason} (${mToMm(lower).toFixed(2)} mm) is above ${upperReason} (${
+          mToMm(upper).toFixed(2)
+        } mm)`,
+      );
+    }
+    variables.push({ ...v, lower, upper, lowerReason, upperReason });
+  };
+
+  scenario.runners.forEach((r, index) => {
+    if (!r.adjustable) return;
+    const d = r.diameter_mm;
+    const lower: [number, string][] = [[
+      mmToM(r.min_diameter_mm ?? Math.max(2, d / 2)),
+      "min_diameter_mm",
+    ]];
+    const upper: [number, string][] = [[
+      mmToM(r.max_diameter_mm ?? Math.min(20, 2 * d)),
+      "max_diameter_mm",
+    ]];
+    const w = downstreamWall.get(r.id);
+    if (rules && w !== undefined) {
+      lower.push([mmToM(w + RUNNER_OVER_WALL_MM), "runner ≥ wall + 1.5 mm rule"]);
+    }
+    if (steelSafe) lower.push([mmToM(d), "steel-safe: today's size"]);
+    push({ element: r.id, kind: "runner", dimension: "diameter", index, current: mmToM(d) }, {
+      lower,
+      upper,
+    });
+  });
+
+  scenario.gates.forEach((g, index) => {
+    if (!g.adjustable) return;
+    const w = wall.get(g.cavity)!;
+    const edge = g.type === "edge";
+    const size = edge ? g.thickness_mm : g.diameter_mm;
+    const min = edge ? g.min_thickness_mm : g.min_diameter_mm;
+    const max = edge ? g.max_thickness_mm : g.max_diameter_mm;
+    const field = edge ? "thickness" : "diameter";
+    const lower: [number, string][] = [[mmToM(min ?? size / 2), `min_${field}_mm`]];
+    const upper: [number, string][] = [
+      [mmToM(max ?? size * 2), `max_${field}_mm`],
+      [mmToM(w), "the cavity wall"],
+    ];
+    if (rules) {
+      const [lo, hi] = edge ? EDGE_GATE_WALL_FRACTION : ROUND_GATE_WALL_FRACTION;
+      lower.push([mmToM(lo * w), `gate ≥ ${lo * 100} % of wall rule`]);
+      upper.push([mmToM(hi * w), `gate ≤ ${hi * 100} % of wall rule`]);
+    }
+    if (steelSafe) lower.push([mmToM(size), "steel-safe: today's size"]);
+    push({
+      element: g.id,
+      kind: "gate",
+      dimension: edge ? "thickness" : "diameter",
+      index,
+      current: mmToM(size),
+    }, {
+      lower,
+      upper,
+    });
+  });
+
+  return { scenario, variables, ordering: runnerOrdering(scenario, variables), conflicts };
+}
+
+/** Today's sizes as a vector, m. */
+export function currentDesign(space: DesignSpace): Float64Array {
+  return Float64Array.from(space.variables, (v) => v.current);
+}
+
+/** A copy of the scenario with the sizes `x` (m) written into it (mm, rounded to 1 nm). */
+export function applyDesign(space: DesignSpace, x: ArrayLike<number>): Scenario {
+  const s: Scenario = structuredClone(space.scenario);
+  space.variables.forEach((v, j) => {
+    const mm = Math.round(mToMm(x[j]) * 1e6) / 1e6;
+    if (v.kind === "runner") s.runners[v.index].diameter_mm = mm;
+    else {
+      const g = s.gates[v.index];
+      if (g.type === "edge") g.thickness_mm = mm;
+      else g.diameter_mm = mm;
+    }
+  });
+  return s;
+}
+
+/** For each runner id, the thickest wall of the cavities downstream of it (mm). */
+function thickestDownstreamWall(scenario: Scenario): Map<string, number> {
+  const { parentOf, downNode } = runnerTree(scenario);
+  const wall = new Map(scenario.cavities.map((c) => [c.id, c.wall_mm]));
+  const runnerInto = new Map<string, string>();
+  for (const [runner, node] of downNode) runnerInto.set(node, runner);
+  const result = new Map<string, number>();
+  for (const g of scenario.gates) {
+    const w = wall.get(g.cavity)!;
+    let runner = runnerInto.get(g.from);
+    while (runner !== undefined) {
+      result.set(runner, Math.max(result.get(runner) ?? 0, w));
+      runner = parentOf.get(runner);
+    }
+  }
+  return result;
+}
+
+/** The runner tree by breadth-first search from the feed node: each runner's upstream runner. */
+function runnerTree(
+  scenario: Scenario,
+): { parentOf: Map<string, string | undefined>; downNode: Map<string, string> } {
+  const parentOf = new Map<string, string | undefined>();
+  const downNode = new Map<string, string>();
+  const reachedBy = new Map<string, string | undefined>([[scenario.feed.node, undefined]]);
+  const queue = [scenario.feed.node];
+  while (queue.length > 0) {
+    const node = queue.shift()!;
+    for (const r of scenario.runners) {
+      if (parentOf.has(r.id)) continue;
+      const other = r.from === node ? r.to : r.to === node ? r.from : undefined;
+      if (other === undefined) continue;
+      parentOf.set(r.id, reachedBy.get(node));
+      downNode.set(r.id, other);
+      if (!reachedBy.has(other)) {
+        reachedBy.set(other, r.id);
+        queue.push(other);
+      }
+    }
+  }
+  return { parentOf, downNode };
+}
+
+function runnerOrdering(scenario: Scenario, variables: readonly DesignVariable[]): OrderingRule[] {
+  const { parentOf } = runnerTree(scenario);
+  const index = new Map<string, number>();
+  variables.forEach((v, j) => {
+    if (v.kind === "runner") index.set(v.element, j);
+  });
+  const rules: OrderingRule[] = [];
+  for (const [runner, parent] of parentOf) {
+    if (parent === undefined) continue;
+    const down = index.get(runner);
+    const up = index.get(parent);
+    if (down !== undefined && up !== undefined) rules.push({ upstream: up, downstream: down });
+  }
+  return rules;
+}
