@@ -431,9 +431,11 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
       if (Number.isFinite(p)) force += c.projectedArea * p;
     }
     // Pruned full runners and gates sit at their neighbours' pressure; count them too.
+    const inAssembly = new Uint8Array(E);
+    for (const br of s.assembly.branches) inAssembly[br.element] = 1;
     for (const e of elements) {
       if (e.kind === "cavity" || e.projectedArea === 0 || !isFull(e.index)) continue;
-      if (s.assembly.branches.some((br) => br.element === e.index)) continue;
+      if (inAssembly[e.index]) continue;
       const pa = s.pressure[e.from];
       const pb = s.pressure[e.to];
       const p = Number.isFinite(pa) ? pa : Number.isFinite(pb) ? pb : 0;
