@@ -13,11 +13,14 @@ import { LIBRARY_MATERIAL_IDS, runScenario } from "./network/simulate_scenario.t
 import { fillHistoryCsv } from "./report/fill_csv.ts";
 import { resultJson } from "./report/result_json.ts";
 import { textReport } from "./report/text_report.ts";
+import { optimizeBalance } from "./optimize/balance.ts";
+import { optimizationJson, optimizationText } from "./report/optimization_report.ts";
 
 const USAGE = `evenfill — runner balancing for multi-cavity and family molds
 
 usage:
   evenfill simulate <scenario.json> [--json] [--history] [--csv] [--units metric|dual]
+  evenfill optimize <scenario.json> [--mode new_tool|trim|steel_safe] [--json]
   evenfill validate <scenario.json>
   evenfill materials
   evenfill schema [--write <path>]
@@ -32,7 +35,7 @@ interface Args {
 function parseArgs(argv: readonly string[]): Args {
   const positional: string[] = [];
   const flags = new Map<string, string | true>();
-  const valued = new Set(["units", "write"]);
+  const valued = new Set(["units", "write", "mode"]);
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i];
     if (a.startsWith("--")) {
@@ -110,6 +113,39 @@ export async function main(argv: readonly string[]): Promise<number> {
           JSON.stringify(resultJson(outcome.run, { history: args.flags.has("history") }), null, 2),
         );
       } else console.log(textReport(outcome.run, { units }).trimEnd());
+      return 0;
+    }
+    case "optimize": {
+      const read = await readScenario(args.positional[0]);
+      if (read.scenario === undefined) {
+        if (read.message) console.error(read.message);
+        return read.exit;
+      }
+      const mode = args.flags.get("mode");
+      if (mode !== undefined) {
+        if (mode !== "new_tool" && mode !== "trim" && mode !== "steel_safe") {
+          console.error(`--mode must be new_tool, trim or steel_safe, got ${mode}`);
+          return 1;
+        }
+        read.scenario.goals.mode = mode;
+      }
+      const result = await optimizeBalance(read.scenario, {
+        onProgress: (i) =>
+          console.error(
+            `iteration ${i.iteration}: ${i.accepted ? "accepted" : "rejected"}, imbalance ${
+              i.imbalancePercent.toFixed(2)
+            } %, peak ${(i.feedPressurePeak / 1e6).toFixed(1)} MPa, runner ${
+              (i.runnerVolume * 1e6).toFixed(2)
+            } cm³, ${i.simulations} simulations`,
+          ),
+      });
+      if (!result.ok) {
+        console.error(`Optimization failed (${result.code}): ${result.message}`);
+        return 3;
+      }
+      if (args.flags.has("json")) {
+        console.log(JSON.stringify(optimizationJson(result.outcome), null, 2));
+      } else console.log(optimizationText(result.outcome).trimEnd());
       return 0;
     }
     case "validate": {

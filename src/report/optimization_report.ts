@@ -1,0 +1,100 @@
+import type { BalanceOutcome } from "../optimize/balance.ts";
+import { type Change, changeList, dualSize } from "../optimize/change_list.ts";
+import { m3ToCm3, mToInch, mToMm, paToMpa } from "../model/units.ts";
+import { resultJson } from "./result_json.ts";
+
+/** Wire format of an optimization (`evenfill.optimization/1`). */
+export const OPTIMIZATION_FORMAT = "evenfill.optimization/1";
+
+/** The optimization JSON of product.md, with the change list in order of work. */
+export function optimizationJson(outcome: BalanceOutcome, changes: Change[] = changeList(outcome)) {
+  return {
+    format: OPTIMIZATION_FORMAT,
+    status: outcome.status,
+    reason: outcome.reason,
+    would_need: outcome.wouldNeed,
+    snapping: outcome.snap?.message ?? null,
+    simulations: outcome.simulations,
+    before: resultJson(outcome.before.run),
+    after: resultJson(outcome.after.run),
+    changes: changes.map((c) => ({
+      element: c.element,
+      kind: c.kind,
+      section: c.section,
+      dimension: c.dimension,
+      from_mm: Number(mToMm(c.from).toFixed(4)),
+      to_mm: Number(mToMm(c.to).toFixed(4)),
+      from_in: Number(mToInch(c.from).toFixed(5)),
+      to_in: Number(mToInch(c.to).toFixed(5)),
+      cutter: c.cutter,
+      steel_safe: c.steelSafe,
+      mold_half: c.moldHalf,
+      step: c.step,
+      after_step: {
+        imbalance_percent: Number(c.after.imbalancePercent.toFixed(3)),
+        feed_pressure_peak_MPa: Number(paToMpa(c.after.feedPressurePeak).toFixed(2)),
+        runner_volume_cm3: Number(m3ToCm3(c.after.runnerVolume).toFixed(4)),
+        limits_met: c.after.feasible,
+      },
+    })),
+    iterations: outcome.iterations.map((i) => ({
+      iteration: i.iteration,
+      accepted: i.accepted,
+      imbalance_percent: Number(i.imbalancePercent.toFixed(4)),
+      feed_pressure_peak_MPa: Number(paToMpa(i.feedPressurePeak).toFixed(3)),
+      runner_volume_cm3: Number(m3ToCm3(i.runnerVolume).toFixed(5)),
+      trust_radius: i.trustRadius,
+      simulations: i.simulations,
+    })),
+  };
+}
+
+/** A readable before/after, change sheet and stopping reason. */
+export function optimizationText(
+  outcome: BalanceOutcome,
+  changes: Change[] = changeList(outcome),
+): string {
+  const b = outcome.before;
+  const a = outcome.after;
+  const line = (label: string, e: typeof b) =>
+    `  ${label.padEnd(8)} imbalance ${
+      e.imbalancePercent.toFixed(2).padStart(6)
+    } %   peak pressure ${paToMpa(e.feedPressurePeak).toFixed(1).padStart(6)} MPa   runner ${
+      m3ToCm3(e.runnerVolume).toFixed(2).padStart(6)
+    } cm³   limits ${e.feasible ? "met" : "NOT met"}`;
+  const out: string[] = [];
+  out.push(
+    `evenfill — balancing: ${outcome.space.scenario.name} (mode ${outcome.space.scenario.goals.mode})`,
+  );
+  out.push(`Status: ${outcome.status} — ${outcome.reason}`);
+  out.push("");
+  out.push(line("before", b));
+  out.push(line("after", a));
+  if (outcome.snap) out.push(`  cutters: ${outcome.snap.message}`);
+  for (const v of a.violations) out.push(`  ! ${v.message}`);
+  if (outcome.wouldNeed.length > 0) {
+    out.push("");
+    out.push("What would make it feasible (linear model, confirm by simulation):");
+    for (const w of outcome.wouldNeed) out.push(`  - ${w}`);
+  }
+  out.push("");
+  out.push("Change sheet, in order of work (each step simulated with all before it)");
+  if (changes.length === 0) out.push("  no change");
+  for (const c of changes) {
+    out.push(
+      `  ${String(c.step).padStart(2)}. ${c.element.padEnd(6)} ${c.kind.padEnd(6)} ${
+        c.section.padEnd(12)
+      } ${c.dimension} ${dualSize(c.from)} → ${dualSize(c.to)}  cutter ${c.cutter}  ${
+        c.steelSafe ? "steel-safe (enlarge)" : "NEEDS STEEL ADDED (weld/insert)"
+      }  ${c.moldHalf} half` +
+        `  → imbalance ${c.after.imbalancePercent.toFixed(2)} %, ${
+          paToMpa(c.after.feedPressurePeak).toFixed(1)
+        } MPa, runner ${m3ToCm3(c.after.runnerVolume).toFixed(2)} cm³`,
+    );
+  }
+  out.push("");
+  out.push(`${outcome.iterations.length} SLP iterations, ${outcome.simulations} simulations.`);
+  out.push("Cautions");
+  for (const c of a.run.cautions) out.push(`  - ${c}`);
+  return out.join("\n") + "\n";
+}
