@@ -48,7 +48,7 @@ export function changeList(outcome: BalanceOutcome): Change[] {
   const { space, before, after } = outcome;
   const scenario = space.scenario;
   const labels = new Map((outcome.snap?.choices ?? []).map((c) => [c.element, c.label]));
-  const changed = space.variables.flatMap((v, j) =>
+  const changed = space.variables.flatMap((_, j) =>
     Math.abs(after.x[j] - before.x[j]) > 1e-9 * before.x[j] ? [j] : []
   );
   const order: number[] = [];
