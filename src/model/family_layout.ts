@@ -1,4 +1,5 @@
 import { SCENARIO_FORMAT, type ScenarioWire } from "./scenario_schema.ts";
+import { mulberry32 } from "./seeded_random.ts";
 
 /** Options of {@link familyLayout}. */
 export interface FamilyLayoutOptions {
@@ -12,18 +13,6 @@ export interface FamilyLayoutOptions {
   gate?: "tunnel" | "edge";
   /** Injection rate, cm³/s (default: the shot in 1.5 s). */
   flowRateCm3PerS?: number;
-}
-
-/** mulberry32: a small seeded PRNG (public-domain algorithm by Tommy Ettinger). */
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
 }
 
 /**

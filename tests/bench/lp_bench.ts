@@ -10,17 +10,7 @@
 import type { LinearProgram, LpRow, LpVariable } from "../../src/optimize/lp_solver.ts";
 import { createHighsSolver } from "../../src/optimize/highs_solver.ts";
 import { createSimplexJsSolver } from "../../src/optimize/simplex_js_solver.ts";
-
-function random(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+import { mulberry32 as random } from "../../src/model/seeded_random.ts";
 
 /** 60 % design steps δ ∈ [−1, 1], 40 % slacks s ≥ 0 on rows g·δ − s ≤ h. */
 function slpProgram(total: number, seed: number): LinearProgram {

@@ -6,6 +6,7 @@ import {
   viscosityAt,
   zeroShearViscosity,
 } from "../../src/materials/viscosity.ts";
+import { mulberry32 } from "../../src/model/seeded_random.ts";
 
 // The "truth" parameters are invented for these tests (PP-like and PC-like magnitudes). The
 // synthetic data come from the Cross-WLF formula itself; what the test checks is that the fit
@@ -32,18 +33,6 @@ const pcLike: CrossWlfViscosity = {
   a2: 51.6,
   convention: "A2_shifts_with_pressure",
 };
-
-/** mulberry32 PRNG (Tommy Ettinger, public domain): uniform in [0, 1), seeded. */
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /** Points at the given temperatures, shear rates 10…10⁵ 1/s (9 per decade-half), optional noise. */
 function synthesize(

@@ -20,6 +20,7 @@ import {
 } from "../../src/optimize/lp_solver.ts";
 import { createHighsSolver, formatCplexLp } from "../../src/optimize/highs_solver.ts";
 import { createSimplexJsSolver } from "../../src/optimize/simplex_js_solver.ts";
+import { mulberry32 as random } from "../../src/model/seeded_random.ts";
 
 const highs = await createHighsSolver();
 const simplexJs = createSimplexJsSolver();
@@ -275,18 +276,6 @@ Deno.test("degenerate chain LP: HiGHS finds −2, javascript-lp-solver never a w
   });
   expectOptimalOrRefused(simplexJs, await simplexJs.solve(lp), { objective: -2 }, { abs: 1e-6 });
 });
-
-/** mulberry32 PRNG (public-domain algorithm by T. Ettinger), seeded for reproducible families. */
-function random(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /**
  * Independent KKT check of an optimal result carrying duals (weak duality,

@@ -1,0 +1,15 @@
+/**
+ * mulberry32, a small seeded pseudo-random generator (public-domain algorithm by
+ * Tommy Ettinger): uniform in [0, 1), reproducible from a 32-bit seed. For invented
+ * layouts and test data only.
+ */
+export function mulberry32(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
