@@ -1,0 +1,74 @@
+import assert from "node:assert/strict";
+import { assertClose } from "./assert_close.ts";
+
+const cli = new URL("../src/cli.ts", import.meta.url).pathname;
+const config = new URL("../deno.json", import.meta.url).pathname;
+
+async function run(args: string[]) {
+  const out = await new Deno.Command(Deno.execPath(), {
+    args: ["run", "--config", config, "--allow-read", "--allow-write", cli, ...args],
+    stdout: "piped",
+    stderr: "piped",
+    env: { NO_COLOR: "1" },
+  }).output();
+  const decode = (b: Uint8Array) => new TextDecoder().decode(b);
+  return { code: out.code, stdout: decode(out.stdout), stderr: decode(out.stderr) };
+}
+
+Deno.test("simulate --json prints evenfill.result/1 with the stable field names", async () => {
+  const r = await run(["simulate", "scenarios/family_four_housing.json", "--json"]);
+  assert.equal(r.code, 0, r.stderr);
+  const result = JSON.parse(r.stdout);
+  assert.equal(result.format, "evenfill.result/1");
+  for (
+    const field of [
+      "fill_time_s",
+      "imbalance_percent",
+      "feed_pressure_peak_MPa",
+      "clamp_force_peak_kN",
+      "shot_mass_g",
+      "runner_volume_cm3",
+      "runner_mass_g",
+      "cavities",
+      "elements",
+      "freeze",
+      "warnings",
+      "cautions",
+      "diagnostics",
+    ]
+  ) assert.ok(field in result, `missing ${field}`);
+  // product.md defines imbalance as (t_max − t_min)/t_max × 100 over the cavity fill times.
+  const times: number[] = result.cavities.map((c: { fill_time_s: number }) => c.fill_time_s);
+  const expected = ((Math.max(...times) - Math.min(...times)) / Math.max(...times)) * 100;
+  assertClose(result.imbalance_percent, expected, {
+    rel: 1e-3,
+    what: "imbalance from the cavity fill times",
+  });
+  assert.ok(
+    result.cautions.some((c: string) => /press maker/.test(c)),
+    "the press-maker caution is carried",
+  );
+});
+
+Deno.test("simulate on a bad scenario exits 2 and names the JSON path, no stack trace", async () => {
+  const dir = await Deno.makeTempDir();
+  const file = `${dir}/bad.json`;
+  const wire = JSON.parse(await Deno.readTextFile("scenarios/family_four_housing.json"));
+  wire.gates[0].thickness_mm = 0;
+  await Deno.writeTextFile(file, JSON.stringify(wire));
+  const r = await run(["simulate", file]);
+  await Deno.remove(dir, { recursive: true });
+  assert.equal(r.code, 2);
+  assert.match(r.stderr, /gates\[0\]\.thickness_mm/);
+  assert.doesNotMatch(r.stderr, /at .*\.ts:\d+/);
+});
+
+Deno.test("simulate --csv prints the fill history with a header and one column per cavity", async () => {
+  const r = await run(["simulate", "scenarios/hot_drop_eight_caps.json", "--csv"]);
+  assert.equal(r.code, 0, r.stderr);
+  const [header, ...rows] = r.stdout.trim().split("\n");
+  const columns = header.split(",");
+  assert.equal(columns.length, 4 + 8);
+  assert.ok(rows.length > 5);
+  for (const row of rows) assert.equal(row.split(",").length, columns.length);
+});
