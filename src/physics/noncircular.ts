@@ -37,6 +37,7 @@
  */
 import { type Section, validateSection } from "./section.ts";
 import type { KozickiConstants } from "./_wall_shear.ts";
+import { ellipticE } from "./section.ts";
 
 export type { KozickiConstants } from "./_wall_shear.ts";
 
@@ -453,24 +454,6 @@ export function poiseuilleNumber(s: Section): number {
       return lagrange4(column, y);
     }
   }
-}
-
-/** Complete elliptic integral E(k) by the AGM (Abramowitz & Stegun (1964) §17.6). */
-function ellipticE(k: number): number {
-  let a = 1;
-  let g = Math.sqrt(1 - k * k);
-  let c = k;
-  let sum = 0.5 * c * c;
-  let pow = 0.5;
-  for (let j = 0; j < 40 && Math.abs(c) > 1e-17; j++) {
-    c = 0.5 * (a - g);
-    const an = 0.5 * (a + g);
-    g = Math.sqrt(a * g);
-    a = an;
-    pow *= 2;
-    sum += pow * c * c;
-  }
-  return (Math.PI / (2 * a)) * (1 - sum);
 }
 
 /** The ratio c = b/a of a section (dimensionless, 2 ≤ c ≤ ~3.2); see the module doc. */

@@ -104,7 +104,7 @@ export function validateSection(s: Section): void {
  * Complete elliptic integral of the second kind E(k), by the arithmetic–geometric mean:
  * E = K·(1 − Σ 2^(j−1) c_j²), K = π/(2·AGM(1, √(1−k²))). Abramowitz & Stegun (1964) §17.6.
  */
-function ellipticE(k: number): number {
+export function ellipticE(k: number): number {
   let a = 1;
   let g = Math.sqrt(1 - k * k);
   let c = k;

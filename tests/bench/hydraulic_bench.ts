@@ -2,7 +2,7 @@
  * Steady hydraulic solve on binary H-tree runner layouts of about 100, 1 000 and
  * 10 000 elements, power-law laws with n = 0.35. Cost should grow about linearly
  * with the element count (a tree factors with zero fill). Run:
- * `deno bench bench/hydraulic_bench.ts`; divide the time per solve by the element count.
+ * `deno bench -A tests/bench/hydraulic_bench.ts`; divide the time per solve by the element count.
  */
 import {
   type HydraulicElement,
