@@ -5,7 +5,7 @@
  * degenerate box LP did not return in 300 s) and its adapter refuses more than 80
  * transformed variables by default.
  *
- * Run: deno bench -A bench/lp_bench.ts
+ * Run: deno bench -A tests/bench/lp_bench.ts
  */
 import type { LinearProgram, LpRow, LpVariable } from "../../src/optimize/lp_solver.ts";
 import { createHighsSolver } from "../../src/optimize/highs_solver.ts";
