@@ -20,7 +20,7 @@ const USAGE = `evenfill — runner balancing for multi-cavity and family molds
 
 usage:
   evenfill simulate <scenario.json> [--json] [--history] [--csv] [--units metric|dual]
-  evenfill optimize <scenario.json> [--mode new_tool|trim|steel_safe] [--json]
+  evenfill optimize <scenario.json> [--mode new_tool|trim|steel_safe] [--json] [--history]
   evenfill validate <scenario.json>
   evenfill materials
   evenfill schema [--write <path>]
@@ -144,7 +144,13 @@ export async function main(argv: readonly string[]): Promise<number> {
         return 3;
       }
       if (args.flags.has("json")) {
-        console.log(JSON.stringify(optimizationJson(result.outcome), null, 2));
+        console.log(
+          JSON.stringify(
+            optimizationJson(result.outcome, { history: args.flags.has("history") }),
+            null,
+            2,
+          ),
+        );
       } else console.log(optimizationText(result.outcome).trimEnd());
       return 0;
     }

@@ -6,8 +6,18 @@ import { resultJson } from "./result_json.ts";
 /** Wire format of an optimization (`evenfill.optimization/1`). */
 export const OPTIMIZATION_FORMAT = "evenfill.optimization/1";
 
+/** Options of {@link optimizationJson}. */
+export interface OptimizationJsonOptions {
+  /** Include the fill history of the before and after runs (default false). */
+  history?: boolean;
+  /** The change list in order of work (default: computed with {@link changeList}). */
+  changes?: Change[];
+}
+
 /** The optimization JSON of product.md, with the change list in order of work. */
-export function optimizationJson(outcome: BalanceOutcome, changes: Change[] = changeList(outcome)) {
+export function optimizationJson(outcome: BalanceOutcome, options: OptimizationJsonOptions = {}) {
+  const changes = options.changes ?? changeList(outcome);
+  const history = options.history ?? false;
   return {
     format: OPTIMIZATION_FORMAT,
     status: outcome.status,
@@ -15,8 +25,8 @@ export function optimizationJson(outcome: BalanceOutcome, changes: Change[] = ch
     would_need: outcome.wouldNeed,
     snapping: outcome.snap?.message ?? null,
     simulations: outcome.simulations,
-    before: resultJson(outcome.before.run),
-    after: resultJson(outcome.after.run),
+    before: resultJson(outcome.before.run, { history }),
+    after: resultJson(outcome.after.run, { history }),
     changes: changes.map((c) => ({
       element: c.element,
       kind: c.kind,
