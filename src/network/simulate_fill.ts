@@ -462,6 +462,11 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
       clampForcePeak = Math.max(clampForcePeak, force);
       const beforeFirstFull = cavityFullTime.every((x) => Number.isNaN(x));
       s.assembly.branches.forEach((br, k) => {
+        // A gate's shear counts once the gate runs full (its cavity filling): while its own
+        // front crosses the land, the incompressible model with a 0 Pa front lets a lagging
+        // branch draw nearly the whole shot through it for a fraction of a millisecond, a
+        // spike the resin's shear limit (a steady-flow figure) is not about.
+        if (elements[br.element].kind === "gate" && !isFull(br.element)) return;
         shearPeak[br.element] = Math.max(shearPeak[br.element], s.channel[k].wallShearRate);
         if (beforeFirstFull) {
           shearPeakEarly[br.element] = Math.max(

@@ -6,6 +6,7 @@ import { createHighsSolver } from "./highs_solver.ts";
 import type { LinearProgram, LpRow, LpSolver, LpVariable } from "./lp_solver.ts";
 import { finiteDifferenceSensitivities, type Sensitivities } from "./sensitivities.ts";
 import { snapDesign, type SnapReport } from "./snap_design.ts";
+import { type CutterCatalogue, cutterCatalogue, neighbouringSizes } from "./cutters.ts";
 
 /**
  * Balancing by sequential linear programming (SLP) with a trust region.
@@ -59,6 +60,8 @@ export interface OptimizeBalanceOptions {
   cancelled?: () => boolean;
   /** Skip the cutter snapping (continuous answer only). Default false. */
   continuousOnly?: boolean;
+  /** Starting sizes by element id, m (default: today's sizes, clamped into the bounds). */
+  start?: ReadonlyMap<string, number>;
 }
 
 /** What the optimizer found. */
@@ -91,6 +94,8 @@ export type BalanceResult =
 const PENALTY = 20;
 /** Share of the imbalance target the linear model aims for. */
 const LP_BAND_SHARE = 0.7;
+/** Share of the gate-shear and pressure limits the linear model aims for (room to snap). */
+const LP_LIMIT_SHARE = 0.97;
 
 /** Balance a validated scenario. */
 export async function optimizeBalance(
@@ -123,7 +128,7 @@ export async function optimizeBalance(
 
   const start = Float64Array.from(
     space.variables,
-    (v) => Math.min(v.upper, Math.max(v.lower, v.current)),
+    (v) => Math.min(v.upper, Math.max(v.lower, options.start?.get(v.element) ?? v.current)),
   );
   const beforeOutcome = evaluate(Float64Array.from(space.variables, (v) => v.current));
   if (!beforeOutcome.ok) {
@@ -142,6 +147,7 @@ export async function optimizeBalance(
   const merit = (e: DesignEvaluation) => e.runnerVolume / V0 + PENALTY * violation(e, epsilon);
 
   let radius = 0.2; // trust region as a fraction of each size
+  let lpEpsilon = LP_BAND_SHARE * epsilon;
   const iterations: BalanceIteration[] = [];
   let status: BalanceStatus = "iteration_limit";
   let reason = `stopped after ${maxIterations} iterations`;
@@ -162,9 +168,16 @@ export async function optimizeBalance(
     }
     // The LP aims inside the band (70 % of the target) so that linearisation and simulation
     // noise at the 1e-4 level do not leave the accepted design a hair outside it.
+    // The split fill times the LP steers with can sit inside its band while the simulated
+    // ones are still outside the target: then the band narrows.
+    if (
+      imbalanceViolation(current.splitFillTimes, lpEpsilon) === 0 &&
+      current.imbalancePercent > scenario.goals.max_imbalance_percent
+    ) lpEpsilon = Math.max(0.05 * epsilon, lpEpsilon / 2);
     const program = buildProgram(space, current, sens, {
       radius,
-      epsilon: LP_BAND_SHARE * epsilon,
+      epsilon: lpEpsilon,
+      limitShare: LP_LIMIT_SHARE,
       V0,
     });
     lastLinear = { sens, program };
@@ -242,16 +255,28 @@ export async function optimizeBalance(
 
   let after = current;
   let snap: SnapReport | undefined;
+  const linear = sens ?? lastLinear?.sens;
   if (!options.continuousOnly) {
-    const snapped = snapDesign(space, current, sens ?? lastLinear?.sens, { merit });
+    const snapped = snapDesign(space, current, linear, { merit });
     simulations += snapped.simulations;
     after = snapped.evaluation;
     snap = snapped;
-    // Cutter steps are coarse for runners (1 mm above 4 mm), fine for gates: with the runners
-    // fixed at their cutters, balance again on the gates alone, then snap those.
+    // Cutter steps are coarse for runners (1 mm above 4 mm), fine for gates. Choose each
+    // runner's cutter with the gates free (a dive on the linear model), then balance again on
+    // the gates alone with the runners fixed, and snap those; keep whichever snapped design
+    // has the better merit.
     const gates = space.variables.flatMap((v, j) => (v.kind === "gate" ? [j] : []));
-    if (!after.feasible && gates.length > 0 && gates.length < space.variables.length) {
-      const fixed = applyDesign(space, after.x);
+    const runnerCatalogue = cutterCatalogue(scenario.goals.cutters);
+    if (
+      !after.feasible && linear && gates.length > 0 && gates.length < space.variables.length &&
+      runnerCatalogue.kind === "discrete"
+    ) {
+      const dive = await diveRunnerCutters(space, current, linear, solver, {
+        epsilon: LP_BAND_SHARE * epsilon,
+        V0,
+        catalogue: runnerCatalogue,
+      });
+      const fixed = applyDesign(space, dive ?? after.x);
       for (const v of space.variables) {
         if (v.kind === "runner") fixed.runners[v.index].adjustable = false;
       }
@@ -262,22 +287,42 @@ export async function optimizeBalance(
       });
       if (second.ok) {
         simulations += second.outcome.simulations;
-        const refined = second.outcome.after;
-        if (merit(remap(space, second.outcome.space, refined)) < merit(after)) {
-          after = remap(space, second.outcome.space, refined);
-          snap = second.outcome.snap &&
-            {
-              ...second.outcome.snap,
-              choices: [
-                ...snapped.choices.filter((c) =>
-                  space.variables.find((v) => v.element === c.element)?.kind === "runner"
-                ),
-                ...second.outcome.snap.choices,
-              ],
-              message:
-                `runners snapped to cutters, gates re-balanced and snapped: ${second.outcome.snap.message}`,
-            };
+        const refined = remap(space, second.outcome.space, second.outcome.after);
+        if (merit(refined) < merit(after)) {
+          after = refined;
+          const runnerChoices = space.variables.flatMap((v) =>
+            v.kind === "runner"
+              ? [{
+                element: v.element,
+                continuous: current.x[space.variables.indexOf(v)],
+                snapped: refined.x[space.variables.indexOf(v)],
+                label: `${mToMm(refined.x[space.variables.indexOf(v)])} mm`,
+              }]
+              : []
+          );
+          snap = {
+            evaluation: refined,
+            simulations: snapped.simulations + second.outcome.simulations,
+            choices: [...runnerChoices, ...(second.outcome.snap?.choices ?? [])],
+            message: `runner cutters chosen with the gates free, gates re-balanced and snapped: ${
+              second.outcome.snap?.message ?? "no gate snapping"
+            }`,
+          };
         }
+      }
+    }
+  }
+  if (!options.continuousOnly && !after.feasible) {
+    const fixedOutcome = await relaxAndFixRunners(scenario, space, current, options);
+    if (fixedOutcome) {
+      simulations += fixedOutcome.simulations;
+      if (merit(fixedOutcome.evaluation) < merit(after)) {
+        after = fixedOutcome.evaluation;
+        snap = {
+          ...fixedOutcome,
+          message:
+            `runners fixed to cutters one at a time, the rest re-balanced after each; ${fixedOutcome.message}`,
+        };
       }
     }
   }
@@ -304,8 +349,11 @@ export async function optimizeBalance(
  * pressure when over. Log measure makes power-law responses linear in log sizes.
  */
 export function violation(e: DesignEvaluation, epsilon: number): number {
-  let v = imbalanceViolation(e.fillTimes, epsilon);
-  for (const s of e.gateShearBalanced) v += Math.max(0, Math.log(s / e.gateShearLimit));
+  let v = Math.max(
+    imbalanceViolation(e.fillTimes, epsilon),
+    imbalanceViolation(e.splitFillTimes, epsilon),
+  );
+  for (const s of e.gateShear) v += Math.max(0, Math.log(s / e.gateShearLimit));
   v += Math.max(0, Math.log(e.feedPressurePeak / e.pressureLimit));
   for (const x of e.violations) {
     if (x.code === "not_filled") v += 1;
@@ -337,9 +385,13 @@ export function imbalanceViolation(times: readonly number[], epsilon: number): n
 interface ProgramOptions {
   radius: number;
   epsilon: number;
+  /** Share of the shear and pressure limits to aim for. */
+  limitShare: number;
   V0: number;
   /** Ignore the design space's lower/upper bounds and use these (for the infeasibility explanation). */
   bounds?: { lower: number[]; upper: number[] };
+  /** Use `bounds` as they are, without widening them to contain today's design. */
+  exactBounds?: boolean;
 }
 
 /**
@@ -364,24 +416,29 @@ function buildProgram(
     const upper = o.bounds ? o.bounds.upper[j] : v.upper;
     variables.push({
       name: `u_${v.element}`,
-      lower: Math.min(0, Math.max(-1, Math.log(lower / x[j]) / R)),
-      upper: Math.max(0, Math.min(1, Math.log(upper / x[j]) / R)),
+      // Bounds include u = 0 (today's design stays feasible), except for a dive's exact bounds.
+      lower: o.exactBounds
+        ? Math.log(lower / x[j]) / R
+        : Math.min(0, Math.max(-1, Math.log(lower / x[j]) / R)),
+      upper: o.exactBounds
+        ? Math.log(upper / x[j]) / R
+        : Math.max(0, Math.min(1, Math.log(upper / x[j]) / R)),
       cost: (s.runnerVolume[j] * x[j] * R) / o.V0,
     });
   });
   const logSlope = (row: readonly number[], value: number): [number, number][] =>
     space.variables.map((_, j) => [j, (row[j] * x[j] * R) / value] as [number, number]);
-  const tMax = Math.max(...e.fillTimes);
+  const tMax = Math.max(...e.splitFillTimes);
   const band = -Math.log(1 - o.epsilon);
   const w = variables.length;
   variables.push({ name: "v", lower: -1, upper: 1, cost: 0 });
   let linearMeritAtZero = e.runnerVolume / o.V0 +
-    PENALTY * imbalanceViolation(e.fillTimes, o.epsilon);
+    PENALTY * imbalanceViolation(e.splitFillTimes, o.epsilon);
   const slack = (name: string) => {
     variables.push({ name, lower: 0, upper: Infinity, cost: PENALTY });
     return variables.length - 1;
   };
-  e.fillTimes.forEach((t, i) => {
+  e.splitFillTimes.forEach((t, i) => {
     const lt = Math.log(t / tMax);
     const slope = logSlope(s.fillTime[i], t);
     const late = slack(`s_late_${i}`);
@@ -399,9 +456,10 @@ function buildProgram(
       upper: lt + band,
     });
   });
-  e.gateShearBalanced.forEach((g, i) => {
+  // Gate shear: the true peak up to switchover, with the mean-flow slopes of sensitivities.ts.
+  e.gateShear.forEach((g, i) => {
     if (!(g > 0)) return;
-    const over = Math.log(g / e.gateShearLimit);
+    const over = Math.log(g / (o.limitShare * e.gateShearLimit));
     linearMeritAtZero += PENALTY * Math.max(0, over);
     const k = slack(`s_shear_${i}`);
     rows.push({
@@ -411,7 +469,7 @@ function buildProgram(
       upper: -over,
     });
   });
-  const over = Math.log(e.feedPressurePeak / e.pressureLimit);
+  const over = Math.log(e.feedPressurePeak / (o.limitShare * e.pressureLimit));
   linearMeritAtZero += PENALTY * Math.max(0, over);
   const kp = slack("s_pressure");
   rows.push({
@@ -466,6 +524,7 @@ async function explainInfeasible(
   const program = buildProgram(space, e, s, {
     radius: 1,
     epsilon: o.epsilon,
+    limitShare: 1,
     V0: o.V0,
     bounds: { lower, upper },
   });
@@ -505,4 +564,205 @@ function remap(full: DesignSpace, sub: DesignSpace, e: DesignEvaluation): Design
     return (g.type === "edge" ? g.thickness_mm : g.diameter_mm) / 1000;
   });
   return { ...e, x };
+}
+
+/**
+ * Choose each runner's cutter (the one below or above its continuous size) by diving
+ * on the linear model around the continuous optimum: runners are fixed one at a time,
+ * largest relative rounding first, each to the side whose LP (gates and the runners
+ * not yet fixed free within their bounds and cutter intervals) predicts the lower
+ * merit. Returns the design the last LP proposes, or undefined when an LP fails.
+ */
+async function diveRunnerCutters(
+  space: DesignSpace,
+  e: DesignEvaluation,
+  s: Sensitivities,
+  solver: LpSolver,
+  o: { epsilon: number; V0: number; catalogue: CutterCatalogue },
+): Promise<Float64Array | undefined> {
+  const steelSafe = space.scenario.goals.mode === "steel_safe";
+  const lower = space.variables.map((v) => v.lower);
+  const upper = space.variables.map((v) => v.upper);
+  const options: { j: number; sides: number[]; spread: number }[] = [];
+  space.variables.forEach((v, j) => {
+    if (v.kind !== "runner") return;
+    const { below, above, exact } = neighbouringSizes(o.catalogue, e.x[j]);
+    let sides = exact
+      ? [exact.size]
+      : [below?.size, above?.size].filter((x): x is number =>
+        x !== undefined && x >= v.lower * (1 - 1e-9) && x <= v.upper * (1 + 1e-9)
+      );
+    if (steelSafe) sides = sides.filter((x) => x >= v.current * (1 - 1e-9));
+    if (sides.length === 0) sides = [above?.size ?? below?.size ?? e.x[j]];
+    lower[j] = Math.min(...sides);
+    upper[j] = Math.max(...sides);
+    options.push({ j, sides, spread: Math.log(upper[j] / lower[j]) });
+  });
+  options.sort((a, b) => b.spread - a.spread);
+  let last: Float64Array | undefined;
+  const solveWith = async () => {
+    const program = buildProgram(space, e, s, {
+      radius: 1,
+      epsilon: o.epsilon,
+      limitShare: LP_LIMIT_SHARE,
+      V0: o.V0,
+      bounds: { lower, upper },
+      exactBounds: true,
+    });
+    const lp = await solver.solve(program.lp, { timeLimitSeconds: 20 });
+    if (lp.status !== "optimal") return undefined;
+    return {
+      objective: lp.objective,
+      x: Float64Array.from(space.variables, (_, j) => e.x[j] * Math.exp(lp.x[j])),
+    };
+  };
+  for (const { j, sides } of options) {
+    let best: { objective: number; x: Float64Array; side: number } | undefined;
+    for (const side of sides) {
+      lower[j] = side;
+      upper[j] = side;
+      const r = await solveWith();
+      if (r && (!best || r.objective < best.objective - 1e-12)) best = { ...r, side };
+    }
+    if (!best) return undefined;
+    lower[j] = best.side;
+    upper[j] = best.side;
+    last = best.x;
+  }
+  if (!last) return undefined;
+  // Exact cutter sizes for the runners (the LP's exp/log round trip is not).
+  for (const { j } of options) last[j] = lower[j];
+  return last;
+}
+
+/**
+ * Relax-and-fix for the runner cutters: among the runners whose fed runners are
+ * all fixed, fix the one whose continuous size is nearest a permitted cutter
+ * (never smaller than a runner it feeds), re-balance every size still free (a short SLP from
+ * the current design), and repeat until every runner is on a cutter; then snap the
+ * gates. Costlier than the dive (one short SLP per runner) and surer, because each
+ * rounding is absorbed by sizes that are still free on the full model.
+ */
+async function relaxAndFixRunners(
+  scenario: Scenario,
+  space: DesignSpace,
+  continuous: DesignEvaluation,
+  options: OptimizeBalanceOptions,
+): Promise<SnapReport | undefined> {
+  const catalogue = cutterCatalogue(scenario.goals.cutters);
+  if (catalogue.kind !== "discrete") return undefined;
+  const steelSafe = scenario.goals.mode === "steel_safe";
+  const work: Scenario = structuredClone(scenario);
+  const sizes = new Map(space.variables.map((v, j) => [v.element, continuous.x[j]]));
+  const labels = new Map<string, string>();
+  let simulations = 0;
+  for (;;) {
+    let pick:
+      | { v: (typeof space.variables)[number]; size: number; label: string; gap: number }
+      | undefined;
+    for (const v of space.variables) {
+      if (v.kind !== "runner" || labels.has(v.element)) continue;
+      // Leaves first: a runner is fixed once every runner it feeds is, so its cutter can
+      // respect the feed order.
+      const feedsUnfixed = space.ordering.some((rule) =>
+        space.variables[rule.upstream] === v &&
+        !labels.has(space.variables[rule.downstream].element)
+      );
+      if (feedsUnfixed) continue;
+      const x = sizes.get(v.element)!;
+      const { below, above, exact } = neighbouringSizes(catalogue, x);
+      const allowed = (exact ? [exact] : [below, above]).filter((c): c is NonNullable<typeof c> =>
+        c !== undefined && c.size >= v.lower * (1 - 1e-9) && c.size <= v.upper * (1 + 1e-9) &&
+        (!steelSafe || c.size >= v.current * (1 - 1e-9))
+      );
+      // Never against the feed order with a runner already on its cutter.
+      const ordered = allowed.filter((c) =>
+        space.ordering.every((rule) => {
+          const up = space.variables[rule.upstream].element;
+          const down = space.variables[rule.downstream].element;
+          if (down === v.element && labels.has(up)) return c.size <= sizes.get(up)! * (1 + 1e-9);
+          if (up === v.element && labels.has(down)) return c.size >= sizes.get(down)! * (1 - 1e-9);
+          return true;
+        })
+      );
+      if (ordered.length === 0) {
+        // Both neighbours are smaller than a runner this one feeds: the next cutter up that is not.
+        const need = Math.max(
+          0,
+          ...space.ordering.filter((rule) => space.variables[rule.upstream] === v).map((rule) =>
+            sizes.get(space.variables[rule.downstream].element)!
+          ),
+        );
+        const up = catalogue.cutters.find((c) =>
+          c.size >= need * (1 - 1e-9) && c.size <= v.upper * (1 + 1e-9)
+        );
+        if (up) ordered.push(up);
+      }
+      for (const c of ordered.length > 0 ? ordered : allowed) {
+        const gap = Math.abs(Math.log(c.size / x));
+        if (!pick || gap < pick.gap) pick = { v, size: c.size, label: c.label, gap };
+      }
+      if (allowed.length === 0) return undefined;
+    }
+    if (!pick) break;
+    work.runners[pick.v.index].diameter_mm = mToMm(pick.size);
+    work.runners[pick.v.index].adjustable = false;
+    sizes.set(pick.v.element, pick.size);
+    labels.set(pick.v.element, pick.label);
+    if (options.cancelled?.()) return undefined;
+    const free = space.variables.filter((v) => v.kind === "gate" || !labels.has(v.element));
+    if (free.length === 0) break;
+    const sub = await optimizeBalance(work, {
+      solver: options.solver,
+      cancelled: options.cancelled,
+      continuousOnly: true,
+      maxIterations: 8,
+      start: sizes,
+    });
+    if (!sub.ok) return undefined;
+    simulations += sub.outcome.simulations;
+    sub.outcome.space.variables.forEach((v, j) =>
+      sizes.set(v.element, sub.outcome.continuous.x[j])
+    );
+  }
+  // Gates last: the usual snapping on the space of the gates alone.
+  const gateOnly = optimizeBalanceSpaceAt(work, sizes);
+  if (!gateOnly) return undefined;
+  const gateSnap = snapDesign(gateOnly.space, gateOnly.evaluation, undefined, {
+    merit: (e) => e.runnerVolume + 1e3 * violation(e, scenario.goals.max_imbalance_percent / 100),
+  });
+  simulations += gateOnly.simulations + gateSnap.simulations + 1;
+  // Judged again in the full space, where the feed-order rules between runners apply.
+  const full = evaluateDesign(space, remap(space, gateOnly.space, gateSnap.evaluation).x);
+  if (!full.ok) return undefined;
+  const evaluation = full.evaluation;
+  const choices = [
+    ...space.variables.flatMap((v, j) =>
+      v.kind === "runner"
+        ? [{
+          element: v.element,
+          continuous: continuous.x[j],
+          snapped: sizes.get(v.element)!,
+          label: labels.get(v.element) ?? `${mToMm(sizes.get(v.element)!)} mm`,
+        }]
+        : []
+    ),
+    ...gateSnap.choices,
+  ];
+  return { evaluation, choices, simulations, message: gateSnap.message };
+}
+
+/** The design space of `scenario` (runners fixed) evaluated at the given sizes. */
+function optimizeBalanceSpaceAt(
+  scenario: Scenario,
+  sizes: ReadonlyMap<string, number>,
+): { space: DesignSpace; evaluation: DesignEvaluation; simulations: number } | undefined {
+  const space = designSpace(scenario);
+  if (space.variables.length === 0) return undefined;
+  const x = Float64Array.from(
+    space.variables,
+    (v) => Math.min(v.upper, Math.max(v.lower, sizes.get(v.element) ?? v.current)),
+  );
+  const outcome = evaluateDesign(space, x);
+  return outcome.ok ? { space, evaluation: outcome.evaluation, simulations: 1 } : undefined;
 }

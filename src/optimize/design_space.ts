@@ -40,6 +40,8 @@ export interface DesignSpace {
   scenario: Scenario;
   variables: DesignVariable[];
   ordering: OrderingRule[];
+  /** For each variable, the index of the cavity its gate feeds (−1 for runners). */
+  gateCavity: number[];
   /** Variables whose bounds cross (lower > upper): the goals cannot be met as stated. */
   conflicts: string[];
 }
@@ -146,7 +148,17 @@ export function designSpace(scenario: Scenario): DesignSpace {
     });
   });
 
-  return { scenario, variables, ordering: runnerOrdering(scenario, variables), conflicts };
+  const cavityIndex = new Map(scenario.cavities.map((c, i) => [c.id, i]));
+  const gateCavity = variables.map((v) =>
+    v.kind === "gate" ? cavityIndex.get(scenario.gates[v.index].cavity)! : -1
+  );
+  return {
+    scenario,
+    variables,
+    ordering: runnerOrdering(scenario, variables),
+    gateCavity,
+    conflicts,
+  };
 }
 
 /** Today's sizes as a vector, m. */

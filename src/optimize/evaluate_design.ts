@@ -25,6 +25,13 @@ export interface DesignEvaluation {
   run: ScenarioRun;
   /** Cavity fill times, s. */
   fillTimes: number[];
+  /**
+   * The fill time each cavity would have if the flow split before the first cavity is
+   * full held to the end: t_first / (fill fraction at t_first), s. Smooth in the sizes,
+   * where the true fill times have a kink at balance (at a constant injection rate the
+   * last cavity always fills at V/Q, whatever the sizes), so the optimizer steers with it.
+   */
+  splitFillTimes: number[];
   imbalancePercent: number;
   /** Peak true wall shear of each cavity's gates up to switchover, 1/s, in cavity order. */
   gateShear: number[];
@@ -71,6 +78,10 @@ export function evaluateDesign(space: DesignSpace, x: Float64Array): EvaluationO
   const goals = scenario.goals;
   const fill = run.fill;
   const fillTimes = fill.cavities.map((c) => c.fillTime);
+  const firstFull = Math.min(...fillTimes);
+  const splitFillTimes = fill.cavities.map((c) =>
+    c.fillAtFirstFull > 0.05 ? firstFull / c.fillAtFirstFull : c.fillTime
+  );
   const gateShear = fill.cavities.map((c) => c.gateShearRatePeak);
   const gateShearBalanced = fill.cavities.map((c) => c.gateShearRatePeakBeforeFirstFull);
   const gateShearLimit = goals.gate_shear_limit_1_s ?? run.material.maxShearRate;
@@ -127,6 +138,7 @@ export function evaluateDesign(space: DesignSpace, x: Float64Array): EvaluationO
       x: Float64Array.from(x),
       run,
       fillTimes,
+      splitFillTimes,
       imbalancePercent: imbalance,
       gateShear,
       gateShearBalanced,

@@ -4,6 +4,16 @@ import { type DesignEvaluation, evaluateDesign, runnerVolumeOf } from "./evaluat
 /**
  * Sensitivities of the constrained responses to each design size, by one-sided
  * finite differences on the full fill simulation (one simulation per variable).
+ * Fill times are differentiated in their split form (see
+ * `DesignEvaluation.splitFillTimes`), which is smooth at balance.
+ *
+ * Gate shear is not differentiated through its transient peak (that peak jumps
+ * with the order in which fronts arrive and cavities fill); its slope is the mean
+ * flow's, γ̇ ∝ (V_i/τ_i)·s^(−m): ∂ln γ̇_i/∂ln x_j = −∂ln τ_i/∂ln x_j − m·[x_j sizes a
+ * gate of cavity i], m = 3 for a round section scaled as a whole (power-law tube,
+ * γ̇_w = (3n+1)/(4n)·4Q/(πR³)) and m = 2 for an edge gate's depth (power-law slit,
+ * γ̇_w = (2n+1)/(3n)·6Q/(WH²)); Bird, Armstrong & Hassager, *Dynamics of Polymeric
+ * Liquids* vol. 1. The optimizer applies it to the true peak.
  * The step is a fixed fraction of the size, large enough to rise above the
  * simulation's event-placement noise (≈1e-9 relative in fill time) and small
  * enough to stay in the linear range; it points inward at a bound.
@@ -13,9 +23,9 @@ import { type DesignEvaluation, evaluateDesign, runnerVolumeOf } from "./evaluat
 
 /** ∂response/∂size, per variable j (sizes in m). */
 export interface Sensitivities {
-  /** fillTime[i][j]: s per m. */
+  /** fillTime[i][j]: split fill time (`splitFillTimes`), s per m. */
   fillTime: number[][];
-  /** gateShear[i][j]: balanced-split gate shear, (1/s) per m, cavity order. */
+  /** gateShear[i][j]: peak gate shear by the mean-flow law above, (1/s) per m, cavity order. */
   gateShear: number[][];
   /** pressure[j]: Pa per m. */
   pressure: number[];
@@ -34,7 +44,7 @@ export function finiteDifferenceSensitivities(
   base: DesignEvaluation,
 ): Sensitivities | { failure: string } {
   const n = space.variables.length;
-  const cavities = base.fillTimes.length;
+  const cavities = base.splitFillTimes.length;
   const fillTime = Array.from({ length: cavities }, () => new Array<number>(n).fill(0));
   const gateShear = Array.from({ length: cavities }, () => new Array<number>(n).fill(0));
   const pressure = new Array<number>(n).fill(0);
@@ -52,8 +62,12 @@ export function finiteDifferenceSensitivities(
     if (!outcome.ok) return { failure: outcome.message };
     const e = outcome.evaluation;
     for (let i = 0; i < cavities; i++) {
-      fillTime[i][j] = (e.fillTimes[i] - base.fillTimes[i]) / h;
-      gateShear[i][j] = (e.gateShearBalanced[i] - base.gateShearBalanced[i]) / h;
+      fillTime[i][j] = (e.splitFillTimes[i] - base.splitFillTimes[i]) / h;
+      let logSlope = -(fillTime[i][j] * xj) / base.splitFillTimes[i];
+      if (v.kind === "gate" && space.gateCavity[j] === i) {
+        logSlope -= v.dimension === "thickness" ? 2 : 3;
+      }
+      gateShear[i][j] = (logSlope * base.gateShear[i]) / xj;
     }
     pressure[j] = (e.feedPressurePeak - base.feedPressurePeak) / h;
     runnerVolume[j] = (runnerVolumeOf(space, x) - base.runnerVolume) / h;

@@ -14,10 +14,10 @@ import type { Sensitivities } from "./sensitivities.ts";
  * scenario's cutter catalogue, gates to a 0.05 mm step (0.002 in for the inch
  * series; common practice, no source: gates are ground or spark-eroded to size).
  * Each size chooses between its two neighbours (in steel-safe mode only the one
- * above, never below today's). Start from the nearest (or next larger) sizes,
- * then repair by single flips ranked with the linear model and confirmed by full
- * simulation, then (when feasible) try cheaper flips. Reports honestly when
- * snapping costs balance.
+ * above, never below today's). Start from the nearest runner cutters and the gate
+ * step above, then repair by flips ranked with the linear model and confirmed by
+ * full simulation (sizes the optimum made equal flip together), then (when
+ * feasible) try cheaper flips. Reports honestly when snapping costs balance.
  *
  * @module
  */
@@ -103,8 +103,10 @@ export function snapDesign(
     );
     return inside.length > 0 ? inside : list;
   });
-  // Start: nearest in size (ties and steel-safe: the larger).
+  // Start: runners at the nearest cutter (ties and steel-safe: the larger); gates at the step
+  // above (a larger gate lowers shear and pressure, and its volume is negligible).
   const pick = candidates.map((list, j) => {
+    if (space.variables[j].kind === "gate") return list.length - 1;
     let best = 0;
     for (let k = 1; k < list.length; k++) {
       if (Math.abs(list[k].size - continuous.x[j]) <= Math.abs(list[best].size - continuous.x[j])) {
@@ -112,6 +114,19 @@ export function snapDesign(
       }
     }
     return best;
+  });
+  // Sizes the continuous optimum made equal (symmetric branches) move together: a single
+  // flip would unbalance what symmetry balanced.
+  const groups: number[][] = [];
+  space.variables.forEach((v, j) => {
+    const twin = groups.find((g) =>
+      space.variables[g[0]].kind === v.kind &&
+      Math.abs(continuous.x[g[0]] - continuous.x[j]) <= 1e-6 * continuous.x[j] &&
+      candidates[g[0]].length === candidates[j].length &&
+      candidates[g[0]].every((c, k) => Math.abs(c.size - candidates[j][k].size) < 1e-12)
+    );
+    if (twin) twin.push(j);
+    else groups.push([j]);
   });
   const design = (p: readonly number[]) => Float64Array.from(p, (k, j) => candidates[j][k].size);
   let simulations = 0;
@@ -132,23 +147,24 @@ export function snapDesign(
   }
   const linearMerit = (x: Float64Array) =>
     predictMerit(continuous, sensitivities, x, options.merit);
-  const n = space.variables.length;
-  // Repair / improve by single flips, best predicted first, each confirmed by simulation.
-  for (let round = 0; round < 2 * n; round++) {
-    const flips: { j: number; k: number; predicted: number }[] = [];
-    for (let j = 0; j < n; j++) {
-      for (let k = 0; k < candidates[j].length; k++) {
-        if (k === bestPick[j]) continue;
-        const p = [...bestPick];
-        p[j] = k;
-        flips.push({ j, k, predicted: linearMerit(design(p)) });
+  // Repair / improve by flips of one group, best predicted first, each confirmed by simulation.
+  const flipped = (p: readonly number[], group: readonly number[], k: number) => {
+    const q = [...p];
+    for (const j of group) q[j] = k;
+    return q;
+  };
+  for (let round = 0; round < 2 * groups.length; round++) {
+    const flips: { group: number[]; k: number; predicted: number }[] = [];
+    for (const group of groups) {
+      for (let k = 0; k < candidates[group[0]].length; k++) {
+        if (k === bestPick[group[0]]) continue;
+        flips.push({ group, k, predicted: linearMerit(design(flipped(bestPick, group, k))) });
       }
     }
     flips.sort((a, b) => a.predicted - b.predicted);
     let improved = false;
     for (const flip of flips.slice(0, 3)) {
-      const p = [...bestPick];
-      p[flip.j] = flip.k;
+      const p = flipped(bestPick, flip.group, flip.k);
       const trial = evaluate(p);
       if (trial && options.merit(trial) < options.merit(best) - 1e-9) {
         best = trial;
@@ -193,8 +209,8 @@ function predictMerit(
   const predicted: DesignEvaluation = {
     ...base,
     x,
-    fillTimes: base.fillTimes.map((t, i) => t + dot(s.fillTime[i])),
-    gateShearBalanced: base.gateShearBalanced.map((g, i) => g + dot(s.gateShear[i])),
+    fillTimes: base.splitFillTimes.map((t, i) => t + dot(s.fillTime[i])),
+    gateShear: base.gateShear.map((g, i) => g + dot(s.gateShear[i])),
     feedPressurePeak: base.feedPressurePeak + dot(s.pressure),
     runnerVolume: base.runnerVolume + dot(s.runnerVolume),
     violations: [],
