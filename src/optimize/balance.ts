@@ -6,7 +6,12 @@ import { createHighsSolver } from "./highs_solver.ts";
 import type { LinearProgram, LpRow, LpSolver, LpVariable } from "./lp_solver.ts";
 import { finiteDifferenceSensitivities, type Sensitivities } from "./sensitivities.ts";
 import { snapDesign, type SnapReport } from "./snap_design.ts";
-import { type CutterCatalogue, cutterCatalogue, neighbouringSizes } from "./cutters.ts";
+import {
+  type Cutter,
+  type CutterCatalogue,
+  cutterCatalogue,
+  neighbouringSizes,
+} from "./cutters.ts";
 
 /**
  * Balancing by sequential linear programming (SLP) with a trust region.
@@ -145,9 +150,14 @@ export async function optimizeBalance(
   const V0 = before.runnerVolume;
   const epsilon = scenario.goals.max_imbalance_percent / 100;
   const merit = (e: DesignEvaluation) => e.runnerVolume / V0 + PENALTY * violation(e, epsilon);
+  /** Snapped designs: simulated fill times, balanced and peak shear both counted. */
+  const judge = (e: DesignEvaluation) =>
+    e.runnerVolume / V0 + PENALTY * (violation(e, epsilon, { split: false }) +
+        violation(e, epsilon, { split: false, shear: "peak" }));
 
   let radius = 0.2; // trust region as a fraction of each size
   let lpEpsilon = LP_BAND_SHARE * epsilon;
+  const shearShare = current.gateShear.map(() => LP_LIMIT_SHARE);
   const iterations: BalanceIteration[] = [];
   let status: BalanceStatus = "iteration_limit";
   let reason = `stopped after ${maxIterations} iterations`;
@@ -174,10 +184,20 @@ export async function optimizeBalance(
       imbalanceViolation(current.splitFillTimes, lpEpsilon) === 0 &&
       current.imbalancePercent > scenario.goals.max_imbalance_percent
     ) lpEpsilon = Math.max(0.05 * epsilon, lpEpsilon / 2);
+    // Likewise a gate whose balanced shear meets its share while its peak up to switchover
+    // (over-packing after the first cavity is full) breaks the limit: its share shrinks.
+    current.gateShear.forEach((peak, i) => {
+      const balanced = current.gateShearBalanced[i];
+      const limit = current.gateShearLimit;
+      if (peak > limit && balanced <= shearShare[i] * limit * (1 + 1e-9)) {
+        shearShare[i] = Math.max(0.5, 0.98 * shearShare[i] * (limit / peak));
+      }
+    });
     const program = buildProgram(space, current, sens, {
       radius,
       epsilon: lpEpsilon,
       limitShare: LP_LIMIT_SHARE,
+      shearShare,
       V0,
     });
     lastLinear = { sens, program };
@@ -257,7 +277,7 @@ export async function optimizeBalance(
   let snap: SnapReport | undefined;
   const linear = sens ?? lastLinear?.sens;
   if (!options.continuousOnly) {
-    const snapped = snapDesign(space, current, linear, { merit });
+    const snapped = snapDesign(space, current, linear, { merit: judge });
     simulations += snapped.simulations;
     after = snapped.evaluation;
     snap = snapped;
@@ -288,7 +308,7 @@ export async function optimizeBalance(
       if (second.ok) {
         simulations += second.outcome.simulations;
         const refined = remap(space, second.outcome.space, second.outcome.after);
-        if (merit(refined) < merit(after)) {
+        if (judge(refined) < judge(after)) {
           after = refined;
           const runnerChoices = space.variables.flatMap((v) =>
             v.kind === "runner"
@@ -316,7 +336,7 @@ export async function optimizeBalance(
     const fixedOutcome = await relaxAndFixRunners(scenario, space, current, options);
     if (fixedOutcome) {
       simulations += fixedOutcome.simulations;
-      if (merit(fixedOutcome.evaluation) < merit(after)) {
+      if (judge(fixedOutcome.evaluation) < judge(after)) {
         after = fixedOutcome.evaluation;
         snap = {
           ...fixedOutcome,
@@ -347,13 +367,21 @@ export async function optimizeBalance(
  * Violation of the goals in log measure (0 when every limit is met): the ℓ₁ log-band
  * distance of the fill times, plus ln(value/limit) for each gate's shear and the feed
  * pressure when over. Log measure makes power-law responses linear in log sizes.
+ * With `split` (default true) the fill-time term is the larger of the simulated and
+ * the split fill times' distances, matching the LP's model (the optimizer's merit);
+ * with `split: false` only the simulated times count. Gate shear is the balanced
+ * split's (before the first cavity is full; default) or the peak up to switchover,
+ * which also carries the over-packing that any imbalance causes.
  */
-export function violation(e: DesignEvaluation, epsilon: number): number {
-  let v = Math.max(
-    imbalanceViolation(e.fillTimes, epsilon),
-    imbalanceViolation(e.splitFillTimes, epsilon),
-  );
-  for (const s of e.gateShear) v += Math.max(0, Math.log(s / e.gateShearLimit));
+export function violation(
+  e: DesignEvaluation,
+  epsilon: number,
+  options: { split?: boolean; shear?: "balanced" | "peak" } = {},
+): number {
+  let v = imbalanceViolation(e.fillTimes, epsilon);
+  if (options.split ?? true) v = Math.max(v, imbalanceViolation(e.splitFillTimes, epsilon));
+  const shear = (options.shear ?? "balanced") === "balanced" ? e.gateShearBalanced : e.gateShear;
+  for (const s of shear) v += Math.max(0, Math.log(s / e.gateShearLimit));
   v += Math.max(0, Math.log(e.feedPressurePeak / e.pressureLimit));
   for (const x of e.violations) {
     if (x.code === "not_filled") v += 1;
@@ -387,6 +415,8 @@ interface ProgramOptions {
   epsilon: number;
   /** Share of the shear and pressure limits to aim for. */
   limitShare: number;
+  /** Per cavity: share of the shear limit its balanced-split gate shear may use. */
+  shearShare?: readonly number[];
   V0: number;
   /** Ignore the design space's lower/upper bounds and use these (for the infeasibility explanation). */
   bounds?: { lower: number[]; upper: number[] };
@@ -456,10 +486,12 @@ function buildProgram(
       upper: lt + band,
     });
   });
-  // Gate shear: the true peak up to switchover, with the mean-flow slopes of sensitivities.ts.
-  e.gateShear.forEach((g, i) => {
+  // Gate shear: the balanced split's (the peak up to switchover adds the over-packing that
+  // imbalance causes, which the fill-time rows already deal with), with the mean-flow slopes
+  // of sensitivities.ts, against a per-gate share of the limit.
+  e.gateShearBalanced.forEach((g, i) => {
     if (!(g > 0)) return;
-    const over = Math.log(g / (o.limitShare * e.gateShearLimit));
+    const over = Math.log(g / ((o.shearShare?.[i] ?? o.limitShare) * e.gateShearLimit));
     linearMeritAtZero += PENALTY * Math.max(0, over);
     const k = slack(`s_shear_${i}`);
     rows.push({
@@ -652,13 +684,18 @@ async function relaxAndFixRunners(
   const catalogue = cutterCatalogue(scenario.goals.cutters);
   if (catalogue.kind !== "discrete") return undefined;
   const steelSafe = scenario.goals.mode === "steel_safe";
+  const epsilon = scenario.goals.max_imbalance_percent / 100;
+  const V0 = continuous.runnerVolume;
+  const judgeOf = (e: DesignEvaluation) =>
+    e.runnerVolume / V0 + PENALTY * (violation(e, epsilon, { split: false }) +
+        violation(e, epsilon, { split: false, shear: "peak" }));
   const work: Scenario = structuredClone(scenario);
   const sizes = new Map(space.variables.map((v, j) => [v.element, continuous.x[j]]));
   const labels = new Map<string, string>();
   let simulations = 0;
   for (;;) {
     let pick:
-      | { v: (typeof space.variables)[number]; size: number; label: string; gap: number }
+      | { v: (typeof space.variables)[number]; sides: Cutter[]; gap: number }
       | undefined;
     for (const v of space.variables) {
       if (v.kind !== "runner" || labels.has(v.element)) continue;
@@ -671,65 +708,73 @@ async function relaxAndFixRunners(
       if (feedsUnfixed) continue;
       const x = sizes.get(v.element)!;
       const { below, above, exact } = neighbouringSizes(catalogue, x);
-      const allowed = (exact ? [exact] : [below, above]).filter((c): c is NonNullable<typeof c> =>
+      const allowed = (exact ? [exact] : [below, above]).filter((c): c is Cutter =>
         c !== undefined && c.size >= v.lower * (1 - 1e-9) && c.size <= v.upper * (1 + 1e-9) &&
         (!steelSafe || c.size >= v.current * (1 - 1e-9))
       );
       // Never against the feed order with a runner already on its cutter.
-      const ordered = allowed.filter((c) =>
-        space.ordering.every((rule) => {
-          const up = space.variables[rule.upstream].element;
-          const down = space.variables[rule.downstream].element;
-          if (down === v.element && labels.has(up)) return c.size <= sizes.get(up)! * (1 + 1e-9);
-          if (up === v.element && labels.has(down)) return c.size >= sizes.get(down)! * (1 - 1e-9);
-          return true;
-        })
+      const fedSize = Math.max(
+        0,
+        ...space.ordering.filter((rule) => space.variables[rule.upstream] === v).map((rule) =>
+          sizes.get(space.variables[rule.downstream].element)!
+        ),
       );
-      if (ordered.length === 0) {
+      let sides = allowed.filter((c) => c.size >= fedSize * (1 - 1e-9));
+      if (sides.length === 0) {
         // Both neighbours are smaller than a runner this one feeds: the next cutter up that is not.
-        const need = Math.max(
-          0,
-          ...space.ordering.filter((rule) => space.variables[rule.upstream] === v).map((rule) =>
-            sizes.get(space.variables[rule.downstream].element)!
-          ),
-        );
         const up = catalogue.cutters.find((c) =>
-          c.size >= need * (1 - 1e-9) && c.size <= v.upper * (1 + 1e-9)
+          c.size >= fedSize * (1 - 1e-9) && c.size <= v.upper * (1 + 1e-9)
         );
-        if (up) ordered.push(up);
+        sides = up ? [up] : allowed;
       }
-      for (const c of ordered.length > 0 ? ordered : allowed) {
-        const gap = Math.abs(Math.log(c.size / x));
-        if (!pick || gap < pick.gap) pick = { v, size: c.size, label: c.label, gap };
-      }
-      if (allowed.length === 0) return undefined;
+      if (sides.length === 0) return undefined;
+      sides.sort((a, b) => Math.abs(Math.log(a.size / x)) - Math.abs(Math.log(b.size / x)));
+      const gap = Math.abs(Math.log(sides[0].size / x));
+      if (!pick || gap < pick.gap) pick = { v, sides, gap };
     }
     if (!pick) break;
-    work.runners[pick.v.index].diameter_mm = mToMm(pick.size);
-    work.runners[pick.v.index].adjustable = false;
-    sizes.set(pick.v.element, pick.size);
-    labels.set(pick.v.element, pick.label);
     if (options.cancelled?.()) return undefined;
-    const free = space.variables.filter((v) => v.kind === "gate" || !labels.has(v.element));
-    if (free.length === 0) break;
-    const sub = await optimizeBalance(work, {
-      solver: options.solver,
-      cancelled: options.cancelled,
-      continuousOnly: true,
-      maxIterations: 8,
-      start: sizes,
-    });
-    if (!sub.ok) return undefined;
-    simulations += sub.outcome.simulations;
-    sub.outcome.space.variables.forEach((v, j) =>
-      sizes.set(v.element, sub.outcome.continuous.x[j])
-    );
+    const v = pick.v;
+    labels.set(v.element, "");
+    work.runners[v.index].adjustable = false;
+    const free = space.variables.filter((u) => u.kind === "gate" || !labels.has(u.element));
+    // Nearest cutter first; the other side only when the nearest leaves a limit broken.
+    let best: { cutter: Cutter; sizes: Map<string, number>; score: number } | undefined;
+    for (const cutter of pick.sides) {
+      work.runners[v.index].diameter_mm = mToMm(cutter.size);
+      const trial = new Map(sizes);
+      trial.set(v.element, cutter.size);
+      let score = 0;
+      if (free.length > 0) {
+        const sub = await optimizeBalance(work, {
+          solver: options.solver,
+          cancelled: options.cancelled,
+          continuousOnly: true,
+          maxIterations: 8,
+          start: trial,
+        });
+        if (!sub.ok) continue;
+        simulations += sub.outcome.simulations;
+        const e = sub.outcome.continuous;
+        sub.outcome.space.variables.forEach((u, j) => trial.set(u.element, e.x[j]));
+        score = judgeOf(e);
+        if (!best || score < best.score) best = { cutter, sizes: trial, score };
+        if (e.feasible) break;
+      } else {
+        best = { cutter, sizes: trial, score };
+        break;
+      }
+    }
+    if (!best) return undefined;
+    work.runners[v.index].diameter_mm = mToMm(best.cutter.size);
+    labels.set(v.element, best.cutter.label);
+    for (const [k, value] of best.sizes) sizes.set(k, value);
   }
   // Gates last: the usual snapping on the space of the gates alone.
   const gateOnly = optimizeBalanceSpaceAt(work, sizes);
   if (!gateOnly) return undefined;
   const gateSnap = snapDesign(gateOnly.space, gateOnly.evaluation, undefined, {
-    merit: (e) => e.runnerVolume + 1e3 * violation(e, scenario.goals.max_imbalance_percent / 100),
+    merit: judgeOf,
   });
   simulations += gateOnly.simulations + gateSnap.simulations + 1;
   // Judged again in the full space, where the feed-order rules between runners apply.

@@ -95,9 +95,20 @@ export function designSpace(scenario: Scenario): DesignSpace {
     variables.push({ ...v, lower, upper, lowerReason, upperReason });
   };
 
+  const { parentOf } = runnerTree(scenario);
+  const runnerById = new Map(scenario.runners.map((r) => [r.id, r]));
   scenario.runners.forEach((r, index) => {
     if (!r.adjustable) return;
     const d = r.diameter_mm;
+    // Feed order against fixed neighbours: never smaller than a fixed runner it feeds, never
+    // larger than a fixed runner feeding it (between two adjustable runners: `ordering`).
+    const fixedChildren = scenario.runners.filter((c) =>
+      !c.adjustable && parentOf.get(c.id) === r.id
+    );
+    const parentId = parentOf.get(r.id);
+    const fixedParent = parentId !== undefined && !runnerById.get(parentId)!.adjustable
+      ? runnerById.get(parentId)
+      : undefined;
     const lower: [number, string][] = [[
       mmToM(r.min_diameter_mm ?? Math.max(2, d / 2)),
       "min_diameter_mm",
@@ -111,6 +122,12 @@ export function designSpace(scenario: Scenario): DesignSpace {
       lower.push([mmToM(w + RUNNER_OVER_WALL_MM), "runner ≥ wall + 1.5 mm rule"]);
     }
     if (steelSafe) lower.push([mmToM(d), "steel-safe: today's size"]);
+    for (const c of fixedChildren) {
+      lower.push([mmToM(c.diameter_mm), `the fixed runner ${c.id} it feeds`]);
+    }
+    if (fixedParent) {
+      upper.push([mmToM(fixedParent.diameter_mm), `the fixed runner ${fixedParent.id} feeding it`]);
+    }
     push({ element: r.id, kind: "runner", dimension: "diameter", index, current: mmToM(d) }, {
       lower,
       upper,

@@ -13,7 +13,7 @@ import { type DesignEvaluation, evaluateDesign, runnerVolumeOf } from "./evaluat
  * gate of cavity i], m = 3 for a round section scaled as a whole (power-law tube,
  * γ̇_w = (3n+1)/(4n)·4Q/(πR³)) and m = 2 for an edge gate's depth (power-law slit,
  * γ̇_w = (2n+1)/(3n)·6Q/(WH²)); Bird, Armstrong & Hassager, *Dynamics of Polymeric
- * Liquids* vol. 1. The optimizer applies it to the true peak.
+ * Liquids* vol. 1.
  * The step is a fixed fraction of the size, large enough to rise above the
  * simulation's event-placement noise (≈1e-9 relative in fill time) and small
  * enough to stay in the linear range; it points inward at a bound.
@@ -25,7 +25,7 @@ import { type DesignEvaluation, evaluateDesign, runnerVolumeOf } from "./evaluat
 export interface Sensitivities {
   /** fillTime[i][j]: split fill time (`splitFillTimes`), s per m. */
   fillTime: number[][];
-  /** gateShear[i][j]: peak gate shear by the mean-flow law above, (1/s) per m, cavity order. */
+  /** gateShear[i][j]: balanced-split gate shear by the mean-flow law above, (1/s) per m, cavity order. */
   gateShear: number[][];
   /** pressure[j]: Pa per m. */
   pressure: number[];
@@ -67,7 +67,7 @@ export function finiteDifferenceSensitivities(
       if (v.kind === "gate" && space.gateCavity[j] === i) {
         logSlope -= v.dimension === "thickness" ? 2 : 3;
       }
-      gateShear[i][j] = (logSlope * base.gateShear[i]) / xj;
+      gateShear[i][j] = (logSlope * base.gateShearBalanced[i]) / xj;
     }
     pressure[j] = (e.feedPressurePeak - base.feedPressurePeak) / h;
     runnerVolume[j] = (runnerVolumeOf(space, x) - base.runnerVolume) / h;

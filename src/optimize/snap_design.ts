@@ -210,7 +210,7 @@ function predictMerit(
     ...base,
     x,
     fillTimes: base.splitFillTimes.map((t, i) => t + dot(s.fillTime[i])),
-    gateShear: base.gateShear.map((g, i) => g + dot(s.gateShear[i])),
+    gateShearBalanced: base.gateShearBalanced.map((g, i) => g + dot(s.gateShear[i])),
     feedPressurePeak: base.feedPressurePeak + dot(s.pressure),
     runnerVolume: base.runnerVolume + dot(s.runnerVolume),
     violations: [],

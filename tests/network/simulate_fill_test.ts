@@ -150,7 +150,12 @@ Deno.test("family mold: the high-resistance cavity lags, and restricting the oth
 });
 
 Deno.test("multi-gated cavity (a loop): the two gate flows add up to the cavity intake", async () => {
-  const r = run(await demo("two_gate_frame_and_knob.json"));
+  // The knob's feed opened wide, so that the frame is the cavity still filling at switchover.
+  const wire = await demo("two_gate_frame_and_knob.json");
+  wire.runners!.find((x) => x.id === "R4")!.diameter_mm = 8;
+  const knobGate = wire.gates.find((x) => x.id === "G3")!;
+  if (knobGate.type === "tunnel") knobGate.diameter_mm = 1.5;
+  const r = run(wire);
   const flow = (id: string) => r.fill.elements.find((e) => e.id === id)!.flowAtSwitchover;
   const g1 = flow("G1");
   const g2 = flow("G2");

@@ -1,0 +1,129 @@
+/**
+ * Every demo scenario, optimized as shipped, must meet its own goals, and the
+ * check must not trust the optimizer's own evaluation: the final sizes are
+ * written back into the scenario and simulated again from scratch here.
+ *
+ * The limits are the scenario's goals (imbalance target, the resin's or the
+ * scenario's gate-shear limit, a fraction of the press's injection pressure);
+ * the cutter series are the ball-end catalogues of `optimize/cutters.ts`
+ * (common practice, no source) and a 0.05 mm step for gates (common practice,
+ * no source).
+ */
+import assert from "node:assert/strict";
+import { materialById } from "../../src/materials/library.ts";
+import { parseScenarioText } from "../../src/model/parse_scenario.ts";
+import type { Scenario } from "../../src/model/scenario_schema.ts";
+import { LIBRARY_MATERIAL_IDS, runScenario } from "../../src/network/simulate_scenario.ts";
+import { optimizeBalance } from "../../src/optimize/balance.ts";
+import { changeList } from "../../src/optimize/change_list.ts";
+import { cutterCatalogue } from "../../src/optimize/cutters.ts";
+import { applyDesign } from "../../src/optimize/design_space.ts";
+
+const DEMOS = ["family_four_housing", "hot_drop_eight_caps", "two_gate_frame_and_knob"];
+
+function load(name: string): Scenario {
+  const text = Deno.readTextFileSync(new URL(`../../scenarios/${name}.json`, import.meta.url));
+  const parsed = parseScenarioText(text, { materialIds: LIBRARY_MATERIAL_IDS });
+  assert.ok(parsed.ok, `${name}: ${JSON.stringify(!parsed.ok && parsed.issues)}`);
+  return parsed.scenario;
+}
+
+/** Runner ids and the runner each is fed by (breadth-first from the feed node). */
+function feedingRunner(s: Scenario): Map<string, string> {
+  const parent = new Map<string, string>();
+  const reachedBy = new Map<string, string | undefined>([[s.feed.node, undefined]]);
+  const queue = [s.feed.node];
+  const seen = new Set<string>();
+  while (queue.length > 0) {
+    const node = queue.shift()!;
+    for (const r of s.runners) {
+      if (seen.has(r.id)) continue;
+      const other = r.from === node ? r.to : r.to === node ? r.from : undefined;
+      if (other === undefined) continue;
+      seen.add(r.id);
+      const up = reachedBy.get(node);
+      if (up !== undefined) parent.set(r.id, up);
+      if (!reachedBy.has(other)) {
+        reachedBy.set(other, r.id);
+        queue.push(other);
+      }
+    }
+  }
+  return parent;
+}
+
+for (const name of DEMOS) {
+  Deno.test(`demo ${name}: optimized sizes meet every goal on an independent re-simulation`, async () => {
+    const scenario = load(name);
+    const result = await optimizeBalance(scenario);
+    assert.ok(result.ok, JSON.stringify(!result.ok && result));
+    const o = result.outcome;
+    assert.equal(o.status, "converged", o.reason);
+
+    const final = applyDesign(o.space, o.after.x);
+    const run = runScenario(final);
+    assert.ok(run.ok, JSON.stringify(!run.ok && run));
+    const fill = run.run.fill;
+    const goals = scenario.goals;
+
+    const times = fill.cavities.map((c) => c.fillTime);
+    const imbalance = (Math.max(...times) - Math.min(...times)) / Math.max(...times) * 100;
+    assert.ok(
+      imbalance <= goals.max_imbalance_percent,
+      `imbalance ${imbalance.toFixed(3)} % > ${goals.max_imbalance_percent} %`,
+    );
+    const material = typeof scenario.material === "string"
+      ? materialById(scenario.material)!
+      : undefined;
+    const shearLimit = goals.gate_shear_limit_1_s ?? material!.max_shear_rate_1_s;
+    for (const c of fill.cavities) {
+      assert.ok(
+        c.gateShearRatePeak <= shearLimit,
+        `${c.id}: gate shear ${c.gateShearRatePeak.toFixed(0)} 1/s > ${shearLimit} 1/s`,
+      );
+    }
+    const pressureLimitPa = goals.max_pressure_fraction *
+      scenario.machine.max_injection_pressure_MPa * 1e6;
+    assert.ok(
+      fill.feedPressurePeak <= pressureLimitPa,
+      `peak ${(fill.feedPressurePeak / 1e6).toFixed(1)} MPa > ${pressureLimitPa / 1e6} MPa`,
+    );
+
+    // Cuttable sizes: runners from the catalogue, gates on the 0.05 mm step.
+    const catalogue = cutterCatalogue(goals.cutters);
+    assert.equal(catalogue.kind, "discrete");
+    if (catalogue.kind !== "discrete") return;
+    for (const v of o.space.variables) {
+      if (v.kind === "runner") {
+        const d = final.runners[v.index].diameter_mm;
+        assert.ok(
+          catalogue.cutters.some((c) => Math.abs(c.size * 1000 - d) < 1e-6),
+          `${v.element}: ${d} mm is not a catalogue cutter`,
+        );
+      } else {
+        const g = final.gates[v.index];
+        const size = g.type === "edge" ? g.thickness_mm : g.diameter_mm!;
+        assert.ok(
+          Math.abs(size / 0.05 - Math.round(size / 0.05)) < 1e-6,
+          `${v.element}: ${size} mm is not on the 0.05 mm step`,
+        );
+      }
+    }
+    // Feed order: no runner smaller than a runner it feeds.
+    const parent = feedingRunner(final);
+    const diameter = new Map(final.runners.map((r) => [r.id, r.diameter_mm]));
+    for (const [child, up] of parent) {
+      assert.ok(
+        diameter.get(up)! >= diameter.get(child)! - 1e-9,
+        `${up} (${diameter.get(up)} mm) feeds the larger ${child} (${diameter.get(child)} mm)`,
+      );
+    }
+    // Steel-safe: nothing below today's size, and the change list says so.
+    if (goals.mode === "steel_safe") {
+      o.space.variables.forEach((v, j) => {
+        assert.ok(o.after.x[j] >= v.current * (1 - 1e-9), `${v.element} below today's size`);
+      });
+      for (const c of changeList(o)) assert.equal(c.steelSafe, true, `${c.element} shrinks`);
+    }
+  });
+}
