@@ -157,7 +157,9 @@ export async function optimizeBalance(
 
   let radius = 0.2; // trust region as a fraction of each size
   let lpEpsilon = LP_BAND_SHARE * epsilon;
-  const shearShare = current.gateShear.map(() => LP_LIMIT_SHARE);
+  // Room below the limits for the cutter snapping; none for a continuous answer.
+  const limitShare = scenario.goals.cutters === "continuous" ? 0.999 : LP_LIMIT_SHARE;
+  const shearShare: number[] = current.gateShear.map(() => limitShare);
   const iterations: BalanceIteration[] = [];
   let status: BalanceStatus = "iteration_limit";
   let reason = `stopped after ${maxIterations} iterations`;
@@ -196,7 +198,7 @@ export async function optimizeBalance(
     const program = buildProgram(space, current, sens, {
       radius,
       epsilon: lpEpsilon,
-      limitShare: LP_LIMIT_SHARE,
+      limitShare,
       shearShare,
       V0,
     });
@@ -211,19 +213,50 @@ export async function optimizeBalance(
     }
     const step = program.toDesign(lp.x);
     const meritNow = merit(current);
-    // The LP objective has no constant term: add the current volume share back.
-    const predicted = program.linearMeritAtZero - (current.runnerVolume / V0 + lp.objective);
+    // Predicted fall of the merit itself (the LP aims inside the limits, so its own
+    // objective would promise more than the merit can show).
+    const predicted = modelMerit(space, current, sens, current.x, { epsilon, V0 }) -
+      modelMerit(space, current, sens, step.x, { epsilon, V0 });
+    // What the LP itself expects to gain (its objective has no constant term).
+    const lpGain = program.linearMeritAtZero - (current.runnerVolume / V0 + lp.objective);
     const trialOutcome = evaluate(step.x);
     let accepted = false;
     let actual = 0;
-    if (trialOutcome.ok) {
-      const trial = trialOutcome.evaluation;
+    let trialResult = trialOutcome;
+    if (trialOutcome.ok && meritNow - merit(trialOutcome.evaluation) < 0.75 * predicted) {
+      // Second-order correction (Fletcher, *Practical Methods of Optimization*, 2nd ed.,
+      // §14.4): the responses curve away from their tangents along the step; tighten each
+      // row by its miss at the trial and solve the same linearisation again.
+      const t = trialOutcome.evaluation;
+      const model = modelResponses(space, current, sens, step.x);
+      const miss = (actualValue: number, modelValue: number) =>
+        actualValue > 0 && modelValue > 0 ? Math.log(actualValue / modelValue) : 0;
+      const corrected = buildProgram(space, current, sens, {
+        radius,
+        epsilon: lpEpsilon,
+        limitShare,
+        shearShare,
+        V0,
+        shifts: {
+          times: t.splitFillTimes.map((v, i) => miss(v, model.times[i])),
+          shear: t.gateShearBalanced.map((v, i) => miss(v, model.shear[i])),
+          pressure: miss(t.feedPressurePeak, model.pressure),
+        },
+      });
+      const lp2 = await solver.solve(corrected.lp, { timeLimitSeconds: 20 });
+      if (lp2.status === "optimal") {
+        const second = evaluate(corrected.toDesign(lp2.x).x);
+        if (second.ok && merit(second.evaluation) < merit(t)) trialResult = second;
+      }
+    }
+    if (trialResult.ok) {
+      const trial = trialResult.evaluation;
       actual = meritNow - merit(trial);
       accepted = predicted > 0 && actual >= 0.1 * predicted;
       if (accepted) {
         const good = actual >= 0.75 * predicted;
         current = trial;
-        currentOutcome = trialOutcome;
+        currentOutcome = trialResult;
         sens = undefined;
         if (good && step.atEdge) radius = Math.min(0.5, radius * 2);
       } else radius *= 0.5;
@@ -243,7 +276,7 @@ export async function optimizeBalance(
     iterations.push(record);
     options.onProgress?.(record);
     const feasible = violation(current, epsilon) === 0;
-    if (feasible && predicted < 1e-4) {
+    if (feasible && lpGain < 1e-7) {
       status = "converged";
       reason =
         "every limit met and no step the linear model trusts lowers the runner volume further";
@@ -422,6 +455,11 @@ interface ProgramOptions {
   bounds?: { lower: number[]; upper: number[] };
   /** Use `bounds` as they are, without widening them to contain today's design. */
   exactBounds?: boolean;
+  /**
+   * Second-order correction: how far (in log) the simulated responses at a trial step
+   * sat above the linear model; the rows are tightened by as much.
+   */
+  shifts?: { times: number[]; shear: number[]; pressure: number };
 }
 
 /**
@@ -476,14 +514,14 @@ function buildProgram(
       name: `late_${i}`,
       terms: [...slope, [w, -1], [late, -1]],
       lower: -Infinity,
-      upper: -lt,
+      upper: -lt - (o.shifts?.times[i] ?? 0),
     });
     const early = slack(`s_early_${i}`);
     rows.push({
       name: `early_${i}`,
       terms: [...slope.map(([j, c]) => [j, -c] as [number, number]), [w, 1], [early, -1]],
       lower: -Infinity,
-      upper: lt + band,
+      upper: lt + band + (o.shifts?.times[i] ?? 0),
     });
   });
   // Gate shear: the balanced split's (the peak up to switchover adds the over-packing that
@@ -498,7 +536,7 @@ function buildProgram(
       name: `shear_${i}`,
       terms: [...logSlope(s.gateShear[i], g), [k, -1]],
       lower: -Infinity,
-      upper: -over,
+      upper: -over - (o.shifts?.shear[i] ?? 0),
     });
   });
   const over = Math.log(e.feedPressurePeak / (o.limitShare * e.pressureLimit));
@@ -508,7 +546,7 @@ function buildProgram(
     name: "pressure",
     terms: [...logSlope(s.pressure, e.feedPressurePeak), [kp, -1]],
     lower: -Infinity,
-    upper: -over,
+    upper: -over - (o.shifts?.pressure ?? 0),
   });
   // Feeding runner ≥ fed runner, in logs: ln x_a + Δu_a ≥ ln x_b + Δu_b; never worse than today.
   for (const rule of space.ordering) {
@@ -810,4 +848,41 @@ function optimizeBalanceSpaceAt(
   );
   const outcome = evaluateDesign(space, x);
   return outcome.ok ? { space, evaluation: outcome.evaluation, simulations: 1 } : undefined;
+}
+
+/** The responses the linear model predicts at sizes `x` (log-linear in the log sizes, as in the LP). */
+function modelResponses(
+  space: DesignSpace,
+  e: DesignEvaluation,
+  s: Sensitivities,
+  x: ArrayLike<number>,
+): { times: number[]; shear: number[]; pressure: number; volume: number } {
+  const logStep = Array.from(space.variables, (_, j) => Math.log(x[j] / e.x[j]));
+  const move = (row: readonly number[], value: number) =>
+    value * Math.exp(row.reduce((sum, g, j) => sum + (g * e.x[j] / value) * logStep[j], 0));
+  return {
+    times: e.splitFillTimes.map((t, i) => move(s.fillTime[i], t)),
+    shear: e.gateShearBalanced.map((g, i) => (g > 0 ? move(s.gateShear[i], g) : g)),
+    pressure: move(s.pressure, e.feedPressurePeak),
+    volume: e.runnerVolume +
+      s.runnerVolume.reduce((sum, g, j) => sum + g * e.x[j] * logStep[j], 0),
+  };
+}
+
+/**
+ * The merit as the linear model predicts it at sizes `x`, judged against the goals
+ * themselves (not the LP's narrower aims).
+ */
+function modelMerit(
+  space: DesignSpace,
+  e: DesignEvaluation,
+  s: Sensitivities,
+  x: ArrayLike<number>,
+  o: { epsilon: number; V0: number },
+): number {
+  const r = modelResponses(space, e, s, x);
+  let v = imbalanceViolation(r.times, o.epsilon);
+  for (const g of r.shear) if (g > 0) v += Math.max(0, Math.log(g / e.gateShearLimit));
+  v += Math.max(0, Math.log(r.pressure / e.pressureLimit));
+  return r.volume / o.V0 + PENALTY * v;
 }

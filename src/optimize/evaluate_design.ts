@@ -26,10 +26,13 @@ export interface DesignEvaluation {
   /** Cavity fill times, s. */
   fillTimes: number[];
   /**
-   * The fill time each cavity would have if the flow split before the first cavity is
-   * full held to the end: t_first / (fill fraction at t_first), s. Smooth in the sizes,
-   * where the true fill times have a kink at balance (at a constant injection rate the
-   * last cavity always fills at V/Q, whatever the sizes), so the optimizer steers with it.
+   * The fill time each cavity would have if its intake at a reference instant held to
+   * the end: t_ref + (1 − f_i)·V_i/Q_i, s, with f_i its fill fraction at t_ref and Q_i its
+   * mean intake over [0.9·t_ref, t_ref]; t_ref is when the cavities together hold
+   * {@link SPLIT_REFERENCE_SHARE} of their volume, or 98 % of the first cavity's fill
+   * time if that comes sooner. Smooth in the sizes, where the
+   * true fill times have a kink at balance (at a constant injection rate the last cavity
+   * always fills at V/Q, whatever the sizes), so the optimizer steers with it.
    */
   splitFillTimes: number[];
   imbalancePercent: number;
@@ -42,6 +45,11 @@ export interface DesignEvaluation {
   gateShearBalanced: number[];
   gateShearLimit: number;
   feedPressurePeak: number;
+  /**
+   * Feed pressure at the split reference instant (see `splitFillTimes`), Pa: smooth in
+   * the sizes, where the peak up to switchover jumps with the order cavities fill in.
+   */
+  feedPressureReference: number;
   /** Allowed peak pressure = max_pressure_fraction × machine limit, Pa. */
   pressureLimit: number;
   /** Cold sprue + runner + gate volume, m³ (the objective). */
@@ -78,10 +86,8 @@ export function evaluateDesign(space: DesignSpace, x: Float64Array): EvaluationO
   const goals = scenario.goals;
   const fill = run.fill;
   const fillTimes = fill.cavities.map((c) => c.fillTime);
-  const firstFull = Math.min(...fillTimes);
-  const splitFillTimes = fill.cavities.map((c) =>
-    c.fillAtFirstFull > 0.05 ? firstFull / c.fillAtFirstFull : c.fillTime
-  );
+  const split = splitFigures(run);
+  const splitFillTimes = split.times;
   const gateShear = fill.cavities.map((c) => c.gateShearRatePeak);
   const gateShearBalanced = fill.cavities.map((c) => c.gateShearRatePeakBeforeFirstFull);
   const gateShearLimit = goals.gate_shear_limit_1_s ?? run.material.maxShearRate;
@@ -139,6 +145,7 @@ export function evaluateDesign(space: DesignSpace, x: Float64Array): EvaluationO
       run,
       fillTimes,
       splitFillTimes,
+      feedPressureReference: split.pressure,
       imbalancePercent: imbalance,
       gateShear,
       gateShearBalanced,
@@ -151,3 +158,58 @@ export function evaluateDesign(space: DesignSpace, x: Float64Array): EvaluationO
     },
   };
 }
+
+/** Share of the total cavity volume filled at the split reference instant. */
+export const SPLIT_REFERENCE_SHARE = 0.95;
+
+/**
+ * Split fill times (see `DesignEvaluation.splitFillTimes`) and the feed pressure at
+ * the same reference instant, from a run's fill history (linear between samples).
+ */
+function splitFigures(run: ScenarioRun): { times: number[]; pressure: number } {
+  const volumes = run.network.cavities.map((c) => c.volume);
+  const total = volumes.reduce((a, b) => a + b, 0);
+  const held = (f: readonly number[]) => f.reduce((sum, fi, i) => sum + fi * volumes[i], 0);
+  const history = run.fill.history;
+  const fallback = { times: run.fill.cavities.map((c) => c.fillTime), pressure: NaN };
+  // Never past the first cavity's fill (its intake stops there): at most 98 % of that time.
+  const latest = 0.98 * Math.min(...fallback.times);
+  const target = SPLIT_REFERENCE_SHARE * total;
+  let tRef = latest;
+  for (let k = 1; k < history.length; k++) {
+    const ha = held(history[k - 1].cavityFill);
+    const hb = held(history[k].cavityFill);
+    if (hb >= target && hb > ha) {
+      const w = (target - ha) / (hb - ha);
+      tRef = Math.min(latest, history[k - 1].time + w * (history[k].time - history[k - 1].time));
+      break;
+    }
+  }
+  const at = (t: number) => {
+    for (let k = 1; k < history.length; k++) {
+      const a = history[k - 1];
+      const b = history[k];
+      if (b.time < t || b.time <= a.time) continue;
+      const w = Math.max(0, Math.min(1, (t - a.time) / (b.time - a.time)));
+      return {
+        fill: a.cavityFill.map((f, i) => f + w * (b.cavityFill[i] - f)),
+        pressure: a.feedPressure + w * (b.feedPressure - a.feedPressure),
+      };
+    }
+    return undefined;
+  };
+  const now = at(tRef);
+  const earlier = at(SPLIT_WINDOW_START * tRef);
+  if (!now || !earlier) return { ...fallback, pressure: run.fill.feedPressurePeak };
+  const window = (1 - SPLIT_WINDOW_START) * tRef;
+  return {
+    times: volumes.map((_, i) => {
+      const rate = (now.fill[i] - earlier.fill[i]) / window;
+      return rate > 0 && now.fill[i] > 0.05 ? tRef + (1 - now.fill[i]) / rate : fallback.times[i];
+    }),
+    pressure: now.pressure,
+  };
+}
+
+/** The intake rate behind the split fill times is the mean over [0.9·t_ref, t_ref]. */
+const SPLIT_WINDOW_START = 0.9;

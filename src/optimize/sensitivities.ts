@@ -27,7 +27,11 @@ export interface Sensitivities {
   fillTime: number[][];
   /** gateShear[i][j]: balanced-split gate shear by the mean-flow law above, (1/s) per m, cavity order. */
   gateShear: number[][];
-  /** pressure[j]: Pa per m. */
+  /**
+   * pressure[j]: peak feed pressure, Pa per m, with the relative slope of the pressure at
+   * the split reference instant (the peak itself jumps at balance, when the order in
+   * which cavities fill changes).
+   */
   pressure: number[];
   /** runnerVolume[j]: m³ per m. */
   runnerVolume: number[];
@@ -69,7 +73,9 @@ export function finiteDifferenceSensitivities(
       }
       gateShear[i][j] = (logSlope * base.gateShearBalanced[i]) / xj;
     }
-    pressure[j] = (e.feedPressurePeak - base.feedPressurePeak) / h;
+    // The reference pressure's relative slope, applied to the peak (see below).
+    pressure[j] = ((e.feedPressureReference - base.feedPressureReference) / h) *
+      (base.feedPressurePeak / base.feedPressureReference);
     runnerVolume[j] = (runnerVolumeOf(space, x) - base.runnerVolume) / h;
   }
   return { fillTime, gateShear, pressure, runnerVolume, simulations };

@@ -111,3 +111,118 @@ Deno.test("steel-safe mode never shrinks, and reports infeasible with the change
     `explanation should name R2 shrinking: ${JSON.stringify(o.wouldNeed)}`,
   );
 });
+
+/**
+ * Feed F → R0 → S, two-way split at S (R1a, R1b), two-way splits at A and B (R2a…R2d),
+ * identical pin gates and cavities. Runners only are adjustable.
+ */
+function symmetricTree(n: number, machineMPa: number): ScenarioWire {
+  const cavity = (id: string) => ({
+    id,
+    volume_cm3: 50,
+    projected_area_cm2: 100,
+    wall_mm: 3,
+    flow_length_mm: 100,
+    fill_pattern: "strip" as const,
+  });
+  const runner = (id: string, from: string, to: string) => ({
+    id,
+    from,
+    to,
+    diameter_mm: 5,
+    adjustable: true,
+    min_diameter_mm: 1.5,
+    max_diameter_mm: 12,
+  });
+  const gate = (id: string, from: string, cavityId: string) => ({
+    id,
+    from,
+    cavity: cavityId,
+    type: "pin" as const,
+    diameter_mm: 2,
+    land_mm: 1,
+  });
+  return {
+    format: "evenfill.scenario/1",
+    name: "symmetric tree at a pressure budget",
+    material: powerLawFluid(n === 1 ? 100 : 7500, n),
+    process: {
+      melt_temperature_C: 230,
+      mold_temperature_C: 40,
+      injection: { flow_rate_cm3_s: n === 1 ? 20 : 60 },
+      switchover_percent: 100,
+      thermal: "isothermal",
+    },
+    machine: { max_injection_pressure_MPa: machineMPa, clamp_force_kN: 100000 },
+    feed: { kind: "hot_drop", node: "F", length_mm: 20, diameter_mm: 8 },
+    nodes: [
+      { id: "F", x_mm: 0, y_mm: -30 },
+      { id: "S", x_mm: 0, y_mm: 0 },
+      { id: "A", x_mm: -40, y_mm: 0 },
+      { id: "B", x_mm: 40, y_mm: 0 },
+      { id: "A1", x_mm: -40, y_mm: 30 },
+      { id: "A2", x_mm: -40, y_mm: -30 },
+      { id: "B1", x_mm: 40, y_mm: 30 },
+      { id: "B2", x_mm: 40, y_mm: -30 },
+    ],
+    runners: [
+      runner("R0", "F", "S"),
+      runner("R1a", "S", "A"),
+      runner("R1b", "S", "B"),
+      runner("R2a", "A", "A1"),
+      runner("R2b", "A", "A2"),
+      runner("R2c", "B", "B1"),
+      runner("R2d", "B", "B2"),
+    ],
+    gates: [
+      gate("G1", "A1", "C1"),
+      gate("G2", "A2", "C2"),
+      gate("G3", "B1", "C3"),
+      gate(
+        "G4",
+        "B2",
+        "C4",
+      ),
+    ],
+    cavities: [cavity("C1"), cavity("C2"), cavity("C3"), cavity("C4")],
+    goals: {
+      mode: "new_tool",
+      max_imbalance_percent: 1,
+      max_pressure_fraction: 1,
+      cutters: "continuous",
+      gate_shear_limit_1_s: 1e7,
+      size_rules: false,
+    },
+  };
+}
+
+for (const n of [1, 0.38]) {
+  Deno.test(`minimum-volume symmetric tree at a pressure budget: radii step 2^(1/3) per split (n = ${n})`, async () => {
+    // Minimising Σ 2^l·L_l·r_l² subject to a fixed path drop Σ c·L_l·(Q/2^l)ⁿ/r_l^(3n+1)
+    // (power-law tube law) gives r_l^(3n+3) ∝ (Q/2^l)ⁿ/2^l, so r_l ∝ 2^(−l/3) for every n:
+    // the branching rule D_feed = D_branch·N^(1/3) (Murray's cube law; Lee & Stevenson,
+    // J. Reinforced Plastics and Composites, 1998). Budget: the start design's simulated peak
+    // pressure + 25 %, so that the runners shrink until the pressure limit binds.
+    const start = parse(symmetricTree(n, 400));
+    const first = await optimizeBalance(start, { maxIterations: 1 });
+    assert.ok(first.ok);
+    const budgetMPa = first.outcome.before.feedPressurePeak / 1e6 * 1.25;
+    const result = await optimizeBalance(parse(symmetricTree(n, budgetMPa)), {
+      maxIterations: 60,
+    });
+    assert.ok(result.ok, JSON.stringify(!result.ok && result));
+    const o = result.outcome;
+    assert.equal(o.status, "converged", o.reason);
+    const size = (id: string) => o.after.x[o.space.variables.findIndex((v) => v.element === id)];
+    const level1 = (size("R1a") + size("R1b")) / 2;
+    const level2 = (size("R2a") + size("R2b") + size("R2c") + size("R2d")) / 4;
+    const ratio = Math.cbrt(2);
+    if (Deno.env.get("EVENFILL_REPORT")) {
+      console.log(`n=${n}: ${size("R0") / level1} ${level1 / level2} ${o.simulations} simulations`);
+    }
+    assertClose(size("R0") / level1, ratio, { rel: 0.02, what: "R0 / level-1 diameter" });
+    assertClose(level1 / level2, ratio, { rel: 0.02, what: "level-1 / level-2 diameter" });
+    // The budget binds (otherwise the smallest runners would win).
+    assertClose(o.after.feedPressurePeak / 1e6, budgetMPa, { rel: 0.02, what: "peak vs budget" });
+  });
+}
