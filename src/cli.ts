@@ -15,12 +15,14 @@ import { resultJson } from "./report/result_json.ts";
 import { textReport } from "./report/text_report.ts";
 import { optimizeBalance } from "./optimize/balance.ts";
 import { optimizationJson, optimizationText } from "./report/optimization_report.ts";
+import { changeSheetCsv } from "./report/change_sheet_csv.ts";
+import { changeList } from "./optimize/change_list.ts";
 
 const USAGE = `evenfill — runner balancing for multi-cavity and family molds
 
 usage:
   evenfill simulate <scenario.json> [--json] [--history] [--csv] [--units metric|dual]
-  evenfill optimize <scenario.json> [--mode new_tool|trim|steel_safe] [--json] [--history]
+  evenfill optimize <scenario.json> [--mode new_tool|trim|steel_safe] [--json] [--history] [--csv]
   evenfill validate <scenario.json>
   evenfill materials
   evenfill schema [--write <path>]
@@ -143,15 +145,16 @@ export async function main(argv: readonly string[]): Promise<number> {
         console.error(`Optimization failed (${result.code}): ${result.message}`);
         return 3;
       }
-      if (args.flags.has("json")) {
-        console.log(
-          JSON.stringify(
-            optimizationJson(result.outcome, { history: args.flags.has("history") }),
-            null,
-            2,
-          ),
-        );
-      } else console.log(optimizationText(result.outcome).trimEnd());
+      const changes = changeList(result.outcome);
+      if (args.flags.has("csv")) {
+        Deno.stdout.writeSync(new TextEncoder().encode(changeSheetCsv(changes)));
+      } else if (args.flags.has("json")) {
+        const json = optimizationJson(result.outcome, {
+          history: args.flags.has("history"),
+          changes,
+        });
+        console.log(JSON.stringify(json, null, 2));
+      } else console.log(optimizationText(result.outcome, changes).trimEnd());
       return 0;
     }
     case "validate": {

@@ -72,3 +72,24 @@ Deno.test("simulate --csv prints the fill history with a header and one column p
   assert.ok(rows.length > 5);
   for (const row of rows) assert.equal(row.split(",").length, columns.length);
 });
+
+Deno.test("optimize --csv on the steel-safe demo: catalogue cutters, every change steel-safe", async () => {
+  const r = await run(["optimize", "scenarios/two_gate_frame_and_knob.json", "--csv"]);
+  assert.equal(r.code, 0, r.stderr);
+  const lines = r.stdout.trimEnd().split("\r\n").map((l) => l.split(","));
+  const header = lines[0];
+  assert.equal(header[0], "step");
+  assert.ok(lines.length > 1, "the demo's tool needs changes");
+  const at = (row: string[], name: string) => row[header.indexOf(name)];
+  // Metric ball-end series (common practice, no source): 2–3.5 mm in half steps, then whole mm.
+  const metric = new Set([2, 2.5, 3, 3.5, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13]);
+  for (const row of lines.slice(1)) {
+    assert.equal(at(row, "steel_safe"), "yes");
+    assert.ok(Number(at(row, "to_mm")) >= Number(at(row, "from_mm")));
+    if (at(row, "kind") === "runner") assert.ok(metric.has(Number(at(row, "to_mm"))));
+  }
+  assert.deepEqual(
+    lines.slice(1).map((row) => Number(at(row, "step"))),
+    lines.slice(1).map((_, i) => i + 1),
+  );
+});
