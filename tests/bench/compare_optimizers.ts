@@ -159,9 +159,13 @@ const cases: [string, () => unknown][] = [
         Deno.readTextFileSync(new URL("../../scenarios/family_four_housing.json", import.meta.url)),
       ),
   ],
-  ["family 16", () => familyLayout(16)],
+  // Edge gates: with tunnel gates inside the 25–60 % of wall rule, the generated parts
+  // over-shear at the generated rate whatever the sizes, and no method can be feasible.
+  ["family 16", () => familyLayout(16, { gate: "edge" })],
 ];
-if (Deno.args.includes("--large")) cases.push(["family 64", () => familyLayout(64)]);
+if (Deno.args.includes("--large")) {
+  cases.push(["family 64", () => familyLayout(64, { gate: "edge" })]);
+}
 
 const optimizeBalance = await loadBalance();
 const rows: Row[] = [];
