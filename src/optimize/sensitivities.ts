@@ -46,7 +46,8 @@ export const FD_RELATIVE_STEP = 0.01;
 export function finiteDifferenceSensitivities(
   space: DesignSpace,
   base: DesignEvaluation,
-): Sensitivities | { failure: string } {
+  options: { cancelled?: () => boolean } = {},
+): Sensitivities | { failure: string; cancelled?: true } {
   const n = space.variables.length;
   const cavities = base.splitFillTimes.length;
   const fillTime = Array.from({ length: cavities }, () => new Array<number>(n).fill(0));
@@ -61,6 +62,7 @@ export function finiteDifferenceSensitivities(
     if (xj + h > v.upper && xj - h >= v.lower) h = -h;
     const x = Float64Array.from(base.x);
     x[j] = xj + h;
+    if (options.cancelled?.()) return { failure: "cancelled by request", cancelled: true };
     const outcome = evaluateDesign(space, x);
     simulations++;
     if (!outcome.ok) return { failure: outcome.message };

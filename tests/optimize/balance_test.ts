@@ -226,3 +226,15 @@ for (const n of [1, 0.38]) {
     assertClose(o.after.feedPressurePeak / 1e6, budgetMPa, { rel: 0.02, what: "peak vs budget" });
   });
 }
+
+Deno.test("cancel is honoured between finite-difference simulations, not only between iterations", async () => {
+  const wire = JSON.parse(
+    await Deno.readTextFile(new URL("../../scenarios/family_four_housing.json", import.meta.url)),
+  );
+  let polls = 0;
+  const result = await optimizeBalance(parse(wire), { cancelled: () => ++polls > 3 });
+  assert.ok(result.ok, JSON.stringify(!result.ok && result));
+  assert.equal(result.outcome.status, "cancelled");
+  // Ten sizes would take eleven simulations for one set of slopes: it stopped inside it.
+  assert.ok(result.outcome.simulations <= 4, `${result.outcome.simulations} simulations`);
+});

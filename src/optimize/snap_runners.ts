@@ -1,0 +1,273 @@
+import type { Scenario } from "../model/scenario_schema.ts";
+import { mToMm } from "../model/units.ts";
+import {
+  type Cutter,
+  type CutterCatalogue,
+  cutterCatalogue,
+  neighbouringSizes,
+} from "./cutters.ts";
+import { applyDesign, type DesignSpace, designSpace } from "./design_space.ts";
+import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
+import type { LpSolver } from "./lp_solver.ts";
+import type { Sensitivities } from "./sensitivities.ts";
+import { snapDesign, type SnapReport } from "./snap_design.ts";
+import { formulateStep, PENALTY, violation } from "./slp_step.ts";
+
+/**
+ * Runner cutters chosen together with balance, for a continuous optimum whose
+ * nearest-cutter rounding breaks a limit: a dive on the linear model, and
+ * relax-and-fix on the full model (fix one runner, re-balance the rest).
+ *
+ * @module
+ */
+
+/** Share of the shear and pressure limits the dive's LP aims for. */
+const DIVE_LIMIT_SHARE = 0.97;
+
+/** What {@link relaxAndFixRunners} needs of the optimizer (passed in: no import cycle). */
+export interface RelaxAndFixOptions {
+  solver?: LpSolver;
+  cancelled?: () => boolean;
+  /** The continuous optimizer, run on the sizes still free after each fix. */
+  optimize: (
+    scenario: Scenario,
+    options: {
+      solver?: LpSolver;
+      cancelled?: () => boolean;
+      continuousOnly: boolean;
+      maxIterations: number;
+      start: ReadonlyMap<string, number>;
+    },
+  ) => Promise<
+    | {
+      ok: true;
+      outcome: { space: DesignSpace; continuous: DesignEvaluation; simulations: number };
+    }
+    | { ok: false }
+  >;
+}
+
+/** An evaluation from a sub-space (some variables fixed) expressed in the full space's x. */
+export function remap(full: DesignSpace, sub: DesignSpace, e: DesignEvaluation): DesignEvaluation {
+  const scenario = applyDesign(sub, e.x);
+  const x = Float64Array.from(full.variables, (v) => {
+    if (v.kind === "runner") return scenario.runners[v.index].diameter_mm / 1000;
+    const g = scenario.gates[v.index];
+    return (g.type === "edge" ? g.thickness_mm : g.diameter_mm) / 1000;
+  });
+  return { ...e, x };
+}
+
+/**
+ * Choose each runner's cutter (the one below or above its continuous size) by diving
+ * on the linear model around the continuous optimum: runners are fixed one at a time,
+ * largest relative rounding first, each to the side whose LP (gates and the runners
+ * not yet fixed free within their bounds and cutter intervals) predicts the lower
+ * merit. Returns the design the last LP proposes, or undefined when an LP fails.
+ */
+export async function diveRunnerCutters(
+  space: DesignSpace,
+  e: DesignEvaluation,
+  s: Sensitivities,
+  solver: LpSolver,
+  o: { epsilon: number; V0: number; catalogue: CutterCatalogue },
+): Promise<Float64Array | undefined> {
+  const steelSafe = space.scenario.goals.mode === "steel_safe";
+  const lower = space.variables.map((v) => v.lower);
+  const upper = space.variables.map((v) => v.upper);
+  const options: { j: number; sides: number[]; spread: number }[] = [];
+  space.variables.forEach((v, j) => {
+    if (v.kind !== "runner") return;
+    const { below, above, exact } = neighbouringSizes(o.catalogue, e.x[j]);
+    let sides = exact
+      ? [exact.size]
+      : [below?.size, above?.size].filter((x): x is number =>
+        x !== undefined && x >= v.lower * (1 - 1e-9) && x <= v.upper * (1 + 1e-9)
+      );
+    if (steelSafe) sides = sides.filter((x) => x >= v.current * (1 - 1e-9));
+    if (sides.length === 0) sides = [above?.size ?? below?.size ?? e.x[j]];
+    lower[j] = Math.min(...sides);
+    upper[j] = Math.max(...sides);
+    options.push({ j, sides, spread: Math.log(upper[j] / lower[j]) });
+  });
+  options.sort((a, b) => b.spread - a.spread);
+  let last: Float64Array | undefined;
+  const solveWith = async () => {
+    const program = formulateStep(space, e, s, {
+      radius: 1,
+      epsilon: o.epsilon,
+      limitShare: DIVE_LIMIT_SHARE,
+      V0: o.V0,
+      bounds: { lower, upper },
+      exactBounds: true,
+    });
+    const lp = await solver.solve(program.lp, { timeLimitSeconds: 20 });
+    if (lp.status !== "optimal") return undefined;
+    return {
+      objective: lp.objective,
+      x: Float64Array.from(space.variables, (_, j) => e.x[j] * Math.exp(lp.x[j])),
+    };
+  };
+  for (const { j, sides } of options) {
+    let best: { objective: number; x: Float64Array; side: number } | undefined;
+    for (const side of sides) {
+      lower[j] = side;
+      upper[j] = side;
+      const r = await solveWith();
+      if (r && (!best || r.objective < best.objective - 1e-12)) best = { ...r, side };
+    }
+    if (!best) return undefined;
+    lower[j] = best.side;
+    upper[j] = best.side;
+    last = best.x;
+  }
+  if (!last) return undefined;
+  // Exact cutter sizes for the runners (the LP's exp/log round trip is not).
+  for (const { j } of options) last[j] = lower[j];
+  return last;
+}
+
+/**
+ * Relax-and-fix for the runner cutters: among the runners whose fed runners are
+ * all fixed, fix the one whose continuous size is nearest a permitted cutter
+ * (never smaller than a runner it feeds), re-balance every size still free (a short SLP from
+ * the current design), and repeat until every runner is on a cutter; then snap the
+ * gates. Costlier than the dive (one short SLP per runner) and surer, because each
+ * rounding is absorbed by sizes that are still free on the full model.
+ */
+export async function relaxAndFixRunners(
+  scenario: Scenario,
+  space: DesignSpace,
+  continuous: DesignEvaluation,
+  options: RelaxAndFixOptions,
+): Promise<SnapReport | undefined> {
+  const catalogue = cutterCatalogue(scenario.goals.cutters);
+  if (catalogue.kind !== "discrete") return undefined;
+  const steelSafe = scenario.goals.mode === "steel_safe";
+  const epsilon = scenario.goals.max_imbalance_percent / 100;
+  const V0 = continuous.runnerVolume;
+  const judgeOf = (e: DesignEvaluation) =>
+    e.runnerVolume / V0 + PENALTY * (violation(e, epsilon, { split: false }) +
+        violation(e, epsilon, { split: false, shear: "peak" }));
+  const work: Scenario = structuredClone(scenario);
+  const sizes = new Map(space.variables.map((v, j) => [v.element, continuous.x[j]]));
+  const labels = new Map<string, string>();
+  let simulations = 0;
+  for (;;) {
+    let pick:
+      | { v: (typeof space.variables)[number]; sides: Cutter[]; gap: number }
+      | undefined;
+    for (const v of space.variables) {
+      if (v.kind !== "runner" || labels.has(v.element)) continue;
+      // Leaves first: a runner is fixed once every runner it feeds is, so its cutter can
+      // respect the feed order.
+      const feedsUnfixed = space.ordering.some((rule) =>
+        space.variables[rule.upstream] === v &&
+        !labels.has(space.variables[rule.downstream].element)
+      );
+      if (feedsUnfixed) continue;
+      const x = sizes.get(v.element)!;
+      const { below, above, exact } = neighbouringSizes(catalogue, x);
+      const allowed = (exact ? [exact] : [below, above]).filter((c): c is Cutter =>
+        c !== undefined && c.size >= v.lower * (1 - 1e-9) && c.size <= v.upper * (1 + 1e-9) &&
+        (!steelSafe || c.size >= v.current * (1 - 1e-9))
+      );
+      // Never against the feed order with a runner already on its cutter.
+      const fedSize = Math.max(
+        0,
+        ...space.ordering.filter((rule) => space.variables[rule.upstream] === v).map((rule) =>
+          sizes.get(space.variables[rule.downstream].element)!
+        ),
+      );
+      let sides = allowed.filter((c) => c.size >= fedSize * (1 - 1e-9));
+      if (sides.length === 0) {
+        // Both neighbours are smaller than a runner this one feeds: the next cutter up that is not.
+        const up = catalogue.cutters.find((c) =>
+          c.size >= fedSize * (1 - 1e-9) && c.size <= v.upper * (1 + 1e-9)
+        );
+        sides = up ? [up] : allowed;
+      }
+      if (sides.length === 0) return undefined;
+      sides.sort((a, b) => Math.abs(Math.log(a.size / x)) - Math.abs(Math.log(b.size / x)));
+      const gap = Math.abs(Math.log(sides[0].size / x));
+      if (!pick || gap < pick.gap) pick = { v, sides, gap };
+    }
+    if (!pick) break;
+    if (options.cancelled?.()) return undefined;
+    const v = pick.v;
+    labels.set(v.element, "");
+    work.runners[v.index].adjustable = false;
+    const free = space.variables.filter((u) => u.kind === "gate" || !labels.has(u.element));
+    // Nearest cutter first; the other side only when the nearest leaves a limit broken.
+    let best: { cutter: Cutter; sizes: Map<string, number>; score: number } | undefined;
+    for (const cutter of pick.sides) {
+      work.runners[v.index].diameter_mm = mToMm(cutter.size);
+      const trial = new Map(sizes);
+      trial.set(v.element, cutter.size);
+      let score = 0;
+      if (free.length > 0) {
+        const sub = await options.optimize(work, {
+          solver: options.solver,
+          cancelled: options.cancelled,
+          continuousOnly: true,
+          maxIterations: 8,
+          start: trial,
+        });
+        if (!sub.ok) continue;
+        simulations += sub.outcome.simulations;
+        const e = sub.outcome.continuous;
+        sub.outcome.space.variables.forEach((u, j) => trial.set(u.element, e.x[j]));
+        score = judgeOf(e);
+        if (!best || score < best.score) best = { cutter, sizes: trial, score };
+        if (e.feasible) break;
+      } else {
+        best = { cutter, sizes: trial, score };
+        break;
+      }
+    }
+    if (!best) return undefined;
+    work.runners[v.index].diameter_mm = mToMm(best.cutter.size);
+    labels.set(v.element, best.cutter.label);
+    for (const [k, value] of best.sizes) sizes.set(k, value);
+  }
+  // Gates last: the usual snapping on the space of the gates alone.
+  const gateOnly = optimizeBalanceSpaceAt(work, sizes);
+  if (!gateOnly) return undefined;
+  const gateSnap = snapDesign(gateOnly.space, gateOnly.evaluation, undefined, {
+    merit: judgeOf,
+  });
+  simulations += gateOnly.simulations + gateSnap.simulations + 1;
+  // Judged again in the full space, where the feed-order rules between runners apply.
+  const full = evaluateDesign(space, remap(space, gateOnly.space, gateSnap.evaluation).x);
+  if (!full.ok) return undefined;
+  const evaluation = full.evaluation;
+  const choices = [
+    ...space.variables.flatMap((v, j) =>
+      v.kind === "runner"
+        ? [{
+          element: v.element,
+          continuous: continuous.x[j],
+          snapped: sizes.get(v.element)!,
+          label: labels.get(v.element) ?? `${mToMm(sizes.get(v.element)!)} mm`,
+        }]
+        : []
+    ),
+    ...gateSnap.choices,
+  ];
+  return { evaluation, choices, simulations, message: gateSnap.message };
+}
+
+/** The design space of `scenario` (runners fixed) evaluated at the given sizes. */
+function optimizeBalanceSpaceAt(
+  scenario: Scenario,
+  sizes: ReadonlyMap<string, number>,
+): { space: DesignSpace; evaluation: DesignEvaluation; simulations: number } | undefined {
+  const space = designSpace(scenario);
+  if (space.variables.length === 0) return undefined;
+  const x = Float64Array.from(
+    space.variables,
+    (v) => Math.min(v.upper, Math.max(v.lower, sizes.get(v.element) ?? v.current)),
+  );
+  const outcome = evaluateDesign(space, x);
+  return outcome.ok ? { space, evaluation: outcome.evaluation, simulations: 1 } : undefined;
+}
