@@ -27,14 +27,14 @@ const quick = JSON.parse(
   await Deno.readTextFile(new URL("../testdata/quick_two_cavity.json", import.meta.url)),
 );
 
-/** Resident set size of a process, MiB (Linux /proc), or NaN. */
+/** Resident set size of a process, MiB (Linux /proc), or 0 when it is gone. */
 async function rssMiB(pid: number): Promise<number> {
   try {
     const status = await Deno.readTextFile(`/proc/${pid}/status`);
-    const kb = Number(/VmRSS:\s+(\d+)/.exec(status)?.[1]);
+    const kb = Number(/VmRSS:\s+(\d+)/.exec(status)?.[1] ?? 0);
     return kb / 1024;
   } catch {
-    return NaN;
+    return 0; // the process has just ended
   }
 }
 
