@@ -233,7 +233,10 @@ export function createApp(options: AppOptions): Handler {
     const reply = options.simulatePool
       ? await options.simulatePool.run(input, simulateOptions)
       : simulateRequest(input, { ...simulateOptions, runScenario: options.runScenario });
-    if (!reply.ok) throw new HttpError(reply.status, reply.code, reply.message, reply.issues);
+    if (!reply.ok) {
+      const headers = reply.status === 429 ? { "retry-after": "1" } : undefined;
+      throw new HttpError(reply.status, reply.code, reply.message, reply.issues, headers);
+    }
     return json(reply.result);
   };
 

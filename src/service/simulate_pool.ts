@@ -28,8 +28,11 @@ export class SimulatePool {
   #nextId = 1;
   #closed = false;
 
-  /** Start `size` workers (at least 1). */
-  constructor(size: number) {
+  readonly maxWaiting: number;
+
+  /** Start `size` workers (at least 1); at most `maxWaiting` requests wait for one (default 64). */
+  constructor(size: number, maxWaiting = 64) {
+    this.maxWaiting = maxWaiting;
     for (let i = 0; i < Math.max(1, size); i++) this.#slots.push(this.#start());
   }
 
@@ -66,12 +69,20 @@ export class SimulatePool {
     }
   }
 
-  /** Simulate one request body in a worker. Rejects only on an engine bug. */
+  /** Simulate one request body in a worker (429 reply when too many wait). Rejects only on an engine bug. */
   run(
     input: unknown,
     options: Omit<SimulateRequestOptions, "runScenario">,
   ): Promise<SimulateReply> {
     if (this.#closed) return Promise.reject(new Error("simulation pool is closed"));
+    if (this.#queue.length >= this.maxWaiting) {
+      return Promise.resolve({
+        ok: false,
+        status: 429,
+        code: "simulate_busy",
+        message: `${this.maxWaiting} simulations are already waiting; try again shortly`,
+      });
+    }
     return new Promise((resolve, reject) => {
       this.#queue.push({ id: this.#nextId++, input, options, resolve, reject });
       this.#pump();

@@ -179,6 +179,25 @@ Deno.test("POST /api/simulate through the simulation pool (as the service runs i
     }
   } finally {
     pool.close();
+  }
+  // With every worker busy and the waiting line full, the answer is 429 + Retry-After.
+  const tiny = new SimulatePool(1, 1);
+  try {
+    const handler = createApp({ store: app.store, config: app.config, simulatePool: tiny });
+    const wire = await Deno.readTextFile(DEMO_PATH);
+    const responses = await Promise.all(
+      Array.from(
+        { length: 4 },
+        () => handler(new Request("http://127.0.0.1/api/simulate", { method: "POST", body: wire })),
+      ),
+    );
+    const statuses = responses.map((r) => r.status).sort();
+    assert.deepEqual(statuses, [200, 200, 429, 429]);
+    const busy = responses.find((r) => r.status === 429)!;
+    assert.equal(busy.headers.get("retry-after"), "1");
+    for (const r of responses) await r.body?.cancel();
+  } finally {
+    tiny.close();
     await app.close();
   }
   const slow = await testApp({ simulateLimitMs: 0.001 });
