@@ -422,7 +422,7 @@ export function createApp(options: AppOptions): Handler {
         }
         if (sub === "events") {
           allow("GET");
-          if (!store.getJob(id)) throw notFound(`No job "${id}"`);
+          if (!store.getJobSummary(id)) throw notFound(`No job "${id}"`);
           return jobEvents(store, id, {
             pollMs: options.eventPollMs ?? 200,
             signal: request.signal,
