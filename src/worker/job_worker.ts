@@ -256,7 +256,8 @@ export class JobWorker {
         status: "cancelled",
         error: { code: "cancelled", message: "cancelled by request (the job was stopped)" },
       });
-    } else if (verdict === "shutdown") {
+    } else if (verdict === "shutdown" || (answered === undefined && this.#stopping)) {
+      // Stopping: whatever ended the job process, the job goes back to the queue.
       settledByWorker = this.#store.releaseJob(job.id, owner, attempt);
     } else if (answered === undefined && exited !== undefined) {
       settledByWorker = this.#store.finishJob(job.id, owner, attempt, {

@@ -165,6 +165,10 @@ async function main(args: readonly string[]): Promise<number> {
   }
   const orphaned = () => Deno.ppid !== parent;
   if (orphaned()) return RUN_JOB_EXIT.leaseLost;
+  // Ctrl-C in a terminal signals the whole process group. The worker decides
+  // when this process ends (stdin closed, or SIGKILL), so the job it is running
+  // can be put back in the queue instead of dying half-way.
+  for (const signal of ["SIGINT", "SIGTERM"] as const) Deno.addSignalListener(signal, () => {});
   const store = SqliteStore.open(db);
   const encoder = new TextEncoder();
   try {

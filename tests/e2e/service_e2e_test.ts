@@ -369,3 +369,38 @@ Deno.test({
     }
   },
 });
+
+Deno.test({
+  name:
+    "e2e: Ctrl-C (SIGINT to the worker and its job process) puts the running job back in the queue",
+  sanitizeResources: false,
+  sanitizeOps: false,
+  async fn() {
+    const { dir, db } = await tempDb();
+    const service = await startService(db, ["--workers", "0"]);
+    let worker: Proc | undefined;
+    try {
+      worker = await startWorker(db, ["--shutdown-grace-ms", "0"]);
+      const id = await submit(service.base, mediumScenario);
+      await waitForJob(service.base, id, (j) => j.progress !== null);
+      // A terminal's Ctrl-C reaches every process of the group; send it to both.
+      const ps = await new Deno.Command("ps", {
+        args: ["-o", "pid=", "--ppid", String(worker.pid)],
+        stdout: "piped",
+      }).output();
+      const children = new TextDecoder().decode(ps.stdout).trim().split(/\s+/).map(Number);
+      assert.equal(children.length, 1, "one job process");
+      Deno.kill(children[0], "SIGINT");
+      worker.kill("SIGINT");
+      const status = await worker.status;
+      assert.equal(status.code, 0);
+      const job = await (await fetch(`${service.base}/api/jobs/${id}`)).json();
+      assert.equal(job.status, "queued", JSON.stringify(job.error));
+      assert.equal(job.attempts, 0);
+    } finally {
+      await worker?.stop();
+      await service.proc.stop();
+      await Deno.remove(dir, { recursive: true });
+    }
+  },
+});
