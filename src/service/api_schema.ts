@@ -1,0 +1,144 @@
+/**
+ * Wire schemas of the HTTP API (zod). Request bodies are validated with them;
+ * the OpenAPI document is generated from them.
+ *
+ * @module
+ */
+import { z } from "zod";
+import { MaterialSchema } from "../model/material_schema.ts";
+
+/** One problem in a request, with its JSON path. */
+export const IssueSchema = z.object({
+  at: z.string().describe("JSON path as text, e.g. gates[2].thickness_mm ($ for the root)"),
+  path: z.array(z.union([z.string(), z.number()])),
+  code: z.string(),
+  message: z.string(),
+});
+
+/** Every error response. */
+export const ErrorSchema = z.object({
+  error: z.object({
+    code: z.string().describe("stable machine-readable code"),
+    message: z.string(),
+    issues: z.array(IssueSchema).optional(),
+  }),
+});
+
+export const HealthSchema = z.object({
+  status: z.literal("ok"),
+  version: z.string(),
+  uptime_s: z.number(),
+  queue: z.object({ queued: z.number().int(), running: z.number().int() }),
+  workers: z.object({ alive: z.number().int() }),
+});
+
+export const MaterialListSchema = z.object({ materials: z.array(MaterialSchema) });
+
+export const DemoListSchema = z.object({
+  demos: z.array(z.object({
+    id: z.string().describe("file stem of scenarios/*.json"),
+    name: z.string(),
+    cavities: z.number().int(),
+  })),
+});
+
+export const ScenarioHeadSchema = z.object({
+  id: z.string(),
+  name: z.string(),
+  revision: z.number().int(),
+  created_at: z.string(),
+  updated_at: z.string(),
+});
+
+export const ScenarioListSchema = z.object({ scenarios: z.array(ScenarioHeadSchema) });
+
+/** A scenario body: the evenfill.scenario/1 JSON (see /schema/scenario.schema.json). */
+export const ScenarioBodySchema = z.record(z.string(), z.unknown()).describe(
+  "evenfill.scenario/1 JSON; see /schema/scenario.schema.json",
+);
+
+export const SavedScenarioSchema = ScenarioHeadSchema.extend({ scenario: ScenarioBodySchema });
+
+export const RevisionListSchema = z.object({
+  revisions: z.array(z.object({
+    revision: z.number().int(),
+    name: z.string(),
+    created_at: z.string(),
+  })),
+});
+
+export const RevisionSchema = z.object({
+  id: z.string(),
+  revision: z.number().int(),
+  name: z.string(),
+  created_at: z.string(),
+  scenario: ScenarioBodySchema,
+});
+
+export const ValidationSchema = z.object({
+  ok: z.boolean(),
+  issues: z.array(IssueSchema).optional(),
+});
+
+/** Job kinds; `test_spin` (a deliberately endless job) only when test jobs are enabled. */
+export const JobKindSchema = z.enum(["optimize", "test_spin"]);
+
+export const JobSubmitSchema = z.object({
+  kind: JobKindSchema,
+  scenario: z.unknown().describe("evenfill.scenario/1 JSON"),
+  mode: z.enum(["new_tool", "trim", "steel_safe"]).optional().describe(
+    "overrides goals.mode of the scenario",
+  ),
+  scenario_id: z.string().max(100).optional().describe("the saved scenario this job is about"),
+});
+
+export const JobStatusSchema = z.enum(["queued", "running", "done", "failed", "cancelled"]);
+
+export const JobProgressSchema = z.object({
+  iteration: z.number().int(),
+  accepted: z.boolean(),
+  imbalance_percent: z.number(),
+  feed_pressure_peak_MPa: z.number(),
+  runner_volume_cm3: z.number(),
+  simulations: z.number().int(),
+});
+
+export const JobErrorSchema = z.object({ code: z.string(), message: z.string() });
+
+export const JobAcceptedSchema = z.object({
+  id: z.string(),
+  status: JobStatusSchema,
+  created_at: z.string(),
+});
+
+export const JobSummarySchema = z.object({
+  id: z.string(),
+  kind: JobKindSchema,
+  name: z.string(),
+  status: JobStatusSchema,
+  attempts: z.number().int(),
+  created_at: z.string(),
+  started_at: z.string().nullable(),
+  finished_at: z.string().nullable(),
+  cancel_requested: z.boolean(),
+  progress: JobProgressSchema.nullable(),
+  error: JobErrorSchema.nullable(),
+});
+
+export const JobListSchema = z.object({ jobs: z.array(JobSummarySchema) });
+
+export const JobSchema = JobSummarySchema.extend({
+  mode: z.string().nullable(),
+  scenario_id: z.string().nullable(),
+  time_limit_s: z.number(),
+  result: z.record(z.string(), z.unknown()).nullable().describe(
+    "evenfill.optimization/1 JSON with the before/after fill history",
+  ),
+});
+
+export const CancelSchema = z.object({ id: z.string(), status: JobStatusSchema });
+
+/** Result JSON of one simulation (evenfill.result/1); fields documented in product.md. */
+export const ResultSchema = z.object({ format: z.literal("evenfill.result/1") }).catchall(
+  z.unknown(),
+);

@@ -1,0 +1,141 @@
+/**
+ * Service and worker configuration, from command-line flags over environment
+ * variables over defaults.
+ *
+ * @module
+ */
+
+/** Everything the service and its workers are configured with. */
+export interface ServiceConfig {
+  /** Interface to bind (EVENFILL_HOST, --host; default 127.0.0.1). */
+  host: string;
+  /** TCP port, 0 for any free one (EVENFILL_PORT, --port; default 8000). */
+  port: number;
+  /** SQLite database file (EVENFILL_DB, --db; default data/evenfill.db). */
+  dbPath: string;
+  /** Bearer token for write endpoints (EVENFILL_TOKEN only, never a flag). Required off loopback. */
+  token: string | undefined;
+  /** Worker processes the service starts itself (EVENFILL_WORKERS, --workers; default 1). */
+  workers: number;
+  /** Wall-clock limit of one job attempt, ms (EVENFILL_JOB_TIME_LIMIT_S, --job-time-limit-s; default 300 s). */
+  jobTimeLimitMs: number;
+  /** Queued jobs beyond which submissions get 429 (EVENFILL_QUEUE_LIMIT, --queue-limit; default 100). */
+  queueLimit: number;
+  /** Largest accepted request body, bytes (EVENFILL_MAX_BODY_BYTES, --max-body-bytes; default 1 MiB). */
+  maxBodyBytes: number;
+  /** Time budget of a synchronous simulate, ms (EVENFILL_SIMULATE_LIMIT_MS, --simulate-limit-ms; default 10 s). */
+  simulateLimitMs: number;
+  /** Largest network a synchronous simulate takes, elements (runners + gates + cavities; default 400). */
+  simulateMaxElements: number;
+  /** Job lease, ms; a worker renews it every third of this (EVENFILL_LEASE_MS, --lease-ms; default 10 s). */
+  leaseMs: number;
+  /** Enable the test-only `test_spin` job kind (EVENFILL_ENABLE_TEST_JOBS=1, --enable-test-jobs; default off). */
+  enableTestJobs: boolean;
+  /** Directory of the static page (default `public/` of this checkout). */
+  publicDir: string;
+  /** Directory of the demo scenarios (default `scenarios/` of this checkout). */
+  scenariosDir: string;
+}
+
+const root = new URL("../../", import.meta.url);
+
+/** Defaults, relative to this checkout. */
+export function defaultConfig(): ServiceConfig {
+  return {
+    host: "127.0.0.1",
+    port: 8000,
+    dbPath: "data/evenfill.db",
+    token: undefined,
+    workers: 1,
+    jobTimeLimitMs: 300_000,
+    queueLimit: 100,
+    maxBodyBytes: 1 << 20,
+    simulateLimitMs: 10_000,
+    simulateMaxElements: 400,
+    leaseMs: 10_000,
+    enableTestJobs: false,
+    publicDir: new URL("public/", root).pathname,
+    scenariosDir: new URL("scenarios/", root).pathname,
+  };
+}
+
+/** A configuration problem, reported before anything starts. */
+export class ConfigError extends Error {
+  override name = "ConfigError";
+}
+
+function number(name: string, text: string, min: number): number {
+  const value = Number(text);
+  if (!Number.isFinite(value) || value < min) {
+    throw new ConfigError(`${name} must be a number ≥ ${min}, got "${text}"`);
+  }
+  return value;
+}
+
+/**
+ * Read the configuration: `--flag value` / `--flag=value` arguments override
+ * EVENFILL_* environment variables, which override {@link defaultConfig}.
+ * Throws {@link ConfigError} on a bad value.
+ */
+export function loadConfig(
+  args: readonly string[],
+  env: Record<string, string | undefined> = Deno.env.toObject(),
+): ServiceConfig {
+  const config = defaultConfig();
+  const flags = new Map<string, string>();
+  for (let i = 0; i < args.length; i++) {
+    const a = args[i];
+    if (!a.startsWith("--")) throw new ConfigError(`Unexpected argument "${a}"`);
+    const [name, inline] = a.slice(2).split("=", 2);
+    if (name === "enable-test-jobs") flags.set(name, "1");
+    else if (inline !== undefined) flags.set(name, inline);
+    else if (i + 1 < args.length) flags.set(name, args[++i]);
+    else throw new ConfigError(`--${name} needs a value`);
+  }
+  const get = (flag: string, variable: string) => flags.get(flag) ?? env[variable];
+  const known = new Set([
+    "host",
+    "port",
+    "db",
+    "workers",
+    "job-time-limit-s",
+    "queue-limit",
+    "max-body-bytes",
+    "simulate-limit-ms",
+    "lease-ms",
+    "enable-test-jobs",
+  ]);
+  for (const name of flags.keys()) {
+    if (!known.has(name)) throw new ConfigError(`Unknown option --${name}`);
+  }
+  const host = get("host", "EVENFILL_HOST");
+  if (host !== undefined) config.host = host;
+  const port = get("port", "EVENFILL_PORT");
+  if (port !== undefined) config.port = Math.trunc(number("port", port, 0));
+  if (config.port > 65535) throw new ConfigError(`port must be ≤ 65535, got ${config.port}`);
+  const db = get("db", "EVENFILL_DB");
+  if (db !== undefined) config.dbPath = db;
+  const token = env.EVENFILL_TOKEN;
+  if (token !== undefined && token !== "") config.token = token;
+  const workers = get("workers", "EVENFILL_WORKERS");
+  if (workers !== undefined) config.workers = Math.trunc(number("workers", workers, 0));
+  const limit = get("job-time-limit-s", "EVENFILL_JOB_TIME_LIMIT_S");
+  if (limit !== undefined) config.jobTimeLimitMs = number("job time limit", limit, 0.1) * 1000;
+  const queue = get("queue-limit", "EVENFILL_QUEUE_LIMIT");
+  if (queue !== undefined) config.queueLimit = Math.trunc(number("queue limit", queue, 1));
+  const body = get("max-body-bytes", "EVENFILL_MAX_BODY_BYTES");
+  if (body !== undefined) config.maxBodyBytes = Math.trunc(number("max body bytes", body, 1024));
+  const simulate = get("simulate-limit-ms", "EVENFILL_SIMULATE_LIMIT_MS");
+  if (simulate !== undefined) config.simulateLimitMs = number("simulate limit", simulate, 10);
+  const lease = get("lease-ms", "EVENFILL_LEASE_MS");
+  if (lease !== undefined) config.leaseMs = Math.trunc(number("lease", lease, 300));
+  const test = get("enable-test-jobs", "EVENFILL_ENABLE_TEST_JOBS");
+  config.enableTestJobs = test === "1" || test === "true";
+  return config;
+}
+
+/** True for a loopback address (127.0.0.0/8, ::1, localhost). */
+export function isLoopback(host: string): boolean {
+  return host === "localhost" || host === "::1" || host === "[::1]" ||
+    /^127\.\d+\.\d+\.\d+$/.test(host);
+}

@@ -1,0 +1,73 @@
+/**
+ * `deno task start`: open the store, serve the app on 127.0.0.1 (by default),
+ * and start the service's own worker processes. SIGTERM / SIGINT stop
+ * accepting requests, stop the workers gracefully (their jobs go back to the
+ * queue), and close the store.
+ *
+ * @module
+ */
+import { SqliteStore } from "../store/sqlite_store.ts";
+import { createApp } from "./app.ts";
+import { ConfigError, isLoopback, loadConfig, type ServiceConfig } from "./config.ts";
+import { WorkerPool } from "./worker_pool.ts";
+
+/** Refuse unsafe configurations: off loopback, a token is required. */
+export function checkExposure(config: ServiceConfig): string | undefined {
+  if (!isLoopback(config.host) && config.token === undefined) {
+    return `Refusing to listen on ${config.host} without EVENFILL_TOKEN: write endpoints need a bearer token off loopback.`;
+  }
+  return undefined;
+}
+
+async function ensureParent(path: string): Promise<void> {
+  const slash = path.lastIndexOf("/");
+  if (slash > 0) await Deno.mkdir(path.slice(0, slash), { recursive: true });
+}
+
+/** Run the service until SIGTERM/SIGINT; returns the exit code. */
+export async function main(args: readonly string[]): Promise<number> {
+  let config: ServiceConfig;
+  try {
+    config = loadConfig(args);
+  } catch (error) {
+    if (error instanceof ConfigError) {
+      console.error(`evenfill service: ${error.message}`);
+      return 1;
+    }
+    throw error;
+  }
+  const refusal = checkExposure(config);
+  if (refusal) {
+    console.error(`evenfill service: ${refusal}`);
+    return 1;
+  }
+  await ensureParent(config.dbPath);
+  const store = SqliteStore.open(config.dbPath);
+  const handler = createApp({ store, config });
+  const server = Deno.serve({
+    hostname: config.host,
+    port: config.port,
+    onListen: ({ hostname, port }) => {
+      // One machine-readable line: tests and scripts read the port from it.
+      console.log(JSON.stringify({ event: "listening", hostname, port, db: config.dbPath }));
+    },
+  }, handler);
+  const pool = new WorkerPool(config);
+  pool.start(config.workers);
+
+  const { promise: stopping, resolve } = Promise.withResolvers<string>();
+  const signals: Deno.Signal[] = ["SIGTERM", "SIGINT"];
+  const onSignal = (signal: Deno.Signal) => () => resolve(signal);
+  const listeners = signals.map((s) => [s, onSignal(s)] as const);
+  for (const [s, l] of listeners) Deno.addSignalListener(s, l);
+  const signal = await stopping;
+  console.log(JSON.stringify({ event: "stopping", signal }));
+  await server.shutdown();
+  await pool.stop();
+  store.close();
+  for (const [s, l] of listeners) Deno.removeSignalListener(s, l);
+  console.log(JSON.stringify({ event: "stopped" }));
+  return 0;
+}
+
+if (import.meta.main) Deno.exit(await main(Deno.args));

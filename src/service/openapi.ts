@@ -1,0 +1,237 @@
+import { z } from "zod";
+import { scenarioJsonSchema } from "../model/json_schema.ts";
+import * as api from "./api_schema.ts";
+
+type Schema = Record<string, unknown>;
+
+function component(schema: z.ZodType, io: "input" | "output" = "output"): Schema {
+  const json = z.toJSONSchema(schema, { io, target: "draft-2020-12", unrepresentable: "any" });
+  delete (json as Schema).$schema;
+  return json as Schema;
+}
+
+const ref = (name: string) => ({ $ref: `#/components/schemas/${name}` });
+const jsonContent = (name: string) => ({ "application/json": { schema: ref(name) } });
+const ok = (description: string, name: string) => ({ description, content: jsonContent(name) });
+const error = (description: string) => ({ description, content: jsonContent("Error") });
+const idParam = (name: string, description: string) => ({
+  name,
+  in: "path",
+  required: true,
+  description,
+  schema: { type: "string" },
+});
+
+/**
+ * The OpenAPI 3.1 document of the service, its schemas generated from the zod
+ * schemas in `api_schema.ts` and the scenario schema.
+ */
+export function openApiDocument(version: string): Schema {
+  const schemas: Record<string, Schema> = {
+    Error: component(api.ErrorSchema),
+    Issue: component(api.IssueSchema),
+    Health: component(api.HealthSchema),
+    MaterialList: component(api.MaterialListSchema),
+    DemoList: component(api.DemoListSchema),
+    Scenario: (() => {
+      const s = { ...scenarioJsonSchema() };
+      delete s.$schema;
+      return s;
+    })(),
+    ScenarioHead: component(api.ScenarioHeadSchema),
+    ScenarioList: component(api.ScenarioListSchema),
+    SavedScenario: component(api.SavedScenarioSchema),
+    RevisionList: component(api.RevisionListSchema),
+    Revision: component(api.RevisionSchema),
+    Validation: component(api.ValidationSchema),
+    Result: component(api.ResultSchema),
+    JobSubmit: component(api.JobSubmitSchema, "input"),
+    JobAccepted: component(api.JobAcceptedSchema),
+    JobList: component(api.JobListSchema),
+    Job: component(api.JobSchema),
+    JobProgress: component(api.JobProgressSchema),
+    Cancel: component(api.CancelSchema),
+  };
+  const scenarioBody = {
+    required: true,
+    content: { "application/json": { schema: ref("Scenario") } },
+  };
+  const write = { security: [{ bearer: [] }] };
+  const invalid = error("invalid JSON or scenario (issues with JSON paths)");
+  const tooLarge = error("body over the size limit");
+  const notFound = error("unknown id");
+  const scenarioId = idParam("id", "saved scenario id");
+  const jobId = idParam("id", "job id");
+  return {
+    openapi: "3.1.0",
+    info: {
+      title: "evenfill service",
+      version,
+      description:
+        "Runner balancing for multi-cavity injection molds: simulate scenarios, save them with revisions, " +
+        "and run balancing optimizations as background jobs. Errors are always {error: {code, message, issues?}}.",
+    },
+    servers: [{ url: "/" }],
+    components: {
+      schemas,
+      securitySchemes: {
+        bearer: {
+          type: "http",
+          scheme: "bearer",
+          description:
+            "Required on write endpoints when EVENFILL_TOKEN is set (always off loopback).",
+        },
+      },
+    },
+    paths: {
+      "/api/health": {
+        get: { summary: "Liveness, queue and workers", responses: { 200: ok("ok", "Health") } },
+      },
+      "/api/materials": {
+        get: {
+          summary: "The generic resin library",
+          responses: { 200: ok("materials", "MaterialList") },
+        },
+      },
+      "/api/demos": {
+        get: { summary: "Demo scenarios", responses: { 200: ok("demos", "DemoList") } },
+      },
+      "/api/demos/{id}": {
+        get: {
+          summary: "One demo scenario's JSON",
+          parameters: [idParam("id", "file stem of scenarios/*.json")],
+          responses: { 200: ok("the scenario", "Scenario"), 404: notFound },
+        },
+      },
+      "/api/scenarios": {
+        get: { summary: "Saved scenarios", responses: { 200: ok("list", "ScenarioList") } },
+        post: {
+          ...write,
+          summary: "Save a new scenario (revision 1)",
+          requestBody: scenarioBody,
+          responses: { 201: ok("saved", "ScenarioHead"), 400: invalid, 413: tooLarge },
+        },
+      },
+      "/api/scenarios/{id}": {
+        get: {
+          summary: "A saved scenario, latest revision",
+          parameters: [scenarioId],
+          responses: { 200: ok("scenario", "SavedScenario"), 404: notFound },
+        },
+        put: {
+          ...write,
+          summary: "Save a new revision",
+          parameters: [scenarioId],
+          requestBody: scenarioBody,
+          responses: {
+            200: ok("saved", "ScenarioHead"),
+            400: invalid,
+            404: notFound,
+            413: tooLarge,
+          },
+        },
+        delete: {
+          ...write,
+          summary: "Delete a scenario and its history",
+          parameters: [scenarioId],
+          responses: { 204: { description: "deleted" }, 404: notFound },
+        },
+      },
+      "/api/scenarios/{id}/revisions": {
+        get: {
+          summary: "Revision history",
+          parameters: [scenarioId],
+          responses: { 200: ok("revisions", "RevisionList"), 404: notFound },
+        },
+      },
+      "/api/scenarios/{id}/revisions/{rev}": {
+        get: {
+          summary: "One revision",
+          parameters: [scenarioId, {
+            ...idParam("rev", "revision number"),
+            schema: { type: "integer" },
+          }],
+          responses: { 200: ok("revision", "Revision"), 404: notFound },
+        },
+      },
+      "/api/validate": {
+        post: {
+          ...write,
+          summary: "Validate a scenario",
+          requestBody: scenarioBody,
+          responses: {
+            200: ok("ok or the issues", "Validation"),
+            400: error("not JSON"),
+            413: tooLarge,
+          },
+        },
+      },
+      "/api/simulate": {
+        post: {
+          ...write,
+          summary: "Simulate a scenario synchronously (bounded size and time)",
+          parameters: [{
+            name: "history",
+            in: "query",
+            required: false,
+            schema: { type: "string", enum: ["1"] },
+          }],
+          requestBody: scenarioBody,
+          responses: {
+            200: ok("evenfill.result/1", "Result"),
+            400: invalid,
+            413: error("body or network over the size limit"),
+            422: error("simulation_failed or simulation_time_limit"),
+          },
+        },
+      },
+      "/api/jobs": {
+        get: { summary: "Recent jobs", responses: { 200: ok("jobs", "JobList") } },
+        post: {
+          ...write,
+          summary: "Submit an optimization job",
+          requestBody: { required: true, content: jsonContent("JobSubmit") },
+          responses: {
+            202: ok("queued", "JobAccepted"),
+            400: invalid,
+            404: error("unknown scenario_id"),
+            413: tooLarge,
+            429: error("queue full; see Retry-After"),
+          },
+        },
+      },
+      "/api/jobs/{id}": {
+        get: {
+          summary: "A job's status, progress, result and error",
+          parameters: [jobId],
+          responses: { 200: ok("job", "Job"), 404: notFound },
+        },
+      },
+      "/api/jobs/{id}/cancel": {
+        post: {
+          ...write,
+          summary: "Cancel a job",
+          parameters: [jobId],
+          responses: { 202: ok("cancel requested", "Cancel"), 404: notFound },
+        },
+      },
+      "/api/jobs/{id}/events": {
+        get: {
+          summary:
+            "Server-Sent Events: `state` {status}, `progress` (JobProgress), final `end` {status, error}",
+          parameters: [jobId],
+          responses: {
+            200: {
+              description: "event stream",
+              content: { "text/event-stream": { schema: { type: "string" } } },
+            },
+            404: notFound,
+          },
+        },
+      },
+      "/api/openapi.json": {
+        get: { summary: "This document", responses: { 200: { description: "OpenAPI 3.1" } } },
+      },
+    },
+  };
+}

@@ -1,0 +1,171 @@
+/**
+ * The persistence interface of the service and the workers: saved scenarios with
+ * their revision history, and the job queue (status, lease, attempts, progress,
+ * result, error). Synchronous, as embedded engines are; `SqliteStore` is the
+ * shipped engine. Times are ISO 8601 strings on the wire and epoch milliseconds
+ * for leases.
+ *
+ * @module
+ */
+
+/** A saved scenario's head: its latest revision. */
+export interface ScenarioHead {
+  id: string;
+  name: string;
+  revision: number;
+  created_at: string;
+  updated_at: string;
+}
+
+/** One stored revision of a saved scenario. */
+export interface ScenarioRevision {
+  id: string;
+  revision: number;
+  name: string;
+  created_at: string;
+  /** The scenario JSON exactly as it was saved. */
+  scenario: unknown;
+}
+
+/** Life cycle of a job. */
+export type JobStatus = "queued" | "running" | "done" | "failed" | "cancelled";
+
+/** Kinds of job the workers run. `test_spin` exists only when test jobs are enabled. */
+export type JobKind = "optimize" | "test_spin";
+
+/** Latest progress of a running optimization, wire names. */
+export interface JobProgress {
+  iteration: number;
+  accepted: boolean;
+  imbalance_percent: number;
+  feed_pressure_peak_MPa: number;
+  runner_volume_cm3: number;
+  simulations: number;
+}
+
+/** A job's failure, with a stable code. */
+export interface JobError {
+  code: string;
+  message: string;
+}
+
+/** Everything stored about a job. */
+export interface JobRecord {
+  id: string;
+  kind: JobKind;
+  name: string;
+  status: JobStatus;
+  /** The job's input: `{scenario, mode?, scenario_id?}`. */
+  input: unknown;
+  attempts: number;
+  max_attempts: number;
+  /** Wall-clock limit of one attempt, ms. */
+  time_limit_ms: number;
+  created_at: string;
+  started_at: string | null;
+  finished_at: string | null;
+  lease_owner: string | null;
+  /** Epoch ms at which the lease lapses (null when not leased). */
+  lease_expires_ms: number | null;
+  cancel_requested: boolean;
+  progress: JobProgress | null;
+  /** Bumped on every progress write, so watchers see each change once. */
+  progress_seq: number;
+  result: unknown;
+  error: JobError | null;
+}
+
+/** A job without its (possibly large) input and result, for lists. */
+export type JobSummary = Omit<JobRecord, "input" | "result">;
+
+/** What a submission stores. */
+export interface NewJob {
+  id: string;
+  kind: JobKind;
+  name: string;
+  input: unknown;
+  /** Wall-clock limit of one attempt, ms. */
+  time_limit_ms: number;
+  /** Attempts before a job whose workers keep dying is failed (default 3). */
+  max_attempts?: number;
+}
+
+/** A claimed job: the record plus the lease the claimant now holds. */
+export interface ClaimedJob {
+  job: JobRecord;
+  /** The attempt number this claim started (1 for the first run). */
+  attempt: number;
+}
+
+/** How a finished attempt ends. */
+export type JobOutcome =
+  | { status: "done"; result: unknown }
+  | { status: "cancelled"; result?: unknown; error?: JobError }
+  | { status: "failed"; error: JobError; result?: unknown };
+
+/** A registered worker process, for health reporting. */
+export interface WorkerRecord {
+  id: string;
+  pid: number;
+  started_at: string;
+  heartbeat_ms: number;
+}
+
+/** Saved scenarios with revision history. */
+export interface ScenarioStore {
+  listScenarios(): ScenarioHead[];
+  /** Save a new scenario as revision 1. */
+  createScenario(id: string, name: string, scenario: unknown): ScenarioHead;
+  /** Append a revision; undefined when the id is unknown. */
+  updateScenario(id: string, name: string, scenario: unknown): ScenarioHead | undefined;
+  /** The head and its scenario JSON; undefined when unknown. */
+  getScenario(id: string): (ScenarioHead & { scenario: unknown }) | undefined;
+  /** Every revision, oldest first, without bodies; undefined when the id is unknown. */
+  listRevisions(id: string): Omit<ScenarioRevision, "scenario" | "id">[] | undefined;
+  getRevision(id: string, revision: number): ScenarioRevision | undefined;
+  /** Delete a scenario and its history; false when unknown. */
+  deleteScenario(id: string): boolean;
+}
+
+/** The job queue. Every state change is one atomic statement or transaction. */
+export interface JobStore {
+  /** Add a job unless `maxQueued` jobs are already queued; false when full. */
+  submitJob(job: NewJob, options: { maxQueued: number }): JobRecord | false;
+  getJob(id: string): JobRecord | undefined;
+  /** Most recent first. */
+  listJobs(options?: { limit?: number }): JobSummary[];
+  countJobs(): { queued: number; running: number };
+  /**
+   * Atomically claim the oldest runnable job for `owner`: a queued one, or a
+   * running one whose lease has lapsed (its worker died). A lapsed job out of
+   * attempts is failed instead. Returns undefined when nothing is runnable.
+   */
+  claimJob(owner: string, leaseMs: number, nowMs?: number): ClaimedJob | undefined;
+  /** Extend the lease; false when `owner` no longer holds this attempt. */
+  renewLease(id: string, owner: string, attempt: number, leaseMs: number): boolean;
+  /** Record progress; false when `owner` no longer holds this attempt. */
+  writeProgress(id: string, owner: string, attempt: number, progress: JobProgress): boolean;
+  /** Finish the attempt; false (and no change) when `owner` no longer holds it. */
+  finishJob(id: string, owner: string, attempt: number, outcome: JobOutcome): boolean;
+  /** Give the job back to the queue (graceful shutdown); false when not held. */
+  releaseJob(id: string, owner: string, attempt: number): boolean;
+  /**
+   * Ask a job to stop: a queued job is cancelled at once, a running one is
+   * flagged for its worker. Undefined when unknown; a finished job is returned unchanged.
+   */
+  requestCancel(id: string): JobRecord | undefined;
+  isCancelRequested(id: string): boolean;
+}
+
+/** Worker registry, for the health endpoint. */
+export interface WorkerRegistry {
+  heartbeatWorker(id: string, pid: number): void;
+  removeWorker(id: string): void;
+  /** Workers that reported within `withinMs`. */
+  aliveWorkers(withinMs: number): WorkerRecord[];
+}
+
+/** The whole store. */
+export interface Store extends ScenarioStore, JobStore, WorkerRegistry {
+  close(): void;
+}

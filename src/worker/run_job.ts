@@ -1,0 +1,151 @@
+/**
+ * One attempt of one job, in its own process (started by the worker's
+ * supervisor, see `job_supervisor.ts`): read the job from the store, run it,
+ * write throttled progress, poll the cancel flag, and write the outcome, all
+ * conditional on still holding the job's lease. The supervisor kills this
+ * process on time limit or an ignored cancel; if the supervisor itself dies,
+ * this process notices (its parent changes) and exits without writing.
+ *
+ * Usage: run_job.ts --db <file> --job <id> --owner <worker id> --attempt <n>
+ *
+ * @module
+ */
+import { parseScenario } from "../model/parse_scenario.ts";
+import { LIBRARY_MATERIAL_IDS } from "../network/simulate_scenario.ts";
+import { optimizeBalance } from "../optimize/balance.ts";
+import { m3ToCm3, paToMpa } from "../model/units.ts";
+import { optimizationJson } from "../report/optimization_report.ts";
+import { SqliteStore } from "../store/sqlite_store.ts";
+import type { JobError, JobOutcome, JobProgress, JobRecord, Store } from "../store/store.ts";
+
+/** Exit codes of this process. */
+export const RUN_JOB_EXIT = {
+  /** The outcome was written. */
+  finished: 0,
+  /** Bad arguments. */
+  usage: 64,
+  /** The lease was lost (or the parent died) before the outcome could be written. */
+  leaseLost: 75,
+} as const;
+
+/** Minimum time between two progress writes, ms. */
+const PROGRESS_EVERY_MS = 100;
+
+/** Options of {@link runJobAttempt}. */
+export interface RunJobAttemptOptions {
+  owner: string;
+  attempt: number;
+  /** True when the process that started this one is gone. */
+  orphaned?: () => boolean;
+  /** Whether the test-only job kinds may run (default: EVENFILL_ENABLE_TEST_JOBS=1). */
+  enableTestJobs?: boolean;
+}
+
+class LeaseLost extends Error {}
+
+/** Run one attempt of a job already claimed by `owner`; returns whether the outcome was written. */
+export async function runJobAttempt(
+  store: Store,
+  job: JobRecord,
+  options: RunJobAttemptOptions,
+): Promise<boolean> {
+  const { owner, attempt } = options;
+  const orphaned = options.orphaned ?? (() => false);
+  const finish = (outcome: JobOutcome) => store.finishJob(job.id, owner, attempt, outcome);
+  const fail = (code: string, message: string) =>
+    finish({ status: "failed", error: { code, message } });
+
+  if (job.kind === "test_spin") {
+    if (!(options.enableTestJobs ?? Deno.env.get("EVENFILL_ENABLE_TEST_JOBS") === "1")) {
+      return fail("test_jobs_disabled", "test_spin jobs only run when test jobs are enabled");
+    }
+    store.writeProgress(job.id, owner, attempt, {
+      iteration: 0,
+      accepted: false,
+      imbalance_percent: 0,
+      feed_pressure_peak_MPa: 0,
+      runner_volume_cm3: 0,
+      simulations: 0,
+    });
+    // Deliberately endless and deaf to cancel and time limit: only the
+    // supervisor's SIGKILL stops it. It does stop when orphaned.
+    for (let i = 0;; i++) {
+      if (i % 1_000_000 === 0 && orphaned()) throw new LeaseLost();
+    }
+  }
+
+  const input = (job.input ?? {}) as { scenario?: unknown; mode?: string };
+  const parsed = parseScenario(input.scenario, { materialIds: LIBRARY_MATERIAL_IDS });
+  if (!parsed.ok) {
+    return fail("invalid_scenario", parsed.issues.map((i) => `${i.at}: ${i.message}`).join("; "));
+  }
+  const scenario = parsed.scenario;
+  if (input.mode === "new_tool" || input.mode === "trim" || input.mode === "steel_safe") {
+    scenario.goals.mode = input.mode;
+  }
+  let lastWrite = -Infinity;
+  const result = await optimizeBalance(scenario, {
+    onProgress: (i) => {
+      const now = performance.now();
+      if (now - lastWrite < PROGRESS_EVERY_MS) return;
+      lastWrite = now;
+      const progress: JobProgress = {
+        iteration: i.iteration,
+        accepted: i.accepted,
+        imbalance_percent: Number(i.imbalancePercent.toFixed(4)),
+        feed_pressure_peak_MPa: Number(paToMpa(i.feedPressurePeak).toFixed(3)),
+        runner_volume_cm3: Number(m3ToCm3(i.runnerVolume).toFixed(5)),
+        simulations: i.simulations,
+      };
+      if (!store.writeProgress(job.id, owner, attempt, progress)) throw new LeaseLost();
+    },
+    cancelled: () => {
+      if (orphaned()) throw new LeaseLost();
+      return store.isCancelRequested(job.id);
+    },
+  });
+  if (!result.ok) return fail(result.code, result.message);
+  const json = optimizationJson(result.outcome, { history: true });
+  if (result.outcome.status === "cancelled") {
+    const error: JobError = { code: "cancelled", message: "cancelled by request" };
+    return finish({ status: "cancelled", result: json, error });
+  }
+  return finish({ status: "done", result: json });
+}
+
+function flag(args: readonly string[], name: string): string | undefined {
+  const i = args.indexOf(`--${name}`);
+  return i >= 0 ? args[i + 1] : undefined;
+}
+
+async function main(args: readonly string[]): Promise<number> {
+  const db = flag(args, "db");
+  const id = flag(args, "job");
+  const owner = flag(args, "owner");
+  const attempt = Number(flag(args, "attempt"));
+  if (!db || !id || !owner || !Number.isInteger(attempt)) {
+    console.error("usage: run_job.ts --db <file> --job <id> --owner <worker id> --attempt <n>");
+    return RUN_JOB_EXIT.usage;
+  }
+  const parent = Deno.ppid;
+  const store = SqliteStore.open(db);
+  try {
+    const job = store.getJob(id);
+    if (!job || job.status !== "running" || job.lease_owner !== owner || job.attempts !== attempt) {
+      return RUN_JOB_EXIT.leaseLost;
+    }
+    const written = await runJobAttempt(store, job, {
+      owner,
+      attempt,
+      orphaned: () => Deno.ppid !== parent,
+    });
+    return written ? RUN_JOB_EXIT.finished : RUN_JOB_EXIT.leaseLost;
+  } catch (error) {
+    if (error instanceof LeaseLost) return RUN_JOB_EXIT.leaseLost;
+    throw error;
+  } finally {
+    store.close();
+  }
+}
+
+if (import.meta.main) Deno.exit(await main(Deno.args));
