@@ -325,6 +325,11 @@
       const y = fmt(ys(rule.y));
       out.push(`<g class="rule"><line x1="${margin.left}" x2="${width - margin.right}" y1="${y}" y2="${y}" stroke="#000" stroke-width="1.5" stroke-dasharray="10 3 2 3"/><text x="${width - margin.right - 4}" y="${y}" dy="-0.35em" text-anchor="end">${escapeXml(rule.label)}</text></g>`);
     }
+    for (const v of options.verticals ?? []) {
+      if (!(v.x >= xd.domain[0] && v.x <= xd.domain[1])) continue;
+      const x = fmt(xs(v.x));
+      out.push(`<g class="rule"><line x1="${x}" x2="${x}" y1="${margin.top}" y2="${height - margin.bottom}" stroke="#000" stroke-width="1" stroke-dasharray="3 3"/><text x="${x}" y="${height - margin.bottom - 4}" dx="-4" text-anchor="end">${escapeXml(v.label)}</text></g>`);
+    }
     const ends = [];
     series.forEach((s) => {
       const st = seriesStyle(s.style);
@@ -343,7 +348,7 @@
       ];
       for (const [x, y] of marked) out.push(markerSvg(st.marker, xs(x), ys(y), 6, colour));
       out.push(`</g>`);
-      if (!s.faint) {
+      if (!s.faint || options.labelFaint) {
         const [, yLast] = pts[pts.length - 1];
         ends.push({
           y: ys(yLast),
@@ -355,6 +360,11 @@
     ends.sort((a, b) => a.y - b.y);
     for (let k = 1; k < ends.length; k++) {
       if (ends[k].y - ends[k - 1].y < 11) ends[k].y = ends[k - 1].y + 11;
+    }
+    const bottom = height - margin.bottom + 4;
+    const overflow = ends.length ? ends[ends.length - 1].y - bottom : 0;
+    if (overflow > 0) {
+      for (const e of ends) e.y = Math.max(margin.top, e.y - overflow);
     }
     for (const e of ends) {
       out.push(`<text class="end-label" x="${width - margin.right + 6}" y="${fmt(e.y)}" dy="0.32em">${escapeXml(e.label)}</text>`);
@@ -892,7 +902,9 @@
           volume_cm3: c.volume_cm3,
           x: at.x + d.x * (gap + r),
           y: at.y + d.y * (gap + r),
-          r
+          r,
+          dx: d.x,
+          dy: d.y
         };
       });
       let overlap = false;
@@ -950,6 +962,22 @@
       }
     };
   }
+  function segmentBoxDistance(ax, ay, bx, by, box) {
+    const n = Math.max(2, Math.ceil(Math.hypot(bx - ax, by - ay) / Math.max(box.hh, 0.5)));
+    let best = Infinity;
+    for (let k = 0; k <= n; k++) {
+      const x = ax + (bx - ax) * k / n, y = ay + (by - ay) * k / n;
+      const dx = Math.max(Math.abs(x - box.x) - box.hw, 0);
+      const dy = Math.max(Math.abs(y - box.y) - box.hh, 0);
+      best = Math.min(best, Math.hypot(dx, dy));
+    }
+    return best;
+  }
+  function circleBoxOverlap(cx, cy, r, box) {
+    const dx = Math.max(Math.abs(cx - box.x) - box.hw, 0);
+    const dy = Math.max(Math.abs(cy - box.y) - box.hh, 0);
+    return Math.hypot(dx, dy) < r;
+  }
   function layoutSvg(scenario, options = {}) {
     const unit = options.lengthUnit ?? "mm";
     const changes = new Map((options.changes ?? []).map((c) => [
@@ -965,11 +993,7 @@
     const geo = layoutGeometry(scenario, sizes);
     const { x0, y0, x1, y1 } = geo.bounds;
     const span = Math.max(x1 - x0, y1 - y0, 10);
-    const font = span / 42;
-    const pad = font * 5;
-    const vx0 = x0 - pad, vx1 = x1 + pad;
-    const vy0 = -y1 - pad, vy1 = -y0 + pad + font * 3;
-    const w = vx1 - vx0, h = vy1 - vy0;
+    const font = span / 40;
     const f = (v) => (Math.round(v * 1e3) / 1e3).toString();
     const size = (mm, prefix) => `${prefix}${formatLength(mm, unit)}`;
     const label = (id, currentMm, prefix) => {
@@ -977,56 +1001,311 @@
       if (!c) return `${id} ${size(currentMm, prefix)}`;
       return `${id} ${size(c.from_mm, prefix)} \u2192 ${formatLength(c.to_mm, unit)}`;
     };
-    const out = [];
-    out.push(`<svg xmlns="http://www.w3.org/2000/svg" class="layout" ${options.id ? `id="${escapeXml(options.id)}" ` : ""}viewBox="${f(vx0)} ${f(vy0)} ${f(w)} ${f(h)}" role="img" aria-label="Layout drawing of the runner system" style="--font:${f(font)}px">`);
-    out.push(`<g font-size="${f(font)}" class="layout-body">`);
-    for (const c of geo.cavities) {
-      out.push(`<g class="cavity" data-id="${escapeXml(c.id)}"><circle cx="${f(c.x)}" cy="${f(-c.y)}" r="${f(c.r)}"/><text x="${f(c.x)}" y="${f(-c.y)}" text-anchor="middle" dy="-0.2em" class="label strong">${escapeXml(c.id)}${c.name ? ` ${escapeXml(c.name)}` : ""}</text><text x="${f(c.x)}" y="${f(-c.y)}" text-anchor="middle" dy="1.0em" class="label">${formatVolume(c.volume_cm3)} cm\xB3</text></g>`);
-    }
-    for (const r of geo.runners) {
-      const changed = changes.get(r.id);
-      const mx = (r.x1 + r.x2) / 2, my = (r.y1 + r.y2) / 2;
-      const l = Math.hypot(r.x2 - r.x1, r.y2 - r.y1) || 1;
-      let nx = -(r.y2 - r.y1) / l, ny = (r.x2 - r.x1) / l;
+    const charWidth = font * 0.6;
+    const lineHeight = font * 1.25;
+    const halfSize = (tag) => ({
+      hw: (Math.max(...tag.lines.map((l) => l.length)) * charWidth + (tag.badge ? font * 1.9 : 0)) / 2 + font * 0.15,
+      hh: tag.lines.length * lineHeight / 2
+    });
+    const segments = [
+      ...geo.runners.map((r) => ({
+        ...r,
+        half: r.width_mm / 2
+      })),
+      ...geo.gates.map((g) => ({
+        ...g,
+        half: Math.max(g.size_mm, font * 0.25) / 2
+      }))
+    ];
+    const placed = [];
+    const feedNode = geo.nodes.get(scenario.feed.node);
+    const feedD = scenario.feed.kind === "sprue" ? scenario.feed.exit_diameter_mm ?? 5 : scenario.feed.diameter_mm ?? 5;
+    const cost = (box) => {
+      let c = 0;
+      for (const p of placed) {
+        if (Math.abs(p.x - box.x) < p.hw + box.hw && Math.abs(p.y - box.y) < p.hh + box.hh) c += 4;
+      }
+      for (const cav of geo.cavities) if (circleBoxOverlap(cav.x, cav.y, cav.r, box)) c += 3;
+      for (const sgm of segments) {
+        if (segmentBoxDistance(sgm.x1, sgm.y1, sgm.x2, sgm.y2, box) < sgm.half + font * 0.1) c += 2;
+      }
+      if (feedNode && circleBoxOverlap(feedNode.x, feedNode.y, feedD / 2 + font * 0.5, box)) c += 2;
+      return c;
+    };
+    const place = (tag, optional = false) => {
+      const { hw, hh } = halfSize(tag);
+      let best = null, bestCost = Infinity;
+      for (const c of tag.candidates) {
+        const box = {
+          x: c.x,
+          y: c.y,
+          hw,
+          hh
+        };
+        const k = cost(box);
+        if (k < bestCost) {
+          best = box;
+          bestCost = k;
+          if (k === 0) break;
+        }
+      }
+      if (optional && bestCost > 0) return null;
+      placed.push(best);
+      return best;
+    };
+    const tagSvg = (tag, box) => {
+      if (box === null) return "";
+      const left = box.x - box.hw + font * 0.15;
+      let out2 = "";
+      let textX = box.x;
+      if (tag.badge !== void 0) {
+        const bx = left + font * 0.8;
+        out2 += `<g class="step-badge"><circle cx="${f(bx)}" cy="${f(-box.y)}" r="${f(font * 0.8)}"/><text x="${f(bx)}" y="${f(-box.y)}" text-anchor="middle" dy="0.35em">${tag.badge}</text></g>`;
+        textX = box.x + font * 0.95;
+      }
+      const top = box.y + box.hh - lineHeight / 2;
+      tag.lines.forEach((line, k) => {
+        out2 += `<text class="label${tag.strong && k === 0 ? " strong" : ""}" x="${f(textX)}" y="${f(-(top - k * lineHeight))}" text-anchor="middle" dy="0.35em">${escapeXml(line)}</text>`;
+      });
+      return out2;
+    };
+    const besideSegment = (ax, ay, bx, by, half, tag, shifts) => {
+      const { hw, hh } = halfSize(tag);
+      const l = Math.hypot(bx - ax, by - ay) || 1;
+      const tx = (bx - ax) / l, ty = (by - ay) / l;
+      let nx = -ty, ny = tx;
       if (ny < 0 || ny === 0 && nx < 0) [nx, ny] = [
         -nx,
         -ny
       ];
-      const off = r.width_mm / 2 + font * 0.9;
-      const horizontal = Math.abs(r.y2 - r.y1) < Math.abs(r.x2 - r.x1);
-      out.push(`<g class="runner${changed ? " changed" : ""}" data-id="${escapeXml(r.id)}">` + (changed ? `<line class="halo" x1="${f(r.x1)}" y1="${f(-r.y1)}" x2="${f(r.x2)}" y2="${f(-r.y2)}" stroke-width="${f(r.width_mm + font * 0.8)}"/>` : "") + `<line class="body" x1="${f(r.x1)}" y1="${f(-r.y1)}" x2="${f(r.x2)}" y2="${f(-r.y2)}" stroke-width="${f(r.width_mm)}"/><text class="label${changed ? " strong" : ""}" x="${f(mx + nx * off)}" y="${f(-(my + ny * off))}" text-anchor="${horizontal ? "middle" : "start"}" dy="${horizontal ? "0" : "0.32em"}">${escapeXml(label(r.id, r.width_mm, "\u2300"))}</text>` + (changed ? stepBadge(changed.step, mx - nx * off, -(my - ny * off), font) : "") + `</g>`);
+      const extent2 = Math.abs(nx) * hw + Math.abs(ny) * hh;
+      const reach = half + font * 0.35 + extent2;
+      const mx = (ax + bx) / 2, my = (ay + by) / 2;
+      const out2 = [];
+      for (const ring of [
+        0,
+        1,
+        2
+      ]) {
+        const r = reach + ring * (2 * extent2 + font * 0.4);
+        for (const s of shifts) {
+          for (const side of [
+            1,
+            -1
+          ]) {
+            out2.push({
+              x: mx + tx * s * l + nx * side * r,
+              y: my + ty * s * l + ny * side * r
+            });
+          }
+        }
+      }
+      return out2;
+    };
+    const body = [];
+    const channels = {
+      runner: [],
+      gate: []
+    };
+    const feedBody = [];
+    const labels = [];
+    const jobs = [];
+    const defer = (priority, run) => jobs.push({
+      priority,
+      order: jobs.length,
+      run
+    });
+    if (feedNode) {
+      const text = scenario.feed.kind === "sprue" ? `sprue \u2300${formatLength(scenario.feed.entry_diameter_mm ?? feedD, unit)}\u2013${formatLength(feedD, unit)}` : `hot drop \u2300${formatLength(feedD, unit)}`;
+      const tag = {
+        lines: [
+          text
+        ],
+        strong: false,
+        candidates: []
+      };
+      const { hw, hh } = halfSize(tag);
+      const free = freeDirection(geo, scenario.feed.node);
+      for (const turn of [
+        0,
+        0.5,
+        -0.5,
+        1,
+        -1,
+        1.5,
+        -1.5,
+        Math.PI
+      ]) {
+        const a = free + turn;
+        const reach = feedD / 2 + font * 0.7;
+        tag.candidates.push({
+          x: feedNode.x + Math.cos(a) * (reach + hw),
+          y: feedNode.y + Math.sin(a) * (reach + hh)
+        });
+      }
+      feedBody.push(`<g class="feed"><circle cx="${f(feedNode.x)}" cy="${f(-feedNode.y)}" r="${f(feedD / 2)}"/><circle class="feed-ring" cx="${f(feedNode.x)}" cy="${f(-feedNode.y)}" r="${f(feedD / 2 + font * 0.5)}"/></g>`);
+      defer(3, () => labels.push(`<g class="feed-label">${tagSvg(tag, place(tag))}</g>`));
     }
+    for (const c of geo.cavities) {
+      const title = `${c.id}${c.name ? ` ${c.name}` : ""}`;
+      const volume = `${formatVolume(c.volume_cm3)} cm\xB3`;
+      const fits = (text2) => c.r * 2 > charWidth * 1.05 * Math.max(text2.length, 3);
+      const inside = fits(title) && fits(volume) && c.r > font * 1.4;
+      const idInside = !inside && fits(c.id) && c.r > font * 0.8;
+      let text = "";
+      if (inside) {
+        text = `<text x="${f(c.x)}" y="${f(-c.y)}" text-anchor="middle" dy="-0.2em" class="label strong">${escapeXml(title)}</text><text x="${f(c.x)}" y="${f(-c.y)}" text-anchor="middle" dy="1.0em" class="label">${escapeXml(volume)}</text>`;
+      } else {
+        if (idInside) {
+          text = `<text x="${f(c.x)}" y="${f(-c.y)}" text-anchor="middle" dy="0.35em" class="label strong">${escapeXml(c.id)}</text>`;
+        }
+        const lines = idInside ? c.name ? [
+          c.name,
+          volume
+        ] : [
+          volume
+        ] : [
+          title,
+          volume
+        ];
+        const tag = {
+          lines,
+          strong: !idInside,
+          candidates: []
+        };
+        const { hw, hh } = halfSize(tag);
+        for (const turn of [
+          0,
+          0.6,
+          -0.6,
+          1.2,
+          -1.2,
+          Math.PI / 2,
+          -Math.PI / 2,
+          2.2,
+          -2.2
+        ]) {
+          const a = Math.atan2(c.dy, c.dx) + turn;
+          const ux = Math.cos(a), uy = Math.sin(a);
+          const reach = c.r + font * 0.3 + Math.abs(ux) * hw + Math.abs(uy) * hh;
+          tag.candidates.push({
+            x: c.x + ux * reach,
+            y: c.y + uy * reach
+          });
+        }
+        defer(2, () => labels.push(`<g class="cavity-label" data-for="${escapeXml(c.id)}">${tagSvg(tag, place(tag, idInside))}</g>`));
+      }
+      body.push(`<g class="cavity" data-id="${escapeXml(c.id)}"><circle cx="${f(c.x)}" cy="${f(-c.y)}" r="${f(c.r)}"/>${text}</g>`);
+    }
+    const channel = (kind, id, seg, width, text, shifts) => {
+      const changed = changes.get(id);
+      const tag = {
+        lines: [
+          text
+        ],
+        strong: changed !== void 0,
+        ...changed ? {
+          badge: changed.step
+        } : {},
+        candidates: []
+      };
+      tag.candidates = besideSegment(seg.x1, seg.y1, seg.x2, seg.y2, width / 2, tag, shifts);
+      if (kind === "gate") {
+        const { hw } = halfSize(tag);
+        const atNode = geo.runners.filter((r) => r.x1 === seg.x1 && r.y1 === seg.y1 || r.x2 === seg.x1 && r.y2 === seg.y1);
+        const clear = Math.max(width / 2, ...atNode.map((r) => r.width_mm / 2)) + font * 0.4;
+        const mx = (seg.x1 + seg.x2) / 2, my = (seg.y1 + seg.y2) / 2;
+        const near = [];
+        for (const dy of [
+          0,
+          1,
+          -1,
+          2,
+          -2
+        ]) {
+          for (const side of [
+            1,
+            -1
+          ]) {
+            near.push({
+              x: mx + side * (clear + hw),
+              y: my + dy * lineHeight
+            });
+          }
+        }
+        tag.candidates.splice(tag.candidates.length / 2, 0, ...near);
+      }
+      const slot = channels[kind].push("") - 1;
+      defer(kind === "gate" ? 0 : 1, () => {
+        const box = place(tag);
+        channels[kind][slot] = `<g class="${kind}${changed ? " changed" : ""}" data-id="${escapeXml(id)}">` + (changed ? `<line class="halo" x1="${f(seg.x1)}" y1="${f(-seg.y1)}" x2="${f(seg.x2)}" y2="${f(-seg.y2)}" stroke-width="${f(width + font * 0.8)}"/>` : "") + `<line class="body" x1="${f(seg.x1)}" y1="${f(-seg.y1)}" x2="${f(seg.x2)}" y2="${f(-seg.y2)}" stroke-width="${f(width)}"/>` + tagSvg(tag, box) + `</g>`;
+      });
+    };
     for (const g of geo.gates) {
-      const changed = changes.get(g.id);
       const gate = scenario.gates.find((x) => x.id === g.id);
       const prefix = gate.type === "edge" ? "t " : "\u2300";
-      const drawWidth = Math.max(g.size_mm, font * 0.25);
-      const mx = (g.x1 + g.x2) / 2, my = (g.y1 + g.y2) / 2;
-      const l = Math.hypot(g.x2 - g.x1, g.y2 - g.y1) || 1;
-      let nx = -(g.y2 - g.y1) / l, ny = (g.x2 - g.x1) / l;
-      if (nx < 0) [nx, ny] = [
-        -nx,
-        -ny
-      ];
-      const off = drawWidth / 2 + font * 0.6;
       const text = gate.type === "edge" && gate.width_mm ? `${label(g.id, g.size_mm, prefix)} \xD7 ${formatLength(gate.width_mm, unit)}` : label(g.id, g.size_mm, prefix);
-      out.push(`<g class="gate${changed ? " changed" : ""}" data-id="${escapeXml(g.id)}">` + (changed ? `<line class="halo" x1="${f(g.x1)}" y1="${f(-g.y1)}" x2="${f(g.x2)}" y2="${f(-g.y2)}" stroke-width="${f(drawWidth + font * 0.8)}"/>` : "") + `<line class="body" x1="${f(g.x1)}" y1="${f(-g.y1)}" x2="${f(g.x2)}" y2="${f(-g.y2)}" stroke-width="${f(drawWidth)}"/><text class="label${changed ? " strong" : ""}" x="${f(mx + nx * off)}" y="${f(-(my + ny * off))}" dy="0.32em">${escapeXml(text)}</text>` + (changed ? stepBadge(changed.step, mx - nx * off * 2, -(my - ny * off * 2), font) : "") + `</g>`);
+      channel("gate", g.id, g, Math.max(g.size_mm, font * 0.25), text, [
+        0,
+        -0.5,
+        0.5,
+        -1.5,
+        1.5
+      ]);
     }
-    const feedNode = geo.nodes.get(scenario.feed.node);
-    if (feedNode) {
-      const d = scenario.feed.kind === "sprue" ? scenario.feed.exit_diameter_mm ?? 5 : scenario.feed.diameter_mm ?? 5;
-      const text = scenario.feed.kind === "sprue" ? `sprue \u2300${formatLength(scenario.feed.entry_diameter_mm ?? d, unit)}\u2013${formatLength(d, unit)}` : `hot drop \u2300${formatLength(d, unit)}`;
-      out.push(`<g class="feed"><circle cx="${f(feedNode.x)}" cy="${f(-feedNode.y)}" r="${f(d / 2)}"/><circle class="feed-ring" cx="${f(feedNode.x)}" cy="${f(-feedNode.y)}" r="${f(d / 2 + font * 0.5)}"/><text class="label" x="${f(feedNode.x + d / 2 + font * 0.8)}" y="${f(-feedNode.y - d / 2 - font * 0.6)}">${escapeXml(text)}</text></g>`);
+    for (const r of geo.runners) {
+      channel("runner", r.id, r, r.width_mm, label(r.id, r.width_mm, "\u2300"), [
+        0,
+        0.3,
+        -0.3,
+        0.6,
+        -0.6
+      ]);
     }
+    jobs.sort((a, b) => a.priority - b.priority || a.order - b.order).forEach((j) => j.run());
+    let bx0 = x0, bx1 = x1, by0 = y0, by1 = y1;
+    for (const b of placed) {
+      bx0 = Math.min(bx0, b.x - b.hw);
+      bx1 = Math.max(bx1, b.x + b.hw);
+      by0 = Math.min(by0, b.y - b.hh);
+      by1 = Math.max(by1, b.y + b.hh);
+    }
+    const pad = font * 1.5;
+    const vx0 = bx0 - pad, vx1 = bx1 + pad;
+    const vy0 = -by1 - pad, vy1 = -by0 + pad + font * 3;
     const stepMm = niceLengthStep(span / 4, unit);
-    const bx = vx0 + pad * 0.5, by = vy1 - font * 1.6;
-    out.push(`<g class="scale-bar"><path d="M${f(bx)},${f(by - font * 0.4)}V${f(by)}H${f(bx + stepMm)}V${f(by - font * 0.4)}"/><text class="label" x="${f(bx + stepMm + font * 0.5)}" y="${f(by)}">${formatLength(stepMm, unit)} ${unit === "mm" ? "mm" : "in"} \xB7 sizes in ${unit === "mm" ? "mm" : "inch"} \xB7 \u2300 diameter, t gate thickness \xD7 width</text></g>`);
-    out.push(`</g></svg>`);
+    const sx = vx0 + pad, sy = vy1 - font * 1.2;
+    const out = [];
+    out.push(`<svg xmlns="http://www.w3.org/2000/svg" class="layout" ${options.id ? `id="${escapeXml(options.id)}" ` : ""}viewBox="${f(vx0)} ${f(vy0)} ${f(vx1 - vx0)} ${f(vy1 - vy0)}" role="img" aria-label="Layout drawing of the runner system">`, `<g font-size="${f(font)}" class="layout-body">`, ...body, ...channels.runner, ...channels.gate, ...feedBody, ...labels, `<g class="scale-bar"><path d="M${f(sx)},${f(sy - font * 0.4)}V${f(sy)}H${f(sx + stepMm)}V${f(sy - font * 0.4)}"/><text class="label" x="${f(sx + stepMm + font * 0.5)}" y="${f(sy)}">${formatLength(stepMm, unit)} ${unit === "mm" ? "mm" : "in"}</text></g>`, `</g></svg>`);
     return out.join("");
   }
-  function stepBadge(step, x, y, font) {
-    const f = (v) => (Math.round(v * 1e3) / 1e3).toString();
-    return `<g class="step-badge"><circle cx="${f(x)}" cy="${f(y)}" r="${f(font * 0.8)}"/><text x="${f(x)}" y="${f(y)}" text-anchor="middle" dy="0.35em">${step}</text></g>`;
+  function freeDirection(geo, nodeId) {
+    const n = geo.nodes.get(nodeId);
+    if (!n) return -Math.PI / 2;
+    const angles = [];
+    for (const r of geo.runners) {
+      if (r.x1 === n.x && r.y1 === n.y) angles.push(Math.atan2(r.y2 - r.y1, r.x2 - r.x1));
+      else if (r.x2 === n.x && r.y2 === n.y) angles.push(Math.atan2(r.y1 - r.y2, r.x1 - r.x2));
+    }
+    for (const g of geo.gates) {
+      if (g.x1 === n.x && g.y1 === n.y) angles.push(Math.atan2(g.y2 - g.y1, g.x2 - g.x1));
+    }
+    if (angles.length === 0) return -Math.PI / 2;
+    angles.sort((a, b) => a - b);
+    let best = -Math.PI / 2, widest = -1;
+    for (let k = 0; k < angles.length; k++) {
+      const a = angles[k];
+      const b = k + 1 < angles.length ? angles[k + 1] : angles[0] + 2 * Math.PI;
+      const score = b - a - 1e-3 * Math.sin((a + b) / 2);
+      if (score > widest) {
+        widest = score;
+        best = (a + b) / 2;
+      }
+    }
+    return best;
+  }
+  function layoutKeyText(unit) {
+    return `Plan view to scale from the node coordinates; sizes in ${unit === "mm" ? "mm" : "inch"}. \u2300 diameter; t gate thickness \xD7 width. Runners at their true width; cavity circles by volume (placed beyond their gates). Changed elements: dashed outline, before \u2192 after, step number.`;
   }
   function formatVolume(cm3) {
     return cm3 >= 100 ? cm3.toFixed(0) : cm3 >= 10 ? cm3.toFixed(1) : cm3.toFixed(2);
@@ -1102,6 +1381,7 @@
     return units.length === "mm" ? `${formatLength(mm, "mm")} mm (${inch.toFixed(4)} in)` : `${inch.toFixed(4)} in (${formatLength(mm, "mm")} mm)`;
   }
   function changeTableHtml(changes, units, options = {}) {
+    const caption = options.sheet ? "" : `<caption>Changes in order of work (each step simulated with every step before it)</caption>`;
     if (changes.length === 0) {
       return `<p class="empty" id="${escapeXml(options.id ?? "change-table")}">No change proposed.</p>`;
     }
@@ -1109,19 +1389,34 @@
       const t = c.after_step;
       return `<tr data-step="${c.step}" data-element="${escapeXml(c.element)}"><td class="num step">${c.step}</td><th scope="row">${escapeXml(c.element)}</th><td>${escapeXml(c.kind)}, ${escapeXml(c.section)}</td><td>${escapeXml(c.dimension)}</td><td class="num" data-field="from" data-mm="${c.from_mm}" data-in="${c.from_in}">${escapeXml(changeSizeText(c, "from", units))}</td><td class="num" data-field="to" data-mm="${c.to_mm}" data-in="${c.to_in}"><strong>${escapeXml(changeSizeText(c, "to", units))}</strong></td><td data-field="cutter">${escapeXml(c.cutter)}</td><td data-field="steel">${c.steel_safe ? "enlarge (steel-safe)" : "<strong>ADD STEEL</strong> (weld or insert)"}</td><td>${escapeXml(c.mold_half)}</td><td class="num" data-field="imbalance" data-value="${t.imbalance_percent}">${num(t.imbalance_percent, 3)} %</td><td class="num" data-field="pressure" data-value="${t.feed_pressure_peak_MPa}">${escapeXml(formatPressure(t.feed_pressure_peak_MPa, units))}</td><td class="num" data-field="runner" data-value="${t.runner_volume_cm3}">${num(t.runner_volume_cm3, 3)}</td><td>${t.limits_met ? "yes" : "no"}</td>` + (options.sheet ? `<td class="tick-box" aria-label="done">\u2610</td>` : "") + `</tr>`;
     }).join("");
-    return `<table class="data changes" id="${escapeXml(options.id ?? "change-table")}"><caption>Changes in order of work (each step simulated with every step before it)</caption><thead><tr><th scope="col">step</th><th scope="col">element</th><th scope="col">what</th><th scope="col">size</th><th scope="col">before</th><th scope="col">after</th><th scope="col">cutter</th><th scope="col">steel</th><th scope="col">mold half</th><th scope="col">imbalance after</th><th scope="col">peak pressure after</th><th scope="col">runner after, cm\xB3</th><th scope="col">limits met</th>` + (options.sheet ? `<th scope="col">done</th>` : "") + `</tr></thead><tbody>${rows}</tbody></table>`;
+    return `<table class="data changes" id="${escapeXml(options.id ?? "change-table")}">` + caption + `<thead><tr><th scope="col">step</th><th scope="col">element</th><th scope="col">what</th><th scope="col">size</th><th scope="col">before</th><th scope="col">after</th><th scope="col">cutter</th><th scope="col">steel</th><th scope="col">mold half</th><th scope="col">imbalance after</th><th scope="col">peak pressure after</th><th scope="col">runner after, cm\xB3</th><th scope="col">limits met</th>` + (options.sheet ? `<th scope="col">done</th>` : "") + `</tr></thead><tbody>${rows}</tbody></table>`;
   }
   function fillChartSvg(result, options) {
     const history2 = result.history ?? [];
-    const series = result.cavities.map((c, k) => ({
-      label: c.id,
-      style: k,
-      points: history2.map((h) => [
-        h.time_s ?? NaN,
-        h.cavity_fill_percent[k] ?? NaN
-      ])
-    }));
+    const series = result.cavities.map((c, k) => {
+      const points = [];
+      for (const h of history2) {
+        const fill = h.cavity_fill_percent[k] ?? NaN;
+        points.push([
+          h.time_s ?? NaN,
+          fill
+        ]);
+        if (fill >= 100) break;
+      }
+      return {
+        label: c.id,
+        style: k,
+        points
+      };
+    });
+    const firstFull = Math.min(...result.cavities.map((c) => c.fill_time_s ?? Infinity));
     return lineChart(series, {
+      verticals: Number.isFinite(firstFull) ? [
+        {
+          x: firstFull,
+          label: "first full"
+        }
+      ] : [],
       title: options.title,
       xLabel: "time, s",
       yLabel: "cavity fill, %",
@@ -1258,6 +1553,7 @@
       points: hist(after, (h) => k(h.clamp_force_kN))
     });
     const pressure = lineChart(pSeries, {
+      labelFaint: true,
       title: "Injection pressure at the nozzle",
       xLabel: "time, s",
       yLabel: `pressure, ${unitSymbol(u, "pressure")}`,
@@ -1276,6 +1572,7 @@
       id: "pressure-chart"
     });
     const clamp = lineChart(kSeries, {
+      labelFaint: true,
       title: "Clamp force (cavities + runner)",
       xLabel: "time, s",
       yLabel: `force, ${unitSymbol(u, "force")}`,
@@ -1317,7 +1614,7 @@
     const b = opt.before, a = opt.after;
     const u = options.units;
     const row = (label, x, y) => `<tr><th scope="row">${escapeXml(label)}</th><td class="num">${escapeXml(x)}</td><td class="num">${escapeXml(y)}</td></tr>`;
-    return `<article class="sheet" id="sheet"><header class="sheet-head"><div><p class="kicker">evenfill \xB7 change sheet</p><h2>${escapeXml(options.toolName)}</h2>${options.scenarioLabel ? `<p class="muted">${escapeXml(options.scenarioLabel)}</p>` : ""}</div><dl><dt>Date</dt><dd id="sheet-date">${escapeXml(options.date)}</dd><dt>Status</dt><dd>${escapeXml(opt.status)}</dd><dt>Units</dt><dd>${u.length === "mm" ? "mm (inch beside)" : "inch (mm beside)"}, ${escapeXml(unitSymbol(u, "pressure"))}</dd></dl></header><section class="sheet-layout"><h3>Layout (after; changed elements dashed, with their step)</h3>${options.layout}</section><section><h3>Changes in order of work</h3><p class="muted">Cut one step, shoot and weigh short shots, compare with the predicted effect, then decide on the next.</p>${changeTableHtml(opt.changes, u, {
+    return `<article class="sheet" id="sheet"><header class="sheet-head"><div><p class="kicker">evenfill \xB7 change sheet</p><h2>${escapeXml(options.toolName)}</h2>${options.scenarioLabel ? `<p class="muted">${escapeXml(options.scenarioLabel)}</p>` : ""}</div><dl><dt>Date</dt><dd id="sheet-date">${escapeXml(options.date)}</dd><dt>Status</dt><dd>${escapeXml(opt.status)}</dd><dt>Units</dt><dd>${u.length === "mm" ? "mm (inch beside)" : "inch (mm beside)"}, ${escapeXml(unitSymbol(u, "pressure"))}</dd></dl></header><section class="sheet-layout"><h3>Layout (after; changed elements dashed, with their step)</h3>${options.layout}</section><section><h3>Changes in order of work</h3><p class="muted">Each step was simulated with every step before it. Cut one step, shoot and weigh short shots, compare with the predicted effect, then decide on the next.</p>${changeTableHtml(opt.changes, u, {
       id: "sheet-changes",
       sheet: true
     })}</section><section class="sheet-effect"><h3>Predicted effect</h3><table class="data compact"><thead><tr><th></th><th scope="col">before</th><th scope="col">after all steps</th></tr></thead><tbody>` + row("fill-time imbalance", `${num(b.imbalance_percent)} %`, `${num(a.imbalance_percent)} %`) + row("peak injection pressure", formatPressure(b.feed_pressure_peak_MPa, u), formatPressure(a.feed_pressure_peak_MPa, u)) + row("peak clamp force", formatForce(b.clamp_force_peak_kN, u), formatForce(a.clamp_force_peak_kN, u)) + row("cold runner", `${num(b.runner_mass_g)} g`, `${num(a.runner_mass_g)} g`) + `</tbody></table>${verdictHtml(opt)}</section><section class="sheet-cautions"><h3>Cautions</h3>${cautionsHtml(a)}</section><section class="signoff"><h3>Sign-off</h3><div class="sign-lines">` + [
@@ -1590,7 +1887,7 @@
       return `<div class="mark-band" style="top:${top}px"></div><div class="editor-note" role="note" data-line="${i.span.line}" data-at="${escapeXml(i.at)}" data-index="${k}" style="top:${top + n * LINE_HEIGHT}px">${escapeXml(i.at)}: ${escapeXml(i.message)}</div>`;
     }).join("");
     const list = $("issue-list");
-    list.innerHTML = state.issues.map((i, k) => `<li><button type="button" class="link" data-index="${k}" data-at="${escapeXml(i.at)}">line ${i.span.line}, <code>${escapeXml(i.at)}</code></button> ${escapeXml(i.message)}</li>`).join("");
+    list.innerHTML = state.issues.map((i, k) => `<li><button type="button" class="link" data-index="${k}" data-at="${escapeXml(i.at)}">${i.code === "invalid_json" ? escapeXml(i.at) : `line ${i.span.line}, <code>${escapeXml(i.at)}</code>`}</button> ${escapeXml(i.message)}</li>`).join("");
     list.hidden = state.issues.length === 0;
     syncScroll();
   }
@@ -1698,7 +1995,7 @@
     }
   }
   function renderMaterials() {
-    $("form-material").innerHTML = state.materials.map((m) => `<option value="${escapeXml(m.id)}">${escapeXml(m.name)}${m.generic ? " (generic)" : ""}</option>`).join("");
+    $("form-material").innerHTML = state.materials.map((m) => `<option value="${escapeXml(m.id)}">${escapeXml(m.name)}${m.generic && !/generic/i.test(m.name) ? " (generic)" : ""}</option>`).join("");
   }
   function renderPreview(value = currentObject()) {
     const holder = $("preview");
@@ -1710,7 +2007,7 @@
       holder.innerHTML = layoutSvg(s, {
         lengthUnit: state.units.length,
         id: "preview-layout"
-      });
+      }) + `<p class="note">${escapeXml(layoutKeyText(state.units.length))}</p>`;
     } catch {
     }
   }
@@ -2022,7 +2319,7 @@
       r
     ].flatMap((x) => (x?.history ?? []).map((h) => h.time_s ?? 0)), 1e-3);
     const ids = r.cavities.map((c) => `${c.id}${c.name ? ` ${c.name}` : ""}`);
-    results.innerHTML = `<h2 class="run-title">${escapeXml(scenario.name)} <small>${opt ? "optimization" : "simulation"}${r.material ? ` \xB7 ${escapeXml(r.material.name)}` : ""}</small></h2>` + (opt ? verdictHtml(opt) : "") + summaryHtml(shown, ctx) + `<section class="block"><h3>Layout${opt ? " after the changes" : ""}</h3>${layout("results-layout")}</section><section class="block"><h3>Fill history</h3>${seriesKeyHtml(ids)}<div class="charts">${opt ? fillChartSvg(opt.before, {
+    results.innerHTML = `<h2 class="run-title">${escapeXml(scenario.name)} <small>${opt ? "optimization" : "simulation"}${r.material ? ` \xB7 ${escapeXml(r.material.name)}` : ""}</small></h2>` + (opt ? verdictHtml(opt) : "") + summaryHtml(shown, ctx) + `<section class="block"><h3>Layout${opt ? " after the changes" : ""}</h3>${layout("results-layout")}<p class="note">${escapeXml(layoutKeyText(state.units.length))}</p></section><section class="block"><h3>Fill history</h3>${seriesKeyHtml(ids)}<div class="charts">${opt ? fillChartSvg(opt.before, {
       title: "Before",
       id: "fill-before",
       xMax
@@ -2040,7 +2337,7 @@
     sheet.innerHTML = opt ? changeSheetHtml(opt, {
       toolName: scenario.name,
       date: (/* @__PURE__ */ new Date()).toISOString().slice(0, 10),
-      layout: layout("sheet-layout"),
+      layout: layout("sheet-layout") + `<p class="note">${escapeXml(layoutKeyText(state.units.length))}</p>`,
       units: state.units,
       scenarioLabel: `${sourceLabel()}; mode ${scenario.goals?.mode ?? "new_tool"}; material ${opt.after.material?.name ?? ""}`
     }) : `<p class="empty">The change sheet comes from an optimization: run one on the Run tab.</p>`;

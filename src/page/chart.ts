@@ -190,6 +190,10 @@ export interface LineChartOptions {
   /** Fixed y domain (default: from the data and rules). */
   yDomain?: [number, number];
   rules?: ChartRule[];
+  /** Vertical reference lines (an instant, e.g. "first cavity full"). */
+  verticals?: { x: number; label: string }[];
+  /** Label faint series at their ends too (default false). */
+  labelFaint?: boolean;
   /** Put a marker at each point, not only at the end (default false). */
   markEveryPoint?: boolean;
   /** Labels of x ticks by value (category axes); default numeric. */
@@ -291,6 +295,18 @@ export function lineChart(series: ChartSeries[], options: LineChartOptions): str
         }</text></g>`,
     );
   }
+  for (const v of options.verticals ?? []) {
+    if (!(v.x >= xd.domain[0] && v.x <= xd.domain[1])) continue;
+    const x = fmt(xs(v.x));
+    out.push(
+      `<g class="rule"><line x1="${x}" x2="${x}" y1="${margin.top}" y2="${
+        height - margin.bottom
+      }" stroke="#000" stroke-width="1" stroke-dasharray="3 3"/>` +
+        `<text x="${x}" y="${height - margin.bottom - 4}" dx="-4" text-anchor="end">${
+          escapeXml(v.label)
+        }</text></g>`,
+    );
+  }
   // series
   const ends: { y: number; label: string; colour: string }[] = [];
   series.forEach((s) => {
@@ -313,7 +329,7 @@ export function lineChart(series: ChartSeries[], options: LineChartOptions): str
     const marked = options.markEveryPoint ? pts : [pts[pts.length - 1]];
     for (const [x, y] of marked) out.push(markerSvg(st.marker, xs(x), ys(y), 6, colour));
     out.push(`</g>`);
-    if (!s.faint) {
+    if (!s.faint || options.labelFaint) {
       const [, yLast] = pts[pts.length - 1];
       ends.push({ y: ys(yLast), label: s.label, colour });
     }
@@ -322,6 +338,11 @@ export function lineChart(series: ChartSeries[], options: LineChartOptions): str
   ends.sort((a, b) => a.y - b.y);
   for (let k = 1; k < ends.length; k++) {
     if (ends[k].y - ends[k - 1].y < 11) ends[k].y = ends[k - 1].y + 11;
+  }
+  const bottom = height - margin.bottom + 4;
+  const overflow = ends.length ? ends[ends.length - 1].y - bottom : 0;
+  if (overflow > 0) {
+    for (const e of ends) e.y = Math.max(margin.top, e.y - overflow);
   }
   for (const e of ends) {
     out.push(

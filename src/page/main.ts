@@ -16,7 +16,7 @@ import {
   unitSymbol,
 } from "./display_units.ts";
 import { checkJsonSyntax, type PlacedIssue, placeIssues } from "./editor_issues.ts";
-import { layoutSvg } from "./layout_drawing.ts";
+import { layoutKeyText, layoutSvg } from "./layout_drawing.ts";
 import {
   cautionsHtml,
   cavityTableHtml,
@@ -238,9 +238,9 @@ function renderIssues() {
   }).join("");
   const list = $("issue-list");
   list.innerHTML = state.issues.map((i, k) =>
-    `<li><button type="button" class="link" data-index="${k}" data-at="${
-      esc(i.at)
-    }">line ${i.span.line}, <code>${esc(i.at)}</code></button> ${esc(i.message)}</li>`
+    `<li><button type="button" class="link" data-index="${k}" data-at="${esc(i.at)}">${
+      i.code === "invalid_json" ? esc(i.at) : `line ${i.span.line}, <code>${esc(i.at)}</code>`
+    }</button> ${esc(i.message)}</li>`
   ).join("");
   list.hidden = state.issues.length === 0;
   syncScroll();
@@ -360,7 +360,9 @@ function setupForm() {
 
 function renderMaterials() {
   $("form-material").innerHTML = state.materials.map((m) =>
-    `<option value="${esc(m.id)}">${esc(m.name)}${m.generic ? " (generic)" : ""}</option>`
+    `<option value="${esc(m.id)}">${esc(m.name)}${
+      m.generic && !/generic/i.test(m.name) ? " (generic)" : ""
+    }</option>`
   ).join("");
 }
 
@@ -372,7 +374,8 @@ function renderPreview(value: unknown = currentObject()) {
     if (!s || !Array.isArray(s.nodes) || !Array.isArray(s.gates) || !Array.isArray(s.cavities)) {
       return;
     }
-    holder.innerHTML = layoutSvg(s, { lengthUnit: state.units.length, id: "preview-layout" });
+    holder.innerHTML = layoutSvg(s, { lengthUnit: state.units.length, id: "preview-layout" }) +
+      `<p class="note">${esc(layoutKeyText(state.units.length))}</p>`;
   } catch {
     // a half-typed scenario may not draw; the previous drawing stays
   }
@@ -712,7 +715,7 @@ function renderResults() {
     summaryHtml(shown, ctx) +
     `<section class="block"><h3>Layout${opt ? " after the changes" : ""}</h3>${
       layout("results-layout")
-    }</section>` +
+    }<p class="note">${esc(layoutKeyText(state.units.length))}</p></section>` +
     `<section class="block"><h3>Fill history</h3>${seriesKeyHtml(ids)}<div class="charts">${
       opt
         ? fillChartSvg(opt.before, { title: "Before", id: "fill-before", xMax }) +
@@ -738,7 +741,8 @@ function renderResults() {
     ? changeSheetHtml(opt, {
       toolName: scenario.name,
       date: new Date().toISOString().slice(0, 10),
-      layout: layout("sheet-layout"),
+      layout: layout("sheet-layout") +
+        `<p class="note">${esc(layoutKeyText(state.units.length))}</p>`,
       units: state.units,
       scenarioLabel: `${sourceLabel()}; mode ${scenario.goals?.mode ?? "new_tool"}; material ${
         opt.after.material?.name ?? ""

@@ -214,6 +214,9 @@ export function changeTableHtml(
   units: DisplayUnits,
   options: { id?: string; sheet?: boolean } = {},
 ): string {
+  const caption = options.sheet
+    ? ""
+    : `<caption>Changes in order of work (each step simulated with every step before it)</caption>`;
   if (changes.length === 0) {
     return `<p class="empty" id="${esc(options.id ?? "change-table")}">No change proposed.</p>`;
   }
@@ -248,8 +251,7 @@ export function changeTableHtml(
       (options.sheet ? `<td class="tick-box" aria-label="done">☐</td>` : "") +
       `</tr>`;
   }).join("");
-  return `<table class="data changes" id="${esc(options.id ?? "change-table")}">` +
-    `<caption>Changes in order of work (each step simulated with every step before it)</caption>` +
+  return `<table class="data changes" id="${esc(options.id ?? "change-table")}">` + caption +
     `<thead><tr><th scope="col">step</th><th scope="col">element</th><th scope="col">what</th>` +
     `<th scope="col">size</th><th scope="col">before</th><th scope="col">after</th>` +
     `<th scope="col">cutter</th><th scope="col">steel</th><th scope="col">mold half</th>` +
@@ -265,12 +267,21 @@ export function fillChartSvg(
   options: { title: string; id?: string; xMax?: number; width?: number },
 ): string {
   const history = result.history ?? [];
-  const series: ChartSeries[] = result.cavities.map((c, k) => ({
-    label: c.id,
-    style: k,
-    points: history.map((h) => [h.time_s ?? NaN, h.cavity_fill_percent[k] ?? NaN]),
-  }));
+  // each line ends where its cavity is full, so the marker shows the fill moment
+  const series: ChartSeries[] = result.cavities.map((c, k) => {
+    const points: [number, number][] = [];
+    for (const h of history) {
+      const fill = h.cavity_fill_percent[k] ?? NaN;
+      points.push([h.time_s ?? NaN, fill]);
+      if (fill >= 100) break;
+    }
+    return { label: c.id, style: k, points };
+  });
+  const firstFull = Math.min(
+    ...result.cavities.map((c) => c.fill_time_s ?? Infinity),
+  );
   return lineChart(series, {
+    verticals: Number.isFinite(firstFull) ? [{ x: firstFull, label: "first full" }] : [],
     title: options.title,
     xLabel: "time, s",
     yLabel: "cavity fill, %",
@@ -389,6 +400,7 @@ export function pressChartsSvg(shown: Shown, ctx: RunContext): string {
     points: hist(after, (h) => k(h.clamp_force_kN)),
   });
   const pressure = lineChart(pSeries, {
+    labelFaint: true,
     title: "Injection pressure at the nozzle",
     xLabel: "time, s",
     yLabel: `pressure, ${unitSymbol(u, "pressure")}`,
@@ -401,6 +413,7 @@ export function pressChartsSvg(shown: Shown, ctx: RunContext): string {
     id: "pressure-chart",
   });
   const clamp = lineChart(kSeries, {
+    labelFaint: true,
     title: "Clamp force (cavities + runner)",
     xLabel: "time, s",
     yLabel: `force, ${unitSymbol(u, "force")}`,
@@ -490,7 +503,7 @@ export function changeSheetHtml(opt: OptimizationResult, options: ChangeSheetOpt
       esc(unitSymbol(u, "pressure"))
     }</dd></dl></header>` +
     `<section class="sheet-layout"><h3>Layout (after; changed elements dashed, with their step)</h3>${options.layout}</section>` +
-    `<section><h3>Changes in order of work</h3><p class="muted">Cut one step, shoot and weigh short shots, compare with the predicted effect, then decide on the next.</p>${
+    `<section><h3>Changes in order of work</h3><p class="muted">Each step was simulated with every step before it. Cut one step, shoot and weigh short shots, compare with the predicted effect, then decide on the next.</p>${
       changeTableHtml(opt.changes, u, { id: "sheet-changes", sheet: true })
     }</section>` +
     `<section class="sheet-effect"><h3>Predicted effect</h3><table class="data compact"><thead><tr><th></th><th scope="col">before</th><th scope="col">after all steps</th></tr></thead><tbody>` +
