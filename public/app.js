@@ -2207,7 +2207,7 @@
       goToIssue(0);
       return;
     }
-    setBusy(true, true);
+    setBusy(true);
     state.progress = [];
     renderProgress();
     $("run-state").textContent = "Optimization queued\u2026";
@@ -2216,6 +2216,7 @@
       const started = await api.startJob(scenario);
       state.jobId = started.id;
       $("run-panel").dataset.jobId = started.id;
+      setBusy(true, true);
       const job = await watchJob(started.id, {
         onState: (status) => {
           $("run-state").textContent = `Optimization ${status}\u2026`;

@@ -586,7 +586,7 @@ async function optimize() {
     goToIssue(0);
     return;
   }
-  setBusy(true, true);
+  setBusy(true);
   state.progress = [];
   renderProgress();
   $("run-state").textContent = "Optimization queued…";
@@ -595,6 +595,7 @@ async function optimize() {
     const started = await api.startJob(scenario);
     state.jobId = started.id;
     $("run-panel").dataset.jobId = started.id;
+    setBusy(true, true);
     const job = await watchJob(started.id, {
       onState: (status) => {
         $("run-state").textContent = `Optimization ${status}…`;

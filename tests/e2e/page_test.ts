@@ -343,6 +343,68 @@ Deno.test({
       await page.pdf({ path: new URL("change-sheet.pdf", artifacts).pathname, format: "A4" });
       await page.emulateMediaType("screen");
 
+      // --- save, edit through the form (°F shown, °C stored), save a revision
+      await page.select("#unit-temperature", "F");
+      await page.click("#tab-scenario");
+      await page.click("#save");
+      await page.waitForFunction(
+        () =>
+          /saved scenario .+, revision 1/.test(
+            document.getElementById("source-state")!.textContent ?? "",
+          ),
+        { timeout: 15_000 },
+      );
+      const meltShown = await page.$eval(
+        "#form-meltTemperature",
+        (el) => (el as HTMLInputElement).value,
+      );
+      assert.equal(Number(meltShown), demo.process.melt_temperature_C * 1.8 + 32);
+      await page.$eval("#form-meltTemperature", (el) => {
+        const input = el as HTMLInputElement;
+        input.value = "500"; // °F = 260 °C
+        input.dispatchEvent(new Event("change", { bubbles: true }));
+      });
+      await page.waitForFunction(
+        () =>
+          (document.getElementById("scenario-text") as HTMLTextAreaElement).value
+            .includes('"melt_temperature_C": 260'),
+        { timeout: 5_000 },
+      );
+      await page.click("#save");
+      await page.waitForFunction(
+        () => /revision 2/.test(document.getElementById("source-state")!.textContent ?? ""),
+        { timeout: 15_000 },
+      );
+      const saved = (await (await fetch(`${service.base}/api/scenarios`)).json()).scenarios;
+      assert.equal(saved.length, 1);
+      const revisions = (await (await fetch(
+        `${service.base}/api/scenarios/${saved[0].id}/revisions`,
+      )).json()).revisions;
+      assert.equal(revisions.length, 2);
+      const stored = (await (await fetch(`${service.base}/api/scenarios/${saved[0].id}`)).json())
+        .scenario;
+      assert.equal(stored.process.melt_temperature_C, 260, "files and API stay metric");
+
+      // --- start an optimization and cancel it
+      await page.click("#tab-run");
+      await page.click("#optimize");
+      await page.waitForFunction(
+        () => !(document.getElementById("cancel") as HTMLButtonElement).disabled,
+        { timeout: 15_000 },
+      );
+      await page.click("#cancel");
+      await page.waitForFunction(
+        () => {
+          const job = document.getElementById("run-panel")?.dataset.job;
+          return job === "cancelled" || job === "done" || job === "failed";
+        },
+        { timeout: 60_000, polling: 250 },
+      );
+      assert.equal(
+        await page.$eval("#run-panel", (el) => (el as HTMLElement).dataset.job),
+        "cancelled",
+      );
+
       assert.deepEqual(consoleErrors, [], "no script errors on the page");
     } finally {
       await browser?.close().catch(() => {});
