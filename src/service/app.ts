@@ -28,6 +28,8 @@ export interface AppOptions {
   config: ServiceConfig;
   /** Epoch ms the service started (default: now). */
   startedAtMs?: number;
+  /** Aborted when the service shuts down: open event streams close. */
+  shutdownSignal?: AbortSignal;
   /** How often an event stream polls the store, ms (default 200). */
   eventPollMs?: number;
   /** The simulation the synchronous endpoint runs (default {@link runScenario}); a seam for tests. */

@@ -29,6 +29,8 @@ export interface ServiceConfig {
   simulateMaxElements: number;
   /** Job lease, ms; a worker renews it every third of this (EVENFILL_LEASE_MS, --lease-ms; default 10 s). */
   leaseMs: number;
+  /** How long a stopping worker lets a running job go on before re-queueing it, ms (EVENFILL_SHUTDOWN_GRACE_MS, --shutdown-grace-ms; default 2000). */
+  shutdownGraceMs: number;
   /** Enable the test-only `test_spin` job kind (EVENFILL_ENABLE_TEST_JOBS=1, --enable-test-jobs; default off). */
   enableTestJobs: boolean;
   /** Directory of the static page (default `public/` of this checkout). */
@@ -53,6 +55,7 @@ export function defaultConfig(): ServiceConfig {
     simulateLimitMs: 10_000,
     simulateMaxElements: 400,
     leaseMs: 10_000,
+    shutdownGraceMs: 2000,
     enableTestJobs: false,
     publicDir: new URL("public/", root).pathname,
     scenariosDir: new URL("scenarios/", root).pathname,
@@ -103,6 +106,7 @@ export function loadConfig(
     "max-body-bytes",
     "simulate-limit-ms",
     "lease-ms",
+    "shutdown-grace-ms",
     "enable-test-jobs",
   ]);
   for (const name of flags.keys()) {
@@ -129,6 +133,8 @@ export function loadConfig(
   if (simulate !== undefined) config.simulateLimitMs = number("simulate limit", simulate, 10);
   const lease = get("lease-ms", "EVENFILL_LEASE_MS");
   if (lease !== undefined) config.leaseMs = Math.trunc(number("lease", lease, 300));
+  const grace = get("shutdown-grace-ms", "EVENFILL_SHUTDOWN_GRACE_MS");
+  if (grace !== undefined) config.shutdownGraceMs = Math.trunc(number("shutdown grace", grace, 0));
   const test = get("enable-test-jobs", "EVENFILL_ENABLE_TEST_JOBS");
   config.enableTestJobs = test === "1" || test === "true";
   return config;

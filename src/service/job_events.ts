@@ -4,7 +4,7 @@ import type { JobStatus, JobStore } from "../store/store.ts";
 export interface JobEventsOptions {
   /** How often the store is polled, ms. */
   pollMs: number;
-  /** Aborts the stream (the client went away). */
+  /** Closes the stream (the service is shutting down). */
   signal?: AbortSignal;
   /** Comment line interval that keeps proxies from closing an idle stream, ms (default 15 000). */
   keepAliveMs?: number;
@@ -73,8 +73,7 @@ export function jobEvents(store: JobStore, id: string, options: JobEventsOptions
       };
       controller.enqueue(encoder.encode("retry: 2000\n\n"));
       tick();
-      if (!closed) timer = setInterval(tick, options.pollMs);
-      options.signal?.addEventListener("abort", () => {
+      const abort = () => {
         if (closed) return;
         stop();
         try {
@@ -82,7 +81,10 @@ export function jobEvents(store: JobStore, id: string, options: JobEventsOptions
         } catch {
           // already closed by the client
         }
-      });
+      };
+      if (!closed) timer = setInterval(tick, options.pollMs);
+      if (options.signal?.aborted) abort();
+      else options.signal?.addEventListener("abort", abort, { once: true });
     },
     cancel() {
       stop();

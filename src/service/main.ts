@@ -43,7 +43,8 @@ export async function main(args: readonly string[]): Promise<number> {
   }
   await ensureParent(config.dbPath);
   const store = SqliteStore.open(config.dbPath);
-  const handler = createApp({ store, config });
+  const shutdown = new AbortController();
+  const handler = createApp({ store, config, shutdownSignal: shutdown.signal });
   const server = Deno.serve({
     hostname: config.host,
     port: config.port,
@@ -62,6 +63,7 @@ export async function main(args: readonly string[]): Promise<number> {
   for (const [s, l] of listeners) Deno.addSignalListener(s, l);
   const signal = await stopping;
   console.log(JSON.stringify({ event: "stopping", signal }));
+  shutdown.abort();
   await server.shutdown();
   await pool.stop();
   store.close();

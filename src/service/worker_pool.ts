@@ -47,6 +47,8 @@ export class WorkerPool {
       c.dbPath,
       "--lease-ms",
       String(c.leaseMs),
+      "--shutdown-grace-ms",
+      String(c.shutdownGraceMs),
     ];
     if (c.enableTestJobs) args.push("--enable-test-jobs");
     const child = new Deno.Command(Deno.execPath(), {

@@ -126,7 +126,12 @@ export class SqliteStore implements Store {
     db.exec("PRAGMA synchronous = NORMAL");
     db.exec("PRAGMA foreign_keys = ON");
     const store = new SqliteStore(path, db);
-    store.#migrate();
+    try {
+      store.#migrate();
+    } catch (error) {
+      db.close();
+      throw error;
+    }
     return store;
   }
 

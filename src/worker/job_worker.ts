@@ -12,7 +12,7 @@ export interface JobWorkerOptions {
   idlePollMs?: number;
   /** How often a running job is supervised (cancel, time limit, lease), ms (default 100). */
   supervisePollMs?: number;
-  /** How long a job may take to honour a cancel before it is killed, ms (default 2000). */
+  /** How long a job may take to honour a cancel before it is killed, ms (default 1000). */
   cancelGraceMs?: number;
   /** How long shutdown waits for a running job before killing and re-queueing it, ms (default 2000). */
   shutdownGraceMs?: number;
@@ -135,6 +135,8 @@ export class JobWorker {
         owner,
         "--attempt",
         String(attempt),
+        "--parent",
+        String(Deno.pid),
       ],
       env,
       stdin: "null",
@@ -175,7 +177,7 @@ export class JobWorker {
         break;
       }
       if (cancelSeenAt === undefined && this.#store.isCancelRequested(job.id)) cancelSeenAt = now;
-      if (cancelSeenAt !== undefined && now - cancelSeenAt > (this.options.cancelGraceMs ?? 2000)) {
+      if (cancelSeenAt !== undefined && now - cancelSeenAt > (this.options.cancelGraceMs ?? 1000)) {
         verdict = "cancelled";
         kill();
         break;

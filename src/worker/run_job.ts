@@ -6,7 +6,7 @@
  * process on time limit or an ignored cancel; if the supervisor itself dies,
  * this process notices (its parent changes) and exits without writing.
  *
- * Usage: run_job.ts --db <file> --job <id> --owner <worker id> --attempt <n>
+ * Usage: run_job.ts --db <file> --job <id> --owner <worker id> --attempt <n> --parent <pid>
  *
  * @module
  */
@@ -51,7 +51,12 @@ export async function runJobAttempt(
 ): Promise<boolean> {
   const { owner, attempt } = options;
   const orphaned = options.orphaned ?? (() => false);
-  const finish = (outcome: JobOutcome) => store.finishJob(job.id, owner, attempt, outcome);
+  // A job process whose supervisor died never writes an outcome: its lease is
+  // about to lapse and the job will be run again from the start.
+  const finish = (outcome: JobOutcome) => {
+    if (orphaned()) throw new LeaseLost();
+    return store.finishJob(job.id, owner, attempt, outcome);
+  };
   const fail = (code: string, message: string) =>
     finish({ status: "failed", error: { code, message } });
 
@@ -123,11 +128,16 @@ async function main(args: readonly string[]): Promise<number> {
   const id = flag(args, "job");
   const owner = flag(args, "owner");
   const attempt = Number(flag(args, "attempt"));
-  if (!db || !id || !owner || !Number.isInteger(attempt)) {
-    console.error("usage: run_job.ts --db <file> --job <id> --owner <worker id> --attempt <n>");
+  // The supervisor's pid comes as an argument: reading Deno.ppid at start-up
+  // would miss a supervisor that died while this process was starting.
+  const parent = Number(flag(args, "parent"));
+  if (!db || !id || !owner || !Number.isInteger(attempt) || !Number.isInteger(parent)) {
+    console.error(
+      "usage: run_job.ts --db <file> --job <id> --owner <worker id> --attempt <n> --parent <pid>",
+    );
     return RUN_JOB_EXIT.usage;
   }
-  const parent = Deno.ppid;
+  if (Deno.ppid !== parent) return RUN_JOB_EXIT.leaseLost;
   const store = SqliteStore.open(db);
   try {
     const job = store.getJob(id);

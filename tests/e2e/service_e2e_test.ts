@@ -1,0 +1,363 @@
+// End to end: the real service and worker processes on 127.0.0.1 with a
+// temporary database file. Every spawned process is stopped in `finally`.
+import assert from "node:assert/strict";
+import { assertClose } from "../assert_close.ts";
+import { cliOptimize, Proc, startService, startWorker, waitForJob } from "./_processes.ts";
+
+// deno-lint-ignore no-explicit-any
+type Json = any;
+
+const QUICK = new URL("../testdata/quick_two_cavity.json", import.meta.url).pathname;
+const SLOW = new URL("../../scenarios/family_four_housing.json", import.meta.url).pathname;
+const quickScenario = JSON.parse(await Deno.readTextFileSync(QUICK));
+const slowScenario = JSON.parse(await Deno.readTextFileSync(SLOW));
+const MEDIUM = new URL("../../scenarios/two_gate_frame_and_knob.json", import.meta.url).pathname;
+const mediumScenario = JSON.parse(await Deno.readTextFileSync(MEDIUM));
+
+let reference: Promise<Json> | undefined;
+/** The CLI's answer for the quick scenario, computed once. */
+const cliReference = () => (reference ??= cliOptimize(QUICK));
+
+/** The deterministic parts of an optimization result must equal the CLI's. */
+function assertSameOptimization(actual: Json, expected: Json, what: string): void {
+  assert.equal(actual.format, "evenfill.optimization/1");
+  assert.equal(actual.status, expected.status, `${what}: status`);
+  assert.equal(actual.reason, expected.reason, `${what}: reason`);
+  assert.equal(actual.simulations, expected.simulations, `${what}: simulations`);
+  assert.equal(actual.iterations.length, expected.iterations.length, `${what}: iterations`);
+  assert.equal(actual.changes.length, expected.changes.length, `${what}: number of changes`);
+  actual.changes.forEach((c: Json, k: number) => {
+    const e = expected.changes[k];
+    for (const key of ["element", "dimension", "cutter", "steel_safe", "step", "mold_half"]) {
+      assert.equal(c[key], e[key], `${what}: changes[${k}].${key}`);
+    }
+    // Same code on the same input: equal up to float printing.
+    assertClose(c.from_mm, e.from_mm, { rel: 1e-12, abs: 1e-12, what: `${what}: from_mm` });
+    assertClose(c.to_mm, e.to_mm, { rel: 1e-12, abs: 1e-12, what: `${what}: to_mm` });
+  });
+  for (const side of ["before", "after"]) {
+    for (
+      const key of [
+        "imbalance_percent",
+        "feed_pressure_peak_MPa",
+        "runner_volume_cm3",
+        "fill_time_s",
+      ]
+    ) {
+      assertClose(actual[side][key], expected[side][key], {
+        rel: 1e-12,
+        abs: 1e-12,
+        what: `${what}: ${side}.${key}`,
+      });
+    }
+  }
+}
+
+async function post(base: string, path: string, body: unknown): Promise<Response> {
+  return await fetch(`${base}${path}`, {
+    method: "POST",
+    headers: { "content-type": "application/json" },
+    body: JSON.stringify(body),
+  });
+}
+
+async function submit(base: string, scenario: unknown, kind = "optimize"): Promise<string> {
+  const res = await post(base, "/api/jobs", { kind, scenario });
+  const body = await res.json();
+  assert.equal(res.status, 202, JSON.stringify(body));
+  return body.id;
+}
+
+async function tempDb(): Promise<{ dir: string; db: string }> {
+  const dir = await Deno.makeTempDir({ prefix: "evenfill-e2e-" });
+  return { dir, db: `${dir}/evenfill.db` };
+}
+
+Deno.test({
+  name:
+    "e2e: 50 jobs at once through two workers all complete once, each equal to the CLI's result",
+  sanitizeResources: false,
+  sanitizeOps: false,
+  async fn() {
+    const expected = await cliReference();
+    const { dir, db } = await tempDb();
+    const service = await startService(db, ["--workers", "2"]);
+    try {
+      const responses = await Promise.all(
+        Array.from(
+          { length: 50 },
+          () => post(service.base, "/api/jobs", { kind: "optimize", scenario: quickScenario }),
+        ),
+      );
+      const ids: string[] = [];
+      for (const res of responses) {
+        assert.equal(res.status, 202);
+        ids.push((await res.json()).id);
+      }
+      assert.equal(new Set(ids).size, 50, "50 distinct ids");
+      for (const id of ids) {
+        const job = await waitForJob(service.base, id);
+        assert.equal(job.status, "done", JSON.stringify(job.error));
+        assert.equal(job.attempts, 1, `job ${id} ran once`);
+        assert.equal(job.error, null);
+        assertSameOptimization(job.result, expected, `job ${id}`);
+        assert.ok(job.result.before.history, "the result carries the fill history");
+      }
+      const list = (await (await fetch(`${service.base}/api/jobs?limit=1000`)).json()).jobs;
+      assert.equal(list.length, 50, "no job lost or added");
+      assert.deepEqual(new Set(list.map((j: Json) => j.id)), new Set(ids));
+      // Each job was started exactly once across both workers.
+      const starts = service.proc.events().filter((e) => e.event === "job_started");
+      assert.equal(starts.length, 50);
+      assert.equal(new Set(starts.map((e) => e.job)).size, 50);
+      assert.equal(new Set(starts.map((e) => e.worker)).size, 2, "both workers took jobs");
+      const health = await (await fetch(`${service.base}/api/health`)).json();
+      assert.deepEqual(health.queue, { queued: 0, running: 0 });
+      assert.equal(health.workers.alive, 2);
+    } finally {
+      await service.proc.stop();
+      await Deno.remove(dir, { recursive: true });
+    }
+  },
+});
+
+Deno.test({
+  name:
+    "e2e: kill -9 of a worker mid-job: the lease lapses, another worker re-runs it to the same result",
+  sanitizeResources: false,
+  sanitizeOps: false,
+  async fn() {
+    const expected = await cliReference();
+    const { dir, db } = await tempDb();
+    const service = await startService(db, ["--workers", "0", "--lease-ms", "1500"]);
+    const workers: Proc[] = [];
+    try {
+      const first = await startWorker(db, ["--lease-ms", "1500"]);
+      workers.push(first);
+      const id = await submit(service.base, quickScenario);
+      const running = await waitForJob(service.base, id, (j) => j.status !== "queued");
+      assert.equal(running.status, "running");
+      first.kill("SIGKILL");
+      await first.status;
+      const second = await startWorker(db, ["--lease-ms", "1500"]);
+      workers.push(second);
+      const job = await waitForJob(service.base, id);
+      assert.equal(job.status, "done", JSON.stringify(job.error));
+      assert.equal(job.attempts, 2, "run again after the lease lapsed");
+      assertSameOptimization(job.result, expected, "re-run job");
+      const secondStarts = second.events().filter((e) => e.event === "job_started");
+      assert.deepEqual(secondStarts.map((e) => [e.job, e.attempt]), [[id, 2]]);
+    } finally {
+      for (const w of workers) await w.stop();
+      await service.proc.stop();
+      await Deno.remove(dir, { recursive: true });
+    }
+  },
+});
+
+Deno.test({
+  name: "e2e: after a restart, saved scenarios, jobs and results are still there",
+  sanitizeResources: false,
+  sanitizeOps: false,
+  async fn() {
+    const { dir, db } = await tempDb();
+    let service = await startService(db, ["--workers", "1"]);
+    try {
+      const saved = await (await post(service.base, "/api/scenarios", quickScenario)).json();
+      const put = await fetch(`${service.base}/api/scenarios/${saved.id}`, {
+        method: "PUT",
+        body: JSON.stringify({ ...quickScenario, name: "second revision" }),
+      });
+      assert.equal(put.status, 200);
+      const id = await submit(service.base, quickScenario);
+      const before = await waitForJob(service.base, id);
+      assert.equal(before.status, "done");
+      const status = await service.proc.stop();
+      assert.equal(status.code, 0, "graceful exit on SIGTERM");
+      assert.ok(service.proc.lines.some((l) => l.includes('"event":"stopped"')));
+
+      service = await startService(db, ["--workers", "1"]);
+      const scenario = await (await fetch(`${service.base}/api/scenarios/${saved.id}`)).json();
+      assert.equal(scenario.revision, 2);
+      assert.equal(scenario.name, "second revision");
+      const rev1 = await (await fetch(`${service.base}/api/scenarios/${saved.id}/revisions/1`))
+        .json();
+      assert.deepEqual(rev1.scenario, quickScenario);
+      const after = await (await fetch(`${service.base}/api/jobs/${id}`)).json();
+      assert.deepEqual(after, before);
+    } finally {
+      await service.proc.stop();
+      await Deno.remove(dir, { recursive: true });
+    }
+  },
+});
+
+Deno.test({
+  name:
+    "e2e: an endless job is killed at its time limit and failed with the reason; cancel kills one that ignores it",
+  sanitizeResources: false,
+  sanitizeOps: false,
+  async fn() {
+    const { dir, db } = await tempDb();
+    const service = await startService(db, [
+      "--workers",
+      "2",
+      "--job-time-limit-s",
+      "2.5",
+      "--enable-test-jobs",
+    ]);
+    try {
+      const spin = await submit(service.base, quickScenario, "test_spin");
+      const job = await waitForJob(service.base, spin);
+      assert.equal(job.status, "failed");
+      assert.equal(job.error.code, "time_limit");
+      assert.match(job.error.message, /time limit of 2\.5 s/);
+      const finished = service.proc.events().find((e) =>
+        e.event === "job_finished" && e.job === spin
+      );
+      assert.equal(finished?.verdict, "time_limit");
+
+      const spinAgain = await submit(service.base, quickScenario, "test_spin");
+      await waitForJob(service.base, spinAgain, (j) => j.progress !== null);
+      const cancel = await post(service.base, `/api/jobs/${spinAgain}/cancel`, {});
+      assert.equal(cancel.status, 202);
+      const cancelled = await waitForJob(service.base, spinAgain);
+      assert.equal(cancelled.status, "cancelled");
+      const health = await (await fetch(`${service.base}/api/health`)).json();
+      assert.deepEqual(health.queue, { queued: 0, running: 0 });
+    } finally {
+      await service.proc.stop();
+      await Deno.remove(dir, { recursive: true });
+    }
+  },
+});
+
+Deno.test({
+  name: "e2e: cancel stops a running optimization, which reports status cancelled",
+  sanitizeResources: false,
+  sanitizeOps: false,
+  async fn() {
+    const { dir, db } = await tempDb();
+    const service = await startService(db, ["--workers", "1"]);
+    try {
+      const id = await submit(service.base, slowScenario);
+      await waitForJob(service.base, id, (j) => j.progress !== null);
+      const res = await post(service.base, `/api/jobs/${id}/cancel`, {});
+      assert.equal(res.status, 202);
+      const job = await waitForJob(service.base, id);
+      assert.equal(job.status, "cancelled");
+      assert.equal(job.error.code, "cancelled");
+      // Either the optimizer stopped at its next iteration (partial result
+      // kept) or the worker killed it after the grace period (no result).
+      assert.ok(job.result === null || job.result.status === "cancelled");
+    } finally {
+      await service.proc.stop();
+      await Deno.remove(dir, { recursive: true });
+    }
+  },
+});
+
+Deno.test({
+  name: "e2e: an SSE client sees queued/running, progress in order, and the final state",
+  sanitizeResources: false,
+  sanitizeOps: false,
+  async fn() {
+    const { dir, db } = await tempDb();
+    const service = await startService(db, ["--workers", "0"]);
+    let worker: Proc | undefined;
+    try {
+      const id = await submit(service.base, quickScenario);
+      const res = await fetch(`${service.base}/api/jobs/${id}/events`);
+      assert.equal(res.status, 200);
+      assert.match(res.headers.get("content-type") ?? "", /^text\/event-stream/);
+      const text = res.text();
+      worker = await startWorker(db);
+      const events: [string, Json][] = [];
+      for (const block of (await text).split("\n\n")) {
+        const event = /^event: (.*)$/m.exec(block)?.[1];
+        const data = /^data: (.*)$/m.exec(block)?.[1];
+        if (event && data) events.push([event, JSON.parse(data)]);
+      }
+      const names = events.map(([e]) => e);
+      assert.deepEqual(events[0], ["state", { status: "queued" }]);
+      assert.deepEqual(events[1], ["state", { status: "running" }]);
+      assert.deepEqual(events.at(-2), ["state", { status: "done" }]);
+      assert.deepEqual(events.at(-1), ["end", { status: "done", error: null }]);
+      assert.deepEqual(
+        names.slice(2, -2).filter((n) => n !== "progress"),
+        [],
+        "only progress in between",
+      );
+      const iterations = events.filter(([e]) => e === "progress").map(([, d]) => d.iteration);
+      assert.ok(iterations.length >= 1, "at least one progress event");
+      for (let k = 1; k < iterations.length; k++) {
+        assert.ok(iterations[k] > iterations[k - 1], "in order");
+      }
+      for (const [, d] of events.filter(([e]) => e === "progress")) {
+        assert.equal(typeof d.imbalance_percent, "number");
+        assert.equal(typeof d.feed_pressure_peak_MPa, "number");
+      }
+    } finally {
+      await worker?.stop();
+      await service.proc.stop();
+      await Deno.remove(dir, { recursive: true });
+    }
+  },
+});
+
+Deno.test({
+  name:
+    "e2e: SIGTERM to a worker mid-job puts the job back in the queue; another worker completes it",
+  sanitizeResources: false,
+  sanitizeOps: false,
+  async fn() {
+    const { dir, db } = await tempDb();
+    const service = await startService(db, ["--workers", "0"]);
+    const workers: Proc[] = [];
+    try {
+      const first = await startWorker(db, ["--shutdown-grace-ms", "0"]);
+      workers.push(first);
+      const id = await submit(service.base, mediumScenario);
+      await waitForJob(service.base, id, (j) => j.progress !== null);
+      const status = await first.stop();
+      assert.equal(status.code, 0);
+      const requeued = await (await fetch(`${service.base}/api/jobs/${id}`)).json();
+      assert.equal(requeued.status, "queued", "released, not lost");
+      assert.equal(requeued.attempts, 0);
+      const second = await startWorker(db);
+      workers.push(second);
+      const job = await waitForJob(service.base, id);
+      assert.equal(job.status, "done", JSON.stringify(job.error));
+      assert.equal(job.attempts, 1);
+    } finally {
+      for (const w of workers) await w.stop();
+      await service.proc.stop();
+      await Deno.remove(dir, { recursive: true });
+    }
+  },
+});
+
+Deno.test({
+  name: "e2e: off loopback the service refuses to start without a token",
+  sanitizeResources: false,
+  sanitizeOps: false,
+  async fn() {
+    const { dir, db } = await tempDb();
+    try {
+      // 0.0.0.0 is never bound: the check refuses before listening.
+      const proc = new Proc(new URL("../../src/service/main.ts", import.meta.url).pathname, [
+        "--host",
+        "0.0.0.0",
+        "--port",
+        "0",
+        "--db",
+        db,
+      ], { EVENFILL_TOKEN: "" });
+      const status = await proc.status;
+      assert.equal(status.code, 1);
+      assert.ok(proc.lines.some((l) => /EVENFILL_TOKEN/.test(l)), proc.lines.join("\n"));
+    } finally {
+      await Deno.remove(dir, { recursive: true });
+    }
+  },
+});
