@@ -8,14 +8,21 @@
       super(message), this.status = status, this.code = code, this.issues = issues;
     }
   };
+  var TOKEN_KEY = "evenfill.token";
+  function setAccessToken(token) {
+    if (token) sessionStorage.setItem(TOKEN_KEY, token);
+    else sessionStorage.removeItem(TOKEN_KEY);
+  }
   async function call(method, url, body) {
     let response;
+    const headers = {};
+    if (body !== void 0) headers["content-type"] = "application/json";
+    const token = sessionStorage.getItem(TOKEN_KEY);
+    if (token && method !== "GET") headers.authorization = `Bearer ${token}`;
     try {
       response = await fetch(url, {
         method,
-        headers: body === void 0 ? {} : {
-          "content-type": "application/json"
-        },
+        headers,
         ...body === void 0 ? {} : {
           body: JSON.stringify(body)
         }
@@ -2152,6 +2159,12 @@
     }
   }
   function report(error) {
+    if (error instanceof ApiError && error.status === 401) {
+      const token = globalThis.prompt("This service asks for its access token (EVENFILL_TOKEN) before changes. Token:");
+      setAccessToken(token);
+      say(token ? "Token set for this tab: try again." : `${error.message} (${error.code})`, "error");
+      return;
+    }
     if (error instanceof ApiError) {
       if (error.issues.length > 0) {
         state.issues = placeIssues(editor().value, error.issues);

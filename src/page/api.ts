@@ -29,12 +29,24 @@ export class ApiError extends Error {
   }
 }
 
+const TOKEN_KEY = "evenfill.token";
+
+/** Remember the service's access token (EVENFILL_TOKEN) for this browser tab. */
+export function setAccessToken(token: string | null) {
+  if (token) sessionStorage.setItem(TOKEN_KEY, token);
+  else sessionStorage.removeItem(TOKEN_KEY);
+}
+
 async function call<T>(method: string, url: string, body?: unknown): Promise<T> {
   let response: Response;
+  const headers: Record<string, string> = {};
+  if (body !== undefined) headers["content-type"] = "application/json";
+  const token = sessionStorage.getItem(TOKEN_KEY);
+  if (token && method !== "GET") headers.authorization = `Bearer ${token}`;
   try {
     response = await fetch(url, {
       method,
-      headers: body === undefined ? {} : { "content-type": "application/json" },
+      headers,
       ...(body === undefined ? {} : { body: JSON.stringify(body) }),
     });
   } catch (error) {

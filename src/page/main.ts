@@ -6,7 +6,7 @@
  *
  * @module
  */
-import { api, ApiError, watchJob } from "./api.ts";
+import { api, ApiError, setAccessToken, watchJob } from "./api.ts";
 import { escapeXml as esc, lineChart } from "./chart.ts";
 import {
   type DisplayUnits,
@@ -530,6 +530,14 @@ async function save(asNew: boolean) {
 }
 
 function report(error: unknown) {
+  if (error instanceof ApiError && error.status === 401) {
+    const token = globalThis.prompt(
+      "This service asks for its access token (EVENFILL_TOKEN) before changes. Token:",
+    );
+    setAccessToken(token);
+    say(token ? "Token set for this tab: try again." : `${error.message} (${error.code})`, "error");
+    return;
+  }
   if (error instanceof ApiError) {
     if (error.issues.length > 0) {
       state.issues = placeIssues(editor().value, error.issues);
