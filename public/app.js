@@ -295,7 +295,17 @@
       bottom: 44
     };
     const data = extent(series, (options.rules ?? []).map((r) => r.y));
-    const xd = niceDomain(...options.xDomain ?? data.x, 6);
+    let xd = niceDomain(...options.xDomain ?? data.x, 6);
+    if (options.integerX && xd.step < 1) {
+      xd = niceDomain(xd.domain[0], Math.max(xd.domain[1], xd.domain[0] + 1), 1);
+      const ticks = [];
+      for (let t = Math.ceil(xd.domain[0]); t <= xd.domain[1]; t++) ticks.push(t);
+      xd = {
+        domain: xd.domain,
+        ticks,
+        step: 1
+      };
+    }
     const yd = niceDomain(...options.yDomain ?? [
       Math.min(0, data.y[0]),
       data.y[1]
@@ -1602,13 +1612,14 @@
   function cautionsHtml(result) {
     return `<ul class="cautions">${result.cautions.map((c) => `<li>${escapeXml(c)}</li>`).join("")}</ul>`;
   }
+  var STATUS_WORDS = {
+    converged: "Goals met",
+    infeasible: "Goals not reachable within the limits",
+    iteration_limit: "Stopped at the iteration limit",
+    cancelled: "Cancelled"
+  };
   function verdictHtml(opt) {
-    const label = {
-      converged: "Goals met",
-      infeasible: "Goals not reachable within the limits",
-      iteration_limit: "Stopped at the iteration limit",
-      cancelled: "Cancelled"
-    };
+    const label = STATUS_WORDS;
     return `<div class="verdict" data-status="${escapeXml(opt.status)}"><p><strong>${escapeXml(label[opt.status] ?? opt.status)}</strong> \u2014 ${escapeXml(opt.reason)}</p>` + (opt.would_need.length ? `<p>What would make it reachable (a linear estimate, confirm by simulation):</p><ul>${opt.would_need.map((w) => `<li>${escapeXml(w)}</li>`).join("")}</ul>` : "") + (opt.snapping ? `<p class="muted">Cutters: ${escapeXml(opt.snapping)}</p>` : "") + `</div>`;
   }
   function seriesKeyHtml(ids) {
@@ -1732,6 +1743,8 @@
     ranScenario: null,
     jobId: null,
     progress: [],
+    /** Imbalance target of the job being run, %. */
+    runTarget: null,
     busy: false
   };
   function loadUnits() {
@@ -2222,6 +2235,8 @@
     }
     setBusy(true);
     state.progress = [];
+    const goals = scenario.goals;
+    state.runTarget = goals?.max_imbalance_percent ?? null;
     renderProgress();
     $("run-state").textContent = "Optimization queued\u2026";
     $("run-panel").dataset.job = "queued";
@@ -2251,8 +2266,9 @@
         };
         state.ranScenario = scenario;
         renderResults();
-        $("run-state").textContent = `Optimization done: ${job.result.status}.`;
-        say(`Optimization done (${job.result.status}).`, "ok");
+        const words = STATUS_WORDS[job.result.status] ?? job.result.status;
+        $("run-state").textContent = `Optimization done: ${words}.`;
+        say(`Optimization done: ${words}.`, "ok");
         showTab("results");
       } else if (job.status === "cancelled") {
         $("run-state").textContent = "Optimization cancelled.";
@@ -2289,6 +2305,13 @@
       xLabel: "iteration",
       yLabel: "imbalance, %",
       markEveryPoint: true,
+      integerX: true,
+      rules: state.runTarget === null ? [] : [
+        {
+          y: state.runTarget,
+          label: "target"
+        }
+      ],
       width: 420,
       height: 220
     }) : "";

@@ -194,6 +194,8 @@ export interface LineChartOptions {
   verticals?: { x: number; label: string }[];
   /** Label faint series at their ends too (default false). */
   labelFaint?: boolean;
+  /** x values are whole numbers (iterations): ticks at integers only (default false). */
+  integerX?: boolean;
   /** Put a marker at each point, not only at the end (default false). */
   markEveryPoint?: boolean;
   /** Labels of x ticks by value (category axes); default numeric. */
@@ -232,7 +234,13 @@ export function lineChart(series: ChartSeries[], options: LineChartOptions): str
   const height = options.height ?? 280;
   const margin = { left: 58, right: 64, top: options.title ? 28 : 12, bottom: 44 };
   const data = extent(series, (options.rules ?? []).map((r) => r.y));
-  const xd = niceDomain(...(options.xDomain ?? data.x), 6);
+  let xd = niceDomain(...(options.xDomain ?? data.x), 6);
+  if (options.integerX && xd.step < 1) {
+    xd = niceDomain(xd.domain[0], Math.max(xd.domain[1], xd.domain[0] + 1), 1);
+    const ticks: number[] = [];
+    for (let t = Math.ceil(xd.domain[0]); t <= xd.domain[1]; t++) ticks.push(t);
+    xd = { domain: xd.domain, ticks, step: 1 };
+  }
   const yd = niceDomain(...(options.yDomain ?? [Math.min(0, data.y[0]), data.y[1]]), 5);
   const xs = linearScale(xd.domain, [margin.left, width - margin.right]);
   const ys = linearScale(yd.domain, [height - margin.bottom, margin.top]);

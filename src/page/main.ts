@@ -29,6 +29,7 @@ import {
   type ScenarioForViews,
   seriesKeyHtml,
   type Shown,
+  STATUS_WORDS,
   summaryHtml,
   verdictHtml,
   warningsHtml,
@@ -59,6 +60,8 @@ const state = {
   ranScenario: null as ScenarioForViews | null,
   jobId: null as string | null,
   progress: [] as JobProgress[],
+  /** Imbalance target of the job being run, %. */
+  runTarget: null as number | null,
   busy: false,
 };
 
@@ -596,6 +599,8 @@ async function optimize() {
   }
   setBusy(true);
   state.progress = [];
+  const goals = (scenario as { goals?: { max_imbalance_percent?: number } }).goals;
+  state.runTarget = goals?.max_imbalance_percent ?? null;
   renderProgress();
   $("run-state").textContent = "Optimization queued…";
   $("run-panel").dataset.job = "queued";
@@ -622,8 +627,9 @@ async function optimize() {
       state.shown = { kind: "optimization", result: job.result };
       state.ranScenario = scenario as ScenarioForViews;
       renderResults();
-      $("run-state").textContent = `Optimization done: ${job.result.status}.`;
-      say(`Optimization done (${job.result.status}).`, "ok");
+      const words = STATUS_WORDS[job.result.status] ?? job.result.status;
+      $("run-state").textContent = `Optimization done: ${words}.`;
+      say(`Optimization done: ${words}.`, "ok");
       showTab("results");
     } else if (job.status === "cancelled") {
       $("run-state").textContent = "Optimization cancelled.";
@@ -669,6 +675,8 @@ function renderProgress() {
       xLabel: "iteration",
       yLabel: "imbalance, %",
       markEveryPoint: true,
+      integerX: true,
+      rules: state.runTarget === null ? [] : [{ y: state.runTarget, label: "target" }],
       width: 420,
       height: 220,
     })

@@ -442,14 +442,17 @@ export function cautionsHtml(result: SimulationResult): string {
   return `<ul class="cautions">${result.cautions.map((c) => `<li>${esc(c)}</li>`).join("")}</ul>`;
 }
 
+/** The optimizer's stopping status in plain words. */
+export const STATUS_WORDS: Record<string, string> = {
+  converged: "Goals met",
+  infeasible: "Goals not reachable within the limits",
+  iteration_limit: "Stopped at the iteration limit",
+  cancelled: "Cancelled",
+};
+
 /** The optimizer's verdict: status, why it stopped, what would be needed, snapping. */
 export function verdictHtml(opt: OptimizationResult): string {
-  const label: Record<string, string> = {
-    converged: "Goals met",
-    infeasible: "Goals not reachable within the limits",
-    iteration_limit: "Stopped at the iteration limit",
-    cancelled: "Cancelled",
-  };
+  const label = STATUS_WORDS;
   return `<div class="verdict" data-status="${esc(opt.status)}"><p><strong>${
     esc(label[opt.status] ?? opt.status)
   }</strong> — ${esc(opt.reason)}</p>` +

@@ -65,3 +65,16 @@ Deno.test("lineChart: one path per series, rules, escaped labels", () => {
   assert.ok(svg.startsWith("<svg") && svg.endsWith("</svg>"));
   assert.equal(escapeXml(`a&"'`), "a&amp;&quot;&#39;");
 });
+
+Deno.test("integer x axis (iterations): ticks at whole numbers only", () => {
+  const svg = lineChart([{ label: "i", style: 0, points: [[1, 5], [2, 3], [3, 2]] }], {
+    xLabel: "iteration",
+    yLabel: "%",
+    integerX: true,
+  });
+  const xTicks = [...svg.matchAll(/class="tick"[^>]*text-anchor="middle">([^<]*)<\/text>/g)].map((
+    m,
+  ) => m[1]);
+  assert.ok(xTicks.length >= 3);
+  for (const t of xTicks) assert.match(t, /^-?\d+$/);
+});
