@@ -1293,7 +1293,7 @@
     const stepMm = niceLengthStep(span / 4, unit);
     const sx = vx0 + pad, sy = vy1 - font * 1.2;
     const out = [];
-    out.push(`<svg xmlns="http://www.w3.org/2000/svg" class="layout" ${options.id ? `id="${escapeXml(options.id)}" ` : ""}viewBox="${f(vx0)} ${f(vy0)} ${f(vx1 - vx0)} ${f(vy1 - vy0)}" role="img" aria-label="Layout drawing of the runner system">`, `<g font-size="${f(font)}" class="layout-body">`, ...body, ...channels.runner, ...channels.gate, ...feedBody, ...labels, `<g class="scale-bar"><path d="M${f(sx)},${f(sy - font * 0.4)}V${f(sy)}H${f(sx + stepMm)}V${f(sy - font * 0.4)}"/><text class="label" x="${f(sx + stepMm + font * 0.5)}" y="${f(sy)}">${formatLength(stepMm, unit)} ${unit === "mm" ? "mm" : "in"}</text></g>`, `</g></svg>`);
+    out.push(`<svg xmlns="http://www.w3.org/2000/svg" class="layout" ${options.id ? `id="${escapeXml(options.id)}" ` : ""}viewBox="${f(vx0)} ${f(vy0)} ${f(vx1 - vx0)} ${f(vy1 - vy0)}" role="img" aria-label="Layout drawing of the runner system">`, `<g font-size="${f(font)}" class="layout-body">`, ...body, ...channels.runner, ...channels.gate, ...feedBody, ...labels, `<g class="scale-bar"><path d="M${f(sx)},${f(sy - font * 0.4)}V${f(sy)}H${f(sx + stepMm)}V${f(sy - font * 0.4)}"/><text class="label" x="${f(sx + stepMm + font * 0.5)}" y="${f(sy)}">${formatLength(stepMm, unit).replace(/\.0+$/, "")} ${unit === "mm" ? "mm" : "in"}</text></g>`, `</g></svg>`);
     return out.join("");
   }
   function freeDirection(geo, nodeId) {
@@ -2370,7 +2370,7 @@
       xMax
     })}</div></section><section class="block">${cavityTableHtml(shown)}</section>` + (opt ? `<section class="block"><h3>Change list</h3>${changeTableHtml(changes, state.units, {
       id: "change-table"
-    })}</section>` : "") + `<section class="block"><h3>Pressure along each flow path</h3><div class="charts">${pathPressureSvg(shown, ctx)}</div></section><section class="block"><h3>Against the press</h3><div class="charts">${pressChartsSvg(shown, ctx)}</div><p class="muted">Estimates: the press maker's limits and local safety practice come first.</p></section><section class="block two"><div><h3>Warnings</h3>${warningsHtml(r)}</div><div><h3>Cautions</h3>${cautionsHtml(r)}</div></section>`;
+    })}</section>` : "") + `<section class="block"><h3>Pressure along each flow path</h3>${seriesKeyHtml(ids)}<div class="charts">${pathPressureSvg(shown, ctx)}</div></section><section class="block"><h3>Against the press</h3><div class="charts">${pressChartsSvg(shown, ctx)}</div><p class="muted">Estimates: the press maker's limits and local safety practice come first.</p></section><section class="block two"><div><h3>Warnings</h3>${warningsHtml(r)}</div><div><h3>Cautions</h3>${cautionsHtml(r)}</div></section>`;
     sheet.innerHTML = opt ? changeSheetHtml(opt, {
       toolName: scenario.name,
       date: (/* @__PURE__ */ new Date()).toISOString().slice(0, 10),

@@ -543,7 +543,7 @@ export function layoutSvg(scenario: DrawingScenario, options: LayoutSvgOptions =
     `<g class="scale-bar"><path d="M${f(sx)},${f(sy - font * 0.4)}V${f(sy)}H${f(sx + stepMm)}V${
       f(sy - font * 0.4)
     }"/><text class="label" x="${f(sx + stepMm + font * 0.5)}" y="${f(sy)}">${
-      formatLength(stepMm, unit)
+      formatLength(stepMm, unit).replace(/\.0+$/, "")
     } ${unit === "mm" ? "mm" : "in"}</text></g>`,
     `</g></svg>`,
   );

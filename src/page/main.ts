@@ -745,9 +745,9 @@ function renderResults() {
         changeTableHtml(changes, state.units, { id: "change-table" })
       }</section>`
       : "") +
-    `<section class="block"><h3>Pressure along each flow path</h3><div class="charts">${
-      pathPressureSvg(shown, ctx)
-    }</div></section>` +
+    `<section class="block"><h3>Pressure along each flow path</h3>${
+      seriesKeyHtml(ids)
+    }<div class="charts">${pathPressureSvg(shown, ctx)}</div></section>` +
     `<section class="block"><h3>Against the press</h3><div class="charts">${
       pressChartsSvg(shown, ctx)
     }</div><p class="muted">Estimates: the press maker's limits and local safety practice come first.</p></section>` +

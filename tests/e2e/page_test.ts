@@ -405,6 +405,45 @@ Deno.test({
         "cancelled",
       );
 
+      // --- keyboard: the view tabs follow the arrow keys
+      await page.focus("#tab-scenario");
+      await page.keyboard.press("ArrowRight");
+      assert.equal(
+        await page.$eval("#tab-run", (el) => el.getAttribute("aria-selected")),
+        "true",
+      );
+      assert.equal(await page.evaluate(() => document.activeElement?.id), "tab-run");
+      await page.keyboard.press("ArrowLeft");
+
+      // --- load a file, simulate it through the page, compare with the API
+      const file = new URL("scenarios/two_gate_frame_and_knob.json", root).pathname;
+      const input = await page.$("#file");
+      await (input as unknown as { uploadFile(path: string): Promise<void> }).uploadFile(file);
+      const fileScenario = JSON.parse(await Deno.readTextFile(file));
+      await page.waitForFunction(
+        (name) =>
+          (document.getElementById("scenario-text") as HTMLTextAreaElement).value
+            .includes(name),
+        { timeout: 10_000 },
+        fileScenario.name,
+      );
+      await page.click("#tab-run");
+      await page.click("#simulate");
+      await page.waitForSelector("#cavity-table td[data-which='result']", { timeout: 60_000 });
+      const direct = await (await fetch(`${service.base}/api/simulate?history=1`, {
+        method: "POST",
+        headers: { "content-type": "application/json" },
+        body: JSON.stringify(fileScenario),
+      })).json();
+      for (const c of direct.cavities) {
+        const raw = await page.$eval(
+          `#cavity-table td[data-cavity='${c.id}'][data-field='fill_time_s'][data-which='result']`,
+          (el) => (el as HTMLElement).dataset.value,
+        );
+        assert.equal(raw, String(c.fill_time_s), `simulated ${c.id} fill time`);
+      }
+      await shot(page, "7-simulation-from-file");
+
       assert.deepEqual(consoleErrors, [], "no script errors on the page");
     } finally {
       await browser?.close().catch(() => {});

@@ -68,3 +68,8 @@ Deno.test("scale bar: a round length in the chosen unit", () => {
   assert.equal(niceLengthStep(37, "mm"), 50);
   assertClose(niceLengthStep(37, "in"), 50.8, { rel: 1e-12 }); // 2 in
 });
+
+Deno.test("scale bar label is a round number in inch too", () => {
+  const svg = layoutSvg(demo, { lengthUnit: "in" });
+  assert.match(svg, /class="scale-bar".*>2 in<\/text>/);
+});
