@@ -1250,7 +1250,7 @@
             });
           }
         }
-        tag.candidates.splice(tag.candidates.length / 2, 0, ...near);
+        tag.candidates.splice(shifts.length * 2, 0, ...near);
       }
       const slot = channels[kind].push("") - 1;
       defer(kind === "gate" ? 0 : 1, () => {

@@ -483,7 +483,7 @@ export function layoutSvg(scenario: DrawingScenario, options: LayoutSvgOptions =
           near.push({ x: mx + side * (clear + hw), y: my + dy * lineHeight });
         }
       }
-      tag.candidates.splice(tag.candidates.length / 2, 0, ...near);
+      tag.candidates.splice(shifts.length * 2, 0, ...near); // after the first ring
     }
     const slot = channels[kind].push("") - 1;
     defer(kind === "gate" ? 0 : 1, () => {

@@ -73,3 +73,11 @@ Deno.test("scale bar label is a round number in inch too", () => {
   const svg = layoutSvg(demo, { lengthUnit: "in" });
   assert.match(svg, /class="scale-bar".*>2 in<\/text>/);
 });
+
+Deno.test("gate labels sit next to their gates", () => {
+  const svg = layoutSvg(demo);
+  const g1 = /data-id="G1">.*?<text class="label" x="([-\d.]+)" y="([-\d.]+)"/.exec(svg);
+  assert.ok(g1);
+  // G1 runs from NA (-40, 35) towards C1 above it; its label is within 30 mm of the node
+  assert.ok(Math.hypot(Number(g1[1]) + 40, -Number(g1[2]) - 35) < 30, `G1 label at ${g1[1]}`);
+});
