@@ -10,13 +10,15 @@ import type { z } from "zod";
 import { MATERIALS } from "../materials/library.ts";
 import { parseScenario, pathText, type ScenarioIssue } from "../model/parse_scenario.ts";
 import type { Scenario } from "../model/scenario_schema.ts";
-import { LIBRARY_MATERIAL_IDS, runScenario } from "../network/simulate_scenario.ts";
-import { resultJson } from "../report/result_json.ts";
+import type { runScenario } from "../network/simulate_scenario.ts";
+import { LIBRARY_MATERIAL_IDS } from "../network/simulate_scenario.ts";
 import type { JobRecord, JobSummary, Store } from "../store/store.ts";
 import { JobSubmitSchema } from "./api_schema.ts";
 import type { ServiceConfig } from "./config.ts";
 import { openApiDocument } from "./openapi.ts";
 import { jobEvents } from "./job_events.ts";
+import type { SimulatePool } from "./simulate_pool.ts";
+import { simulateRequest } from "./simulate_request.ts";
 import { serveStatic } from "./static_files.ts";
 
 /** Version reported by /api/health and the OpenAPI document. */
@@ -32,7 +34,9 @@ export interface AppOptions {
   shutdownSignal?: AbortSignal;
   /** How often an event stream polls the store, ms (default 200). */
   eventPollMs?: number;
-  /** The simulation the synchronous endpoint runs (default {@link runScenario}); a seam for tests. */
+  /** Runs `POST /api/simulate` off the event loop (the service uses one); without it, in the request's thread. */
+  simulatePool?: SimulatePool;
+  /** The simulation run in the request's thread (default the engine's); a seam for tests. */
   runScenario?: typeof runScenario;
   /** Where unexpected errors are logged (default console.error). */
   logError?: (message: string, error: unknown) => void;
@@ -166,9 +170,6 @@ function loadDemos(dir: string): Demo[] {
   return demos.sort((a, b) => a.id.localeCompare(b.id));
 }
 
-/** Thrown from the simulation's progress callback when its time budget is spent. */
-class SimulationDeadline extends Error {}
-
 function jobSummary(job: JobSummary) {
   return {
     id: job.id,
@@ -205,7 +206,6 @@ export function createApp(options: AppOptions): Handler {
   const logError = options.logError ??
     ((message: string, error: unknown) => console.error(message, error));
   const demos = loadDemos(config.scenariosDir);
-  const simulateWith = options.runScenario ?? runScenario;
   let openApi: string | undefined;
 
   const requireToken = (request: Request) => {
@@ -224,45 +224,20 @@ export function createApp(options: AppOptions): Handler {
   const scenarioName = (s: Scenario) => s.name;
 
   const simulate = async (request: Request, url: URL): Promise<Response> => {
-    const scenario = validScenario(await body(request));
-    const elements = scenario.runners.length + scenario.gates.length + scenario.cavities.length;
-    if (elements > config.simulateMaxElements) {
-      throw new HttpError(
-        413,
-        "scenario_too_large",
-        `A synchronous simulation takes at most ${config.simulateMaxElements} runners, gates and cavities; this one has ${elements}. Use a job instead.`,
-      );
+    const input = await body(request);
+    const simulateOptions = {
+      history: url.searchParams.get("history") === "1",
+      limitMs: config.simulateLimitMs,
+      maxElements: config.simulateMaxElements,
+    };
+    const reply = options.simulatePool
+      ? await options.simulatePool.run(input, simulateOptions)
+      : simulateRequest(input, { ...simulateOptions, runScenario: options.runScenario });
+    if (!reply.ok) {
+      const headers = reply.status === 429 ? { "retry-after": "1" } : undefined;
+      throw new HttpError(reply.status, reply.code, reply.message, reply.issues, headers);
     }
-    const deadline = performance.now() + config.simulateLimitMs;
-    let outcome;
-    try {
-      outcome = simulateWith(scenario, {
-        onProgress: () => {
-          if (performance.now() > deadline) throw new SimulationDeadline();
-        },
-      });
-    } catch (error) {
-      if (error instanceof SimulationDeadline) {
-        throw new HttpError(
-          422,
-          "simulation_time_limit",
-          `The simulation did not finish within ${config.simulateLimitMs} ms`,
-        );
-      }
-      throw error;
-    }
-    if (!outcome.ok) {
-      if (outcome.code === "invalid_scenario") {
-        throw new HttpError(
-          400,
-          "invalid_scenario",
-          "The scenario's network is not valid",
-          outcome.issues,
-        );
-      }
-      throw new HttpError(422, "simulation_failed", outcome.message);
-    }
-    return json(resultJson(outcome.run, { history: url.searchParams.get("history") === "1" }));
+    return json(reply.result);
   };
 
   const submitJob = async (request: Request): Promise<Response> => {
@@ -447,7 +422,7 @@ export function createApp(options: AppOptions): Handler {
         }
         if (sub === "events") {
           allow("GET");
-          if (!store.getJob(id)) throw notFound(`No job "${id}"`);
+          if (!store.getJobSummary(id)) throw notFound(`No job "${id}"`);
           return jobEvents(store, id, {
             pollMs: options.eventPollMs ?? 200,
             signal: request.signal,

@@ -25,6 +25,8 @@ export interface ServiceConfig {
   maxBodyBytes: number;
   /** Time budget of a synchronous simulate, ms (EVENFILL_SIMULATE_LIMIT_MS, --simulate-limit-ms; default 10 s). */
   simulateLimitMs: number;
+  /** Web Workers that run synchronous simulations off the event loop (EVENFILL_SIMULATE_WORKERS, --simulate-workers; default 2). */
+  simulateWorkers: number;
   /** Largest network a synchronous simulate takes, elements (runners + gates + cavities; default 400). */
   simulateMaxElements: number;
   /** Job lease, ms; a worker renews it every third of this (EVENFILL_LEASE_MS, --lease-ms; default 10 s). */
@@ -53,6 +55,7 @@ export function defaultConfig(): ServiceConfig {
     queueLimit: 100,
     maxBodyBytes: 1 << 20,
     simulateLimitMs: 10_000,
+    simulateWorkers: 2,
     simulateMaxElements: 400,
     leaseMs: 10_000,
     shutdownGraceMs: 2000,
@@ -105,6 +108,7 @@ export function loadConfig(
     "queue-limit",
     "max-body-bytes",
     "simulate-limit-ms",
+    "simulate-workers",
     "lease-ms",
     "shutdown-grace-ms",
     "enable-test-jobs",
@@ -131,6 +135,10 @@ export function loadConfig(
   if (body !== undefined) config.maxBodyBytes = Math.trunc(number("max body bytes", body, 1024));
   const simulate = get("simulate-limit-ms", "EVENFILL_SIMULATE_LIMIT_MS");
   if (simulate !== undefined) config.simulateLimitMs = number("simulate limit", simulate, 10);
+  const simulateWorkers = get("simulate-workers", "EVENFILL_SIMULATE_WORKERS");
+  if (simulateWorkers !== undefined) {
+    config.simulateWorkers = Math.trunc(number("simulate workers", simulateWorkers, 1));
+  }
   const lease = get("lease-ms", "EVENFILL_LEASE_MS");
   if (lease !== undefined) config.leaseMs = Math.trunc(number("lease", lease, 300));
   const grace = get("shutdown-grace-ms", "EVENFILL_SHUTDOWN_GRACE_MS");

@@ -42,7 +42,7 @@ export function jobEvents(store: JobStore, id: string, options: JobEventsOptions
       const tick = () => {
         if (closed) return;
         try {
-          const job = store.getJob(id);
+          const job = store.getJobSummary(id);
           if (!job) {
             send("end", { status: "failed", error: { code: "not_found", message: "job deleted" } });
           } else {

@@ -9,6 +9,7 @@
 import { SqliteStore } from "../store/sqlite_store.ts";
 import { createApp } from "./app.ts";
 import { ConfigError, isLoopback, loadConfig, type ServiceConfig } from "./config.ts";
+import { SimulatePool } from "./simulate_pool.ts";
 import { WorkerPool } from "./worker_pool.ts";
 
 /** Refuse unsafe configurations: off loopback, a token is required. */
@@ -44,7 +45,8 @@ export async function main(args: readonly string[]): Promise<number> {
   await ensureParent(config.dbPath);
   const store = SqliteStore.open(config.dbPath);
   const shutdown = new AbortController();
-  const handler = createApp({ store, config, shutdownSignal: shutdown.signal });
+  const simulatePool = new SimulatePool(config.simulateWorkers);
+  const handler = createApp({ store, config, simulatePool, shutdownSignal: shutdown.signal });
   const server = Deno.serve({
     hostname: config.host,
     port: config.port,
@@ -65,6 +67,7 @@ export async function main(args: readonly string[]): Promise<number> {
   console.log(JSON.stringify({ event: "stopping", signal }));
   shutdown.abort();
   await server.shutdown();
+  simulatePool.close();
   await pool.stop();
   store.close();
   for (const [s, l] of listeners) Deno.removeSignalListener(s, l);

@@ -182,6 +182,7 @@ export function openApiDocument(version: string): Schema {
             400: invalid,
             413: error("body or network over the size limit"),
             422: error("simulation_failed or simulation_time_limit"),
+            429: error("every simulation worker busy and the waiting line full; see Retry-After"),
           },
         },
       },

@@ -288,6 +288,13 @@ export class SqliteStore implements Store {
     return row ? toRecord(row) : undefined;
   }
 
+  getJobSummary(id: string): JobSummary | undefined {
+    const row = this.#db.prepare(`SELECT ${SUMMARY_COLUMNS} FROM jobs WHERE id = ?`).get(id) as
+      | Row
+      | undefined;
+    return row ? toSummary(row) : undefined;
+  }
+
   listJobs(options: { limit?: number } = {}): JobSummary[] {
     return this.#db.prepare(`SELECT ${SUMMARY_COLUMNS} FROM jobs ORDER BY seq DESC LIMIT ?`)
       .all(Math.trunc(options.limit ?? 200)).map((r) => toSummary(r as Row));

@@ -132,6 +132,8 @@ export interface JobStore {
   /** Add a job unless `maxQueued` jobs are already queued; false when full. */
   submitJob(job: NewJob, options: { maxQueued: number }): JobRecord | false;
   getJob(id: string): JobRecord | undefined;
+  /** The job without its input and result (cheap to poll). */
+  getJobSummary(id: string): JobSummary | undefined;
   /** Most recent first. */
   listJobs(options?: { limit?: number }): JobSummary[];
   countJobs(): { queued: number; running: number };

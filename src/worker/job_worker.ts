@@ -1,4 +1,5 @@
 import type { ClaimedJob, Store } from "../store/store.ts";
+import type { RunReply } from "./run_job.ts";
 
 /** Options of {@link JobWorker}. */
 export interface JobWorkerOptions {
@@ -16,6 +17,8 @@ export interface JobWorkerOptions {
   cancelGraceMs?: number;
   /** How long shutdown waits for a running job before killing and re-queueing it, ms (default 2000). */
   shutdownGraceMs?: number;
+  /** Jobs one job process runs before it is replaced by a fresh one (default 100). */
+  jobsPerProcess?: number;
   /** Enable the test-only job kinds in the job processes. */
   enableTestJobs?: boolean;
   /** Stop when this returns true (e.g. the parent service is gone). */
@@ -29,10 +32,86 @@ const CONFIG = new URL("../../deno.json", import.meta.url).pathname;
 
 const sleep = (ms: number) => new Promise((resolve) => setTimeout(resolve, ms));
 
+/** The worker's job process (`run_job.ts`): one command line in, one reply line out. */
+class JobProcess {
+  readonly status: Promise<Deno.CommandStatus>;
+  #child: Deno.ChildProcess;
+  #writer: WritableStreamDefaultWriter<Uint8Array>;
+  #waiting: ((reply: RunReply) => void) | undefined;
+  #reading: Promise<void>;
+
+  constructor(child: Deno.ChildProcess) {
+    this.#child = child;
+    this.#writer = child.stdin.getWriter();
+    this.#writer.closed.catch(() => {}); // a killed process closes its stdin
+    this.#reading = this.#read();
+    this.status = child.status.then((s) => {
+      this.alive = false;
+      return s;
+    });
+  }
+
+  /** False once the process has ended. */
+  alive = true;
+
+  async #read(): Promise<void> {
+    const decoder = new TextDecoder();
+    let rest = "";
+    try {
+      for await (const bytes of this.#child.stdout) {
+        rest += decoder.decode(bytes, { stream: true });
+        let nl;
+        while ((nl = rest.indexOf("\n")) >= 0) {
+          const line = rest.slice(0, nl);
+          rest = rest.slice(nl + 1);
+          let reply: RunReply | undefined;
+          try {
+            reply = JSON.parse(line);
+          } catch {
+            console.error(line); // not a reply: stray output, keep it visible
+          }
+          if (reply && this.#waiting) {
+            const resolve = this.#waiting;
+            this.#waiting = undefined;
+            resolve(reply);
+          }
+        }
+      }
+    } catch {
+      // the process was killed
+    }
+  }
+
+  /** Ask for one attempt; resolves with the reply (never, if the process dies first). */
+  next(job: string, attempt: number): Promise<RunReply> {
+    const reply = new Promise<RunReply>((resolve) => (this.#waiting = resolve));
+    this.#writer.write(new TextEncoder().encode(JSON.stringify({ job, attempt }) + "\n"))
+      .catch(() => {});
+    return reply;
+  }
+
+  kill(): void {
+    try {
+      this.#child.kill("SIGKILL");
+    } catch {
+      // already gone
+    }
+  }
+
+  /** Let the process finish: close its stdin and wait for it. */
+  async close(): Promise<void> {
+    await this.#writer.close().catch(() => {});
+    await this.status;
+    await this.#reading;
+  }
+}
+
 /**
  * A worker: claims jobs from the store one at a time and runs each attempt in
- * a child process (`run_job.ts`) it can SIGKILL, so a runaway optimization
- * never blocks the worker or the service. While the child runs, the worker
+ * its job process (`run_job.ts`), a child it can SIGKILL, so a runaway
+ * optimization never blocks the worker or the service. The job process is
+ * reused from job to job (start-up and warm-up paid once) and replaced after a
+ * kill, a crash or `jobsPerProcess` jobs. While the child runs, the worker
  * renews the lease, kills the child at the job's time limit (job failed,
  * `time_limit`) or when a cancel is not honoured within the grace period (job
  * cancelled), and fails the job if the child dies without writing an outcome.
@@ -46,6 +125,8 @@ export class JobWorker {
   #wake: (() => void) | undefined;
   #done: Promise<void> | undefined;
   #stopRequestedAt = 0;
+  #runner: JobProcess | undefined;
+  #runnerJobs = 0;
 
   constructor(store: Store, options: JobWorkerOptions) {
     this.#store = store;
@@ -106,14 +187,106 @@ export class JobWorker {
         this.#wake = undefined;
       }
     } finally {
+      const runner = this.#runner;
+      this.#runner = undefined;
+      await runner?.close();
       this.#store.removeWorker(id);
       this.#log({ event: "worker_stopped" });
     }
   }
 
   async #supervise({ job, attempt }: ClaimedJob): Promise<void> {
-    const { id: owner, leaseMs, dbPath } = this.options;
+    const { id: owner, leaseMs } = this.options;
     this.#log({ event: "job_started", job: job.id, kind: job.kind, attempt });
+    if (this.#runner && !this.#runner.alive) this.#runner = undefined;
+    const runner = this.#runner ??= this.#spawnRunner();
+    const reply = runner.next(job.id, attempt);
+    let answered: RunReply | undefined;
+    let exited: Deno.CommandStatus | undefined;
+    const settled = Promise.race([
+      reply.then((r) => (answered = r)),
+      runner.status.then((s) => (exited = s)),
+    ]);
+    const started = Date.now();
+    let lastRenew = started;
+    let cancelSeenAt: number | undefined;
+    let verdict: "time_limit" | "cancelled" | "shutdown" | "lease_lost" | undefined;
+    while (answered === undefined && exited === undefined) {
+      await Promise.race([settled, sleep(this.options.supervisePollMs ?? 100)]);
+      if (answered !== undefined || exited !== undefined) break;
+      const now = Date.now();
+      if (now - lastRenew > leaseMs / 3) {
+        if (!this.#store.renewLease(job.id, owner, attempt, leaseMs)) {
+          // Someone else settled this attempt (e.g. the lease lapsed): stop it.
+          verdict = "lease_lost";
+          break;
+        }
+        this.#store.heartbeatWorker(owner, Deno.pid);
+        lastRenew = now;
+      }
+      if (now - started > job.time_limit_ms) {
+        verdict = "time_limit";
+        break;
+      }
+      if (cancelSeenAt === undefined && this.#store.isCancelRequested(job.id)) cancelSeenAt = now;
+      if (cancelSeenAt !== undefined && now - cancelSeenAt > (this.options.cancelGraceMs ?? 1000)) {
+        verdict = "cancelled";
+        break;
+      }
+      if (this.#stopping && now - this.#stopRequestedAt > (this.options.shutdownGraceMs ?? 2000)) {
+        verdict = "shutdown";
+        break;
+      }
+    }
+    if (verdict !== undefined || exited !== undefined) {
+      // The job process is stopped (or already gone); the next job gets a fresh one.
+      this.#runner = undefined;
+      runner.kill();
+      exited = await runner.status;
+    }
+    const seconds = (job.time_limit_ms / 1000).toString();
+    let settledByWorker = false;
+    if (verdict === "time_limit") {
+      settledByWorker = this.#store.finishJob(job.id, owner, attempt, {
+        status: "failed",
+        error: { code: "time_limit", message: `Stopped after its time limit of ${seconds} s` },
+      });
+    } else if (verdict === "cancelled") {
+      settledByWorker = this.#store.finishJob(job.id, owner, attempt, {
+        status: "cancelled",
+        error: { code: "cancelled", message: "cancelled by request (the job was stopped)" },
+      });
+    } else if (verdict === "shutdown") {
+      settledByWorker = this.#store.releaseJob(job.id, owner, attempt);
+    } else if (answered === undefined && exited !== undefined) {
+      settledByWorker = this.#store.finishJob(job.id, owner, attempt, {
+        status: "failed",
+        error: {
+          code: "job_crashed",
+          message: `The job process ended unexpectedly (exit code ${exited.code}${
+            exited.signal ? `, signal ${exited.signal}` : ""
+          })`,
+        },
+      });
+    }
+    if (this.#runner !== undefined && ++this.#runnerJobs >= (this.options.jobsPerProcess ?? 100)) {
+      this.#runner = undefined;
+      await runner.close();
+    }
+    this.#log({
+      event: "job_finished",
+      job: job.id,
+      attempt,
+      verdict: verdict ?? (answered ? "answered" : "exited"),
+      written_by_job_process: answered?.written ?? false,
+      settled_by_worker: settledByWorker,
+      exit_code: exited?.code,
+      seconds: (Date.now() - started) / 1000,
+    });
+  }
+
+  #spawnRunner(): JobProcess {
+    this.#runnerJobs = 0;
     const env: Record<string, string> = { NO_COLOR: "1" };
     if (this.options.enableTestJobs) env.EVENFILL_ENABLE_TEST_JOBS = "1";
     const child = new Deno.Command(Deno.execPath(), {
@@ -128,100 +301,17 @@ export class JobWorker {
         "--v8-flags=--max-old-space-size=1024",
         RUN_JOB,
         "--db",
-        dbPath,
-        "--job",
-        job.id,
+        this.options.dbPath,
         "--owner",
-        owner,
-        "--attempt",
-        String(attempt),
+        this.options.id,
         "--parent",
         String(Deno.pid),
       ],
       env,
-      stdin: "null",
-      stdout: "inherit",
+      stdin: "piped",
+      stdout: "piped",
       stderr: "inherit",
     }).spawn();
-    let exited: Deno.CommandStatus | undefined;
-    const status = child.status.then((s) => (exited = s));
-    const started = Date.now();
-    let lastRenew = started;
-    let cancelSeenAt: number | undefined;
-    let verdict: "time_limit" | "cancelled" | "shutdown" | undefined;
-    const kill = () => {
-      try {
-        child.kill("SIGKILL");
-      } catch {
-        // already gone
-      }
-    };
-    while (exited === undefined) {
-      await Promise.race([status, sleep(this.options.supervisePollMs ?? 100)]);
-      if (exited !== undefined) break;
-      const now = Date.now();
-      if (now - lastRenew > leaseMs / 3) {
-        if (!this.#store.renewLease(job.id, owner, attempt, leaseMs)) {
-          // Someone else settled this attempt (e.g. the lease lapsed): stop it.
-          kill();
-          await status;
-          this.#log({ event: "lease_lost", job: job.id, attempt });
-          return;
-        }
-        this.#store.heartbeatWorker(owner, Deno.pid);
-        lastRenew = now;
-      }
-      if (now - started > job.time_limit_ms) {
-        verdict = "time_limit";
-        kill();
-        break;
-      }
-      if (cancelSeenAt === undefined && this.#store.isCancelRequested(job.id)) cancelSeenAt = now;
-      if (cancelSeenAt !== undefined && now - cancelSeenAt > (this.options.cancelGraceMs ?? 1000)) {
-        verdict = "cancelled";
-        kill();
-        break;
-      }
-      if (this.#stopping && now - this.#stopRequestedAt > (this.options.shutdownGraceMs ?? 2000)) {
-        verdict = "shutdown";
-        kill();
-        break;
-      }
-    }
-    const final = await status;
-    const seconds = (job.time_limit_ms / 1000).toString();
-    let settled = false;
-    if (verdict === "time_limit") {
-      settled = this.#store.finishJob(job.id, owner, attempt, {
-        status: "failed",
-        error: { code: "time_limit", message: `Stopped after its time limit of ${seconds} s` },
-      });
-    } else if (verdict === "cancelled") {
-      settled = this.#store.finishJob(job.id, owner, attempt, {
-        status: "cancelled",
-        error: { code: "cancelled", message: "cancelled by request (the job was stopped)" },
-      });
-    } else if (verdict === "shutdown") {
-      settled = this.#store.releaseJob(job.id, owner, attempt);
-    } else if (final.code !== 0) {
-      settled = this.#store.finishJob(job.id, owner, attempt, {
-        status: "failed",
-        error: {
-          code: "job_crashed",
-          message: `The job process ended unexpectedly (exit code ${final.code}${
-            final.signal ? `, signal ${final.signal}` : ""
-          })`,
-        },
-      });
-    }
-    this.#log({
-      event: "job_finished",
-      job: job.id,
-      attempt,
-      exit_code: final.code,
-      verdict: verdict ?? "exited",
-      settled_by_worker: settled,
-      seconds: (Date.now() - started) / 1000,
-    });
+    return new JobProcess(child);
   }
 }

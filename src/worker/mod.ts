@@ -1,6 +1,6 @@
 /**
  * Job execution off the request path: the {@link JobWorker} supervisor and the
- * per-attempt job process.
+ * job process it runs jobs in.
  *
  * @module
  */

@@ -1,12 +1,15 @@
 /**
- * One attempt of one job, in its own process (started by the worker's
- * supervisor, see `job_supervisor.ts`): read the job from the store, run it,
- * write throttled progress, poll the cancel flag, and write the outcome, all
- * conditional on still holding the job's lease. The supervisor kills this
- * process on time limit or an ignored cancel; if the supervisor itself dies,
- * this process notices (its parent changes) and exits without writing.
+ * The job process of a worker (see `job_worker.ts`): it reads one command per
+ * line on stdin (`{"job", "attempt"}`), runs that attempt — read the job from
+ * the store, run it, write throttled progress, poll the cancel flag, write the
+ * outcome, all conditional on still holding the job's lease — and answers one
+ * line on stdout (`{"job", "attempt", "written"}`). The process is reused for
+ * the next job, so start-up and warm-up are paid once; the worker SIGKILLs it
+ * on time limit or an ignored cancel and starts a fresh one. If the worker
+ * itself dies, this process notices (its parent changes) and exits without
+ * writing an outcome.
  *
- * Usage: run_job.ts --db <file> --job <id> --owner <worker id> --attempt <n> --parent <pid>
+ * Usage: run_job.ts --db <file> --owner <worker id> --parent <pid>
  *
  * @module
  */
@@ -20,11 +23,11 @@ import type { JobError, JobOutcome, JobProgress, JobRecord, Store } from "../sto
 
 /** Exit codes of this process. */
 export const RUN_JOB_EXIT = {
-  /** The outcome was written. */
+  /** Stdin closed: the worker let this process go. */
   finished: 0,
   /** Bad arguments. */
   usage: 64,
-  /** The lease was lost (or the parent died) before the outcome could be written. */
+  /** The worker (its parent) died. */
   leaseLost: 75,
 } as const;
 
@@ -123,36 +126,68 @@ function flag(args: readonly string[], name: string): string | undefined {
   return i >= 0 ? args[i + 1] : undefined;
 }
 
+/** A command on the job process's stdin: run this attempt. */
+export interface RunCommand {
+  job: string;
+  attempt: number;
+}
+
+/** The job process's answer on stdout, one line per command. */
+export interface RunReply {
+  job: string;
+  attempt: number;
+  /** Whether this process wrote the attempt's outcome (false: the lease was gone). */
+  written: boolean;
+}
+
+async function* lines(stream: ReadableStream<Uint8Array>): AsyncGenerator<string> {
+  const decoder = new TextDecoder();
+  let rest = "";
+  for await (const bytes of stream) {
+    rest += decoder.decode(bytes, { stream: true });
+    let nl;
+    while ((nl = rest.indexOf("\n")) >= 0) {
+      yield rest.slice(0, nl);
+      rest = rest.slice(nl + 1);
+    }
+  }
+}
+
 async function main(args: readonly string[]): Promise<number> {
   const db = flag(args, "db");
-  const id = flag(args, "job");
   const owner = flag(args, "owner");
-  const attempt = Number(flag(args, "attempt"));
   // The supervisor's pid comes as an argument: reading Deno.ppid at start-up
   // would miss a supervisor that died while this process was starting.
   const parent = Number(flag(args, "parent"));
-  if (!db || !id || !owner || !Number.isInteger(attempt) || !Number.isInteger(parent)) {
-    console.error(
-      "usage: run_job.ts --db <file> --job <id> --owner <worker id> --attempt <n> --parent <pid>",
-    );
+  if (!db || !owner || !Number.isInteger(parent)) {
+    console.error("usage: run_job.ts --db <file> --owner <worker id> --parent <pid>");
     return RUN_JOB_EXIT.usage;
   }
-  if (Deno.ppid !== parent) return RUN_JOB_EXIT.leaseLost;
+  const orphaned = () => Deno.ppid !== parent;
+  if (orphaned()) return RUN_JOB_EXIT.leaseLost;
   const store = SqliteStore.open(db);
+  const encoder = new TextEncoder();
   try {
-    const job = store.getJob(id);
-    if (!job || job.status !== "running" || job.lease_owner !== owner || job.attempts !== attempt) {
-      return RUN_JOB_EXIT.leaseLost;
+    for await (const line of lines(Deno.stdin.readable)) {
+      if (line.trim() === "") continue;
+      const command = JSON.parse(line) as RunCommand;
+      const { job: id, attempt } = command;
+      let written = false;
+      const job = store.getJob(id);
+      if (
+        job && job.status === "running" && job.lease_owner === owner && job.attempts === attempt
+      ) {
+        try {
+          written = await runJobAttempt(store, job, { owner, attempt, orphaned });
+        } catch (error) {
+          if (!(error instanceof LeaseLost)) throw error;
+        }
+      }
+      if (orphaned()) return RUN_JOB_EXIT.leaseLost;
+      const reply: RunReply = { job: id, attempt, written };
+      await Deno.stdout.write(encoder.encode(JSON.stringify(reply) + "\n"));
     }
-    const written = await runJobAttempt(store, job, {
-      owner,
-      attempt,
-      orphaned: () => Deno.ppid !== parent,
-    });
-    return written ? RUN_JOB_EXIT.finished : RUN_JOB_EXIT.leaseLost;
-  } catch (error) {
-    if (error instanceof LeaseLost) return RUN_JOB_EXIT.leaseLost;
-    throw error;
+    return RUN_JOB_EXIT.finished;
   } finally {
     store.close();
   }

@@ -5,7 +5,7 @@
  *   deno run -A tests/bench/service_load.ts [--requests 4000] [--seconds 15]
  *
  * Reports requests/s for GET /api/health and POST /api/simulate (the 4-cavity
- * demo), jobs/minute through one and two workers (the quick two-cavity test
+ * demo), health latency while simulations run, jobs/minute through one and two workers (the quick two-cavity test
  * scenario), and the peak RSS of the service, its workers and job processes.
  *
  * @module
@@ -27,14 +27,14 @@ const quick = JSON.parse(
   await Deno.readTextFile(new URL("../testdata/quick_two_cavity.json", import.meta.url)),
 );
 
-/** Resident set size of a process, MiB (Linux /proc), or NaN. */
+/** Resident set size of a process, MiB (Linux /proc), or 0 when it is gone. */
 async function rssMiB(pid: number): Promise<number> {
   try {
     const status = await Deno.readTextFile(`/proc/${pid}/status`);
-    const kb = Number(/VmRSS:\s+(\d+)/.exec(status)?.[1]);
+    const kb = Number(/VmRSS:\s+(\d+)/.exec(status)?.[1] ?? 0);
     return kb / 1024;
   } catch {
-    return NaN;
+    return 0; // the process has just ended
   }
 }
 
@@ -133,6 +133,23 @@ await withService(["--workers", "0"], async (base, proc) => {
     4,
     SECONDS,
   );
+  // Health checks while simulations run: the simulations are in Web Workers,
+  // so the event loop keeps answering.
+  const simulations = load(
+    "POST /api/simulate, alongside health checks",
+    () => fetch(`${base}/api/simulate`, { method: "POST", body: demo }),
+    Math.max(50, Math.floor(REQUESTS / 20)),
+    4,
+    SECONDS,
+  );
+  await load(
+    "GET /api/health while simulations run",
+    () => fetch(`${base}/api/health`),
+    Math.floor(REQUESTS / 4),
+    2,
+    SECONDS,
+  );
+  await simulations;
   const peak = await s.stop();
   console.log(
     JSON.stringify({ name: "rss during HTTP load", service_MiB: Number(peak.service.toFixed(1)) }),

@@ -185,6 +185,14 @@ Deno.test({
       assert.deepEqual(rev1.scenario, quickScenario);
       const after = await (await fetch(`${service.base}/api/jobs/${id}`)).json();
       assert.deepEqual(after, before);
+      // The restarted service answers a synchronous simulation (in its simulation workers).
+      const simulated = await post(service.base, "/api/simulate", quickScenario);
+      assert.equal(simulated.status, 200);
+      assertClose(
+        (await simulated.json()).imbalance_percent,
+        after.result.before.imbalance_percent,
+        { rel: 1e-12, abs: 1e-12, what: "simulate = the optimization's before run" },
+      );
     } finally {
       await service.proc.stop();
       await Deno.remove(dir, { recursive: true });

@@ -2,6 +2,7 @@
 import assert from "node:assert/strict";
 import { MATERIALS } from "../../src/materials/library.ts";
 import { createApp } from "../../src/service/app.ts";
+import { SimulatePool } from "../../src/service/simulate_pool.ts";
 import type { Store } from "../../src/store/store.ts";
 import { DEMO_PATH, QUICK_PATH, readJson, testApp } from "./_app.ts";
 
@@ -142,6 +143,76 @@ Deno.test("POST /api/simulate error statuses: 400 issues, 413 body and network s
     const wire = await readJson(DEMO_PATH);
     await errorOf(await slow.send("POST", "/api/simulate", wire), 422, "simulation_time_limit");
   } finally {
+    await slow.close();
+  }
+});
+
+Deno.test("POST /api/simulate through the simulation pool (as the service runs it) gives the same answers", async () => {
+  const app = await testApp({ simulateLimitMs: 10_000 });
+  const pool = new SimulatePool(2);
+  try {
+    const handler = createApp({ store: app.store, config: app.config, simulatePool: pool });
+    const post = (body: unknown, query = "") =>
+      handler(
+        new Request(`http://127.0.0.1/api/simulate${query}`, {
+          method: "POST",
+          body: JSON.stringify(body),
+        }),
+      );
+    const wire = await readJson(DEMO_PATH) as Json;
+    const [viaPool, inThread] = await Promise.all([
+      post(wire).then((r) => r.json()),
+      app.send("POST", "/api/simulate", wire).then((r) => r.json()),
+    ]);
+    assert.equal(viaPool.format, "evenfill.result/1");
+    assert.deepEqual(viaPool, inThread, "same engine, same numbers");
+    const withHistory = await (await post(wire, "?history=1")).json();
+    assert.ok(withHistory.history);
+    const bad = structuredClone(wire);
+    bad.gates[0].land_mm = "long";
+    const invalid = await errorOf(await post(bad), 400, "invalid_scenario");
+    assert.ok(invalid.error.issues.some((i: Json) => i.at === "gates[0].land_mm"));
+    // Several at once queue for the two workers and all come back.
+    const many = await Promise.all(Array.from({ length: 5 }, () => post(wire)));
+    for (const r of many) {
+      assert.equal((await r.json()).imbalance_percent, inThread.imbalance_percent);
+    }
+  } finally {
+    pool.close();
+  }
+  // With every worker busy and the waiting line full, the answer is 429 + Retry-After.
+  const tiny = new SimulatePool(1, 1);
+  try {
+    const handler = createApp({ store: app.store, config: app.config, simulatePool: tiny });
+    const wire = await Deno.readTextFile(DEMO_PATH);
+    const responses = await Promise.all(
+      Array.from(
+        { length: 4 },
+        () => handler(new Request("http://127.0.0.1/api/simulate", { method: "POST", body: wire })),
+      ),
+    );
+    const statuses = responses.map((r) => r.status).sort();
+    assert.deepEqual(statuses, [200, 200, 429, 429]);
+    const busy = responses.find((r) => r.status === 429)!;
+    assert.equal(busy.headers.get("retry-after"), "1");
+    for (const r of responses) await r.body?.cancel();
+  } finally {
+    tiny.close();
+    await app.close();
+  }
+  const slow = await testApp({ simulateLimitMs: 0.001 });
+  const slowPool = new SimulatePool(1);
+  try {
+    const handler = createApp({ store: slow.store, config: slow.config, simulatePool: slowPool });
+    const res = await handler(
+      new Request("http://127.0.0.1/api/simulate", {
+        method: "POST",
+        body: await Deno.readTextFile(DEMO_PATH),
+      }),
+    );
+    await errorOf(res, 422, "simulation_time_limit");
+  } finally {
+    slowPool.close();
     await slow.close();
   }
 });

@@ -85,6 +85,10 @@ Deno.test("store: submit respects the queue limit; claim takes the oldest and le
     assert.equal(claimed?.job.lease_expires_ms, 11_000);
     assert.deepEqual(store.countJobs(), { queued: 1, running: 1 });
     assert.deepEqual(store.listJobs().map((j) => j.id), ["b", "a"], "most recent first");
+    const summary = store.getJobSummary("a")!;
+    assert.equal(summary.status, "running");
+    assert.equal("input" in summary || "result" in summary, false, "summary without bodies");
+    assert.equal(store.getJobSummary("zzz"), undefined);
   });
 });
 

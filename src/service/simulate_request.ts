@@ -1,0 +1,82 @@
+import { parseScenario, type ScenarioIssue } from "../model/parse_scenario.ts";
+import { LIBRARY_MATERIAL_IDS, runScenario } from "../network/simulate_scenario.ts";
+import { resultJson } from "../report/result_json.ts";
+
+/** Options of {@link simulateRequest}. */
+export interface SimulateRequestOptions {
+  /** Include the fill history in the result. */
+  history: boolean;
+  /** Time budget, ms. */
+  limitMs: number;
+  /** Largest network taken, runners + gates + cavities. */
+  maxElements: number;
+  /** The simulation to run (default {@link runScenario}); a seam for tests. */
+  runScenario?: typeof runScenario;
+}
+
+/** What a synchronous simulation answers: the result JSON, or an error with its HTTP status. */
+export type SimulateReply =
+  | { ok: true; result: unknown }
+  | { ok: false; status: number; code: string; message: string; issues?: ScenarioIssue[] };
+
+class Deadline extends Error {}
+
+/**
+ * Validate and simulate one scenario within a size and time budget: the body of
+ * `POST /api/simulate`, runnable in the request's thread or in a simulation
+ * worker. Never throws on bad input.
+ */
+export function simulateRequest(input: unknown, options: SimulateRequestOptions): SimulateReply {
+  const parsed = parseScenario(input, { materialIds: LIBRARY_MATERIAL_IDS });
+  if (!parsed.ok) {
+    const n = parsed.issues.length;
+    return {
+      ok: false,
+      status: 400,
+      code: "invalid_scenario",
+      message: `The scenario has ${n} problem${n === 1 ? "" : "s"}`,
+      issues: parsed.issues,
+    };
+  }
+  const scenario = parsed.scenario;
+  const elements = scenario.runners.length + scenario.gates.length + scenario.cavities.length;
+  if (elements > options.maxElements) {
+    return {
+      ok: false,
+      status: 413,
+      code: "scenario_too_large",
+      message:
+        `A synchronous simulation takes at most ${options.maxElements} runners, gates and cavities; this one has ${elements}. Use a job instead.`,
+    };
+  }
+  const deadline = performance.now() + options.limitMs;
+  let outcome;
+  try {
+    outcome = (options.runScenario ?? runScenario)(scenario, {
+      onProgress: () => {
+        if (performance.now() > deadline) throw new Deadline();
+      },
+    });
+  } catch (error) {
+    if (!(error instanceof Deadline)) throw error;
+    return {
+      ok: false,
+      status: 422,
+      code: "simulation_time_limit",
+      message: `The simulation did not finish within ${options.limitMs} ms`,
+    };
+  }
+  if (!outcome.ok) {
+    if (outcome.code === "invalid_scenario") {
+      return {
+        ok: false,
+        status: 400,
+        code: "invalid_scenario",
+        message: "The scenario's network is not valid",
+        issues: outcome.issues,
+      };
+    }
+    return { ok: false, status: 422, code: "simulation_failed", message: outcome.message };
+  }
+  return { ok: true, result: resultJson(outcome.run, { history: options.history }) };
+}
