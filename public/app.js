@@ -1,0 +1,2406 @@
+(() => {
+  // src/page/api.ts
+  var ApiError = class extends Error {
+    status;
+    code;
+    issues;
+    constructor(status, code, message, issues = []) {
+      super(message), this.status = status, this.code = code, this.issues = issues;
+    }
+  };
+  var TOKEN_KEY = "evenfill.token";
+  function setAccessToken(token) {
+    if (token) sessionStorage.setItem(TOKEN_KEY, token);
+    else sessionStorage.removeItem(TOKEN_KEY);
+  }
+  async function call(method, url, body) {
+    let response;
+    const headers = {};
+    if (body !== void 0) headers["content-type"] = "application/json";
+    const token = sessionStorage.getItem(TOKEN_KEY);
+    if (token && method !== "GET") headers.authorization = `Bearer ${token}`;
+    try {
+      response = await fetch(url, {
+        method,
+        headers,
+        ...body === void 0 ? {} : {
+          body: JSON.stringify(body)
+        }
+      });
+    } catch (error) {
+      throw new ApiError(0, "network", `The service did not answer (${String(error)})`);
+    }
+    if (response.status === 204) return void 0;
+    const text = await response.text();
+    let json = null;
+    try {
+      json = text ? JSON.parse(text) : null;
+    } catch {
+      throw new ApiError(response.status, "bad_response", `Not JSON from ${url}: ${text.slice(0, 200)}`);
+    }
+    if (!response.ok) {
+      const e = json?.error;
+      throw new ApiError(response.status, e?.code ?? "http_" + response.status, e?.message ?? `${method} ${url} answered ${response.status}`, e?.issues ?? []);
+    }
+    return json;
+  }
+  var api = {
+    health: () => call("GET", "/api/health"),
+    materials: () => call("GET", "/api/materials"),
+    demos: () => call("GET", "/api/demos"),
+    demo: (id) => call("GET", `/api/demos/${encodeURIComponent(id)}`),
+    scenarios: () => call("GET", "/api/scenarios"),
+    scenario: (id) => call("GET", `/api/scenarios/${encodeURIComponent(id)}`),
+    createScenario: (scenario) => call("POST", "/api/scenarios", scenario),
+    updateScenario: (id, scenario) => call("PUT", `/api/scenarios/${encodeURIComponent(id)}`, scenario),
+    revisions: (id) => call("GET", `/api/scenarios/${encodeURIComponent(id)}/revisions`),
+    revision: (id, revision) => call("GET", `/api/scenarios/${encodeURIComponent(id)}/revisions/${revision}`),
+    validate: (scenario) => call("POST", "/api/validate", scenario),
+    simulate: (scenario) => call("POST", "/api/simulate?history=1", scenario),
+    startJob: (scenario, mode) => call("POST", "/api/jobs", {
+      kind: "optimize",
+      scenario,
+      ...mode ? {
+        mode
+      } : {}
+    }),
+    job: (id) => call("GET", `/api/jobs/${encodeURIComponent(id)}`),
+    cancelJob: (id) => call("POST", `/api/jobs/${encodeURIComponent(id)}/cancel`)
+  };
+  function watchJob(id, watch) {
+    return new Promise((resolve, reject) => {
+      let finished = false;
+      let timer;
+      let source;
+      const finish = async () => {
+        if (finished) return;
+        finished = true;
+        source?.close();
+        if (timer !== void 0) clearTimeout(timer);
+        try {
+          resolve(await api.job(id));
+        } catch (error) {
+          reject(error);
+        }
+      };
+      const poll = async () => {
+        if (finished) return;
+        try {
+          const job = await api.job(id);
+          watch.onState?.(job.status);
+          if (job.progress) watch.onProgress?.(job.progress);
+          if (job.status === "done" || job.status === "failed" || job.status === "cancelled") {
+            finished = true;
+            resolve(job);
+            return;
+          }
+        } catch (error) {
+          if (error instanceof ApiError && error.status === 404) {
+            finished = true;
+            reject(error);
+            return;
+          }
+        }
+        timer = setTimeout(poll, 1e3);
+      };
+      if (typeof EventSource === "undefined") {
+        poll();
+        return;
+      }
+      source = new EventSource(`/api/jobs/${encodeURIComponent(id)}/events`);
+      source.addEventListener("state", (e) => {
+        try {
+          watch.onState?.(JSON.parse(e.data).status);
+        } catch {
+        }
+      });
+      source.addEventListener("progress", (e) => {
+        try {
+          watch.onProgress?.(JSON.parse(e.data));
+        } catch {
+        }
+      });
+      source.addEventListener("end", () => finish());
+      source.onerror = () => {
+        if (finished) return;
+        source?.close();
+        source = void 0;
+        poll();
+      };
+    });
+  }
+
+  // src/page/chart.ts
+  var SERIES_COLOURS = [
+    "#0072B2",
+    "#D55E00",
+    "#009E73",
+    "#CC79A7",
+    "#E69F00",
+    "#56B4E9",
+    "#000000"
+  ];
+  var SERIES_DASHES = [
+    "",
+    "7 3",
+    "2 2.5",
+    "9 3 2 3",
+    "4 4",
+    "12 3 2 3 2 3",
+    "1 4"
+  ];
+  var SERIES_MARKERS = [
+    "circle",
+    "square",
+    "triangle",
+    "diamond",
+    "cross",
+    "plus",
+    "bar"
+  ];
+  function seriesStyle(index) {
+    const k = (index % 7 + 7) % 7;
+    const round2 = Math.floor(index / 7);
+    return {
+      colour: SERIES_COLOURS[k],
+      dash: SERIES_DASHES[(k + round2) % SERIES_DASHES.length],
+      marker: SERIES_MARKERS[k]
+    };
+  }
+  function linearScale(domain, range) {
+    let [d0, d1] = domain;
+    if (d1 === d0) {
+      d0 -= 0.5;
+      d1 += 0.5;
+    }
+    const f = (v) => range[0] + (v - d0) / (d1 - d0) * (range[1] - range[0]);
+    return Object.assign(f, {
+      domain: [
+        d0,
+        d1
+      ],
+      range
+    });
+  }
+  function niceStep(lo, hi, count = 5) {
+    const span = Math.abs(hi - lo);
+    if (!(span > 0) || !Number.isFinite(span)) return 1;
+    const raw = span / Math.max(1, count);
+    const power = Math.pow(10, Math.floor(Math.log10(raw)));
+    const fraction = raw / power;
+    const nice = fraction <= 1 ? 1 : fraction <= 2 ? 2 : fraction <= 2.5 ? 2.5 : fraction <= 5 ? 5 : 10;
+    return nice * power;
+  }
+  function niceDomain(lo, hi, count = 5) {
+    if (!Number.isFinite(lo) || !Number.isFinite(hi)) return niceDomain(0, 1, count);
+    if (hi < lo) [lo, hi] = [
+      hi,
+      lo
+    ];
+    if (hi === lo) {
+      hi = lo === 0 ? 1 : lo + Math.abs(lo) * 0.1;
+    }
+    const step = niceStep(lo, hi, count);
+    const start2 = Math.floor(lo / step + 1e-9) * step;
+    const end = Math.ceil(hi / step - 1e-9) * step;
+    const ticks = [];
+    for (let k = 0; start2 + k * step <= end + step * 1e-9; k++) {
+      ticks.push(Number((start2 + k * step).toPrecision(12)));
+    }
+    return {
+      domain: [
+        start2,
+        end
+      ],
+      ticks,
+      step
+    };
+  }
+  function tickLabel(value, step) {
+    const decimals = Math.max(0, Math.min(6, -Math.floor(Math.log10(step) + 1e-9) + (Math.abs(step / Math.pow(10, Math.floor(Math.log10(step))) - 2.5) < 1e-9 ? 1 : 0)));
+    return value.toFixed(decimals);
+  }
+  function escapeXml(text) {
+    return text.replace(/[&<>"']/g, (c) => ({
+      "&": "&amp;",
+      "<": "&lt;",
+      ">": "&gt;",
+      '"': "&quot;",
+      "'": "&#39;"
+    })[c]);
+  }
+  var fmt = (v) => (Math.round(v * 100) / 100).toString();
+  function markerSvg(shape, x, y, size, colour) {
+    const s = size / 2;
+    const fill = `fill="${colour}" stroke="${colour}"`;
+    switch (shape) {
+      case "circle":
+        return `<circle cx="${fmt(x)}" cy="${fmt(y)}" r="${fmt(s)}" ${fill}/>`;
+      case "square":
+        return `<rect x="${fmt(x - s)}" y="${fmt(y - s)}" width="${fmt(size)}" height="${fmt(size)}" ${fill}/>`;
+      case "triangle":
+        return `<polygon points="${fmt(x)},${fmt(y - s * 1.2)} ${fmt(x + s * 1.1)},${fmt(y + s * 0.9)} ${fmt(x - s * 1.1)},${fmt(y + s * 0.9)}" ${fill}/>`;
+      case "diamond":
+        return `<polygon points="${fmt(x)},${fmt(y - s * 1.3)} ${fmt(x + s)},${fmt(y)} ${fmt(x)},${fmt(y + s * 1.3)} ${fmt(x - s)},${fmt(y)}" ${fill}/>`;
+      case "cross":
+        return `<path d="M${fmt(x - s)},${fmt(y - s)}L${fmt(x + s)},${fmt(y + s)}M${fmt(x - s)},${fmt(y + s)}L${fmt(x + s)},${fmt(y - s)}" stroke="${colour}" stroke-width="2" fill="none"/>`;
+      case "plus":
+        return `<path d="M${fmt(x - s)},${fmt(y)}L${fmt(x + s)},${fmt(y)}M${fmt(x)},${fmt(y - s)}L${fmt(x)},${fmt(y + s)}" stroke="${colour}" stroke-width="2" fill="none"/>`;
+      default:
+        return `<rect x="${fmt(x - s * 1.3)}" y="${fmt(y - s * 0.5)}" width="${fmt(s * 2.6)}" height="${fmt(s)}" ${fill}/>`;
+    }
+  }
+  function extent(series, extraY = []) {
+    let x0 = Infinity, x1 = -Infinity, y0 = Infinity, y1 = -Infinity;
+    for (const s of series) {
+      for (const [x, y] of s.points) {
+        if (!Number.isFinite(x) || !Number.isFinite(y)) continue;
+        x0 = Math.min(x0, x);
+        x1 = Math.max(x1, x);
+        y0 = Math.min(y0, y);
+        y1 = Math.max(y1, y);
+      }
+    }
+    for (const y of extraY) {
+      if (!Number.isFinite(y)) continue;
+      y0 = Math.min(y0, y);
+      y1 = Math.max(y1, y);
+    }
+    if (x0 > x1) [x0, x1] = [
+      0,
+      1
+    ];
+    if (y0 > y1) [y0, y1] = [
+      0,
+      1
+    ];
+    return {
+      x: [
+        x0,
+        x1
+      ],
+      y: [
+        y0,
+        y1
+      ]
+    };
+  }
+  function lineChart(series, options) {
+    const width = options.width ?? 480;
+    const height = options.height ?? 280;
+    const margin = {
+      left: 58,
+      right: 64,
+      top: options.title ? 28 : 12,
+      bottom: 44
+    };
+    const data = extent(series, (options.rules ?? []).map((r) => r.y));
+    let xd = niceDomain(...options.xDomain ?? data.x, 6);
+    if (options.integerX && xd.step < 1) {
+      xd = niceDomain(xd.domain[0], Math.max(xd.domain[1], xd.domain[0] + 1), 1);
+      const ticks = [];
+      for (let t = Math.ceil(xd.domain[0]); t <= xd.domain[1]; t++) ticks.push(t);
+      xd = {
+        domain: xd.domain,
+        ticks,
+        step: 1
+      };
+    }
+    const yd = niceDomain(...options.yDomain ?? [
+      Math.min(0, data.y[0]),
+      data.y[1]
+    ], 5);
+    const xs = linearScale(xd.domain, [
+      margin.left,
+      width - margin.right
+    ]);
+    const ys = linearScale(yd.domain, [
+      height - margin.bottom,
+      margin.top
+    ]);
+    const out = [];
+    out.push(`<svg xmlns="http://www.w3.org/2000/svg" class="chart" ${options.id ? `id="${escapeXml(options.id)}" ` : ""}viewBox="0 0 ${width} ${height}" width="${width}" height="${height}" role="img" aria-label="${escapeXml(options.title ?? options.yLabel)}">`);
+    if (options.title) {
+      out.push(`<text class="chart-title" x="${margin.left}" y="16">${escapeXml(options.title)}</text>`);
+    }
+    out.push(`<g class="axis">`);
+    const xTicks = options.xTickLabels ? [
+      ...options.xTickLabels.keys()
+    ] : xd.ticks;
+    for (const t of yd.ticks) {
+      const y = fmt(ys(t));
+      out.push(`<line class="grid" x1="${margin.left}" x2="${width - margin.right}" y1="${y}" y2="${y}"/>`, `<text class="tick" x="${margin.left - 6}" y="${y}" text-anchor="end" dy="0.32em">${tickLabel(t, yd.step)}</text>`);
+    }
+    for (const t of xTicks) {
+      const x = fmt(xs(t));
+      const label = options.xTickLabels?.get(t) ?? tickLabel(t, xd.step);
+      out.push(`<line class="grid" x1="${x}" x2="${x}" y1="${margin.top}" y2="${height - margin.bottom}"/>`, `<text class="tick" x="${x}" y="${height - margin.bottom + 14}" text-anchor="middle">${escapeXml(label)}</text>`);
+    }
+    out.push(`<rect class="frame" x="${margin.left}" y="${margin.top}" width="${width - margin.left - margin.right}" height="${height - margin.top - margin.bottom}" fill="none"/>`, `<text class="axis-label" x="${(margin.left + width - margin.right) / 2}" y="${height - 6}" text-anchor="middle">${escapeXml(options.xLabel)}</text>`, `<text class="axis-label" transform="translate(14 ${(margin.top + height - margin.bottom) / 2}) rotate(-90)" text-anchor="middle">${escapeXml(options.yLabel)}</text>`, `</g>`);
+    for (const rule of options.rules ?? []) {
+      if (rule.y < yd.domain[0] || rule.y > yd.domain[1]) continue;
+      const y = fmt(ys(rule.y));
+      out.push(`<g class="rule"><line x1="${margin.left}" x2="${width - margin.right}" y1="${y}" y2="${y}" stroke="#000" stroke-width="1.5" stroke-dasharray="10 3 2 3"/><text x="${width - margin.right - 4}" y="${y}" dy="-0.35em" text-anchor="end">${escapeXml(rule.label)}</text></g>`);
+    }
+    for (const v of options.verticals ?? []) {
+      if (!(v.x >= xd.domain[0] && v.x <= xd.domain[1])) continue;
+      const x = fmt(xs(v.x));
+      out.push(`<g class="rule"><line x1="${x}" x2="${x}" y1="${margin.top}" y2="${height - margin.bottom}" stroke="#000" stroke-width="1" stroke-dasharray="3 3"/><text x="${x}" y="${height - margin.bottom - 4}" dx="-4" text-anchor="end">${escapeXml(v.label)}</text></g>`);
+    }
+    const ends = [];
+    series.forEach((s) => {
+      const st = seriesStyle(s.style);
+      const pts = s.points.filter(([x, y]) => Number.isFinite(x) && Number.isFinite(y));
+      if (pts.length === 0) return;
+      let d = "";
+      pts.forEach(([x, y], k) => {
+        if (k === 0) d += `M${fmt(xs(x))},${fmt(ys(y))}`;
+        else if (options.steps) d += `H${fmt(xs(x))}V${fmt(ys(y))}`;
+        else d += `L${fmt(xs(x))},${fmt(ys(y))}`;
+      });
+      const colour = s.faint ? "#777" : st.colour;
+      out.push(`<g class="series${s.faint ? " faint" : ""}" data-series="${escapeXml(s.label)}"><path d="${d}" fill="none" stroke="${colour}" stroke-width="${s.faint ? 1.2 : 2}"${st.dash ? ` stroke-dasharray="${st.dash}"` : ""}/>`);
+      const marked = options.markEveryPoint ? pts : [
+        pts[pts.length - 1]
+      ];
+      for (const [x, y] of marked) out.push(markerSvg(st.marker, xs(x), ys(y), 6, colour));
+      out.push(`</g>`);
+      if (!s.faint || options.labelFaint) {
+        const [, yLast] = pts[pts.length - 1];
+        ends.push({
+          y: ys(yLast),
+          label: s.label,
+          colour
+        });
+      }
+    });
+    ends.sort((a, b) => a.y - b.y);
+    for (let k = 1; k < ends.length; k++) {
+      if (ends[k].y - ends[k - 1].y < 11) ends[k].y = ends[k - 1].y + 11;
+    }
+    const bottom = height - margin.bottom + 4;
+    const overflow = ends.length ? ends[ends.length - 1].y - bottom : 0;
+    if (overflow > 0) {
+      for (const e of ends) e.y = Math.max(margin.top, e.y - overflow);
+    }
+    for (const e of ends) {
+      out.push(`<text class="end-label" x="${width - margin.right + 6}" y="${fmt(e.y)}" dy="0.32em">${escapeXml(e.label)}</text>`);
+    }
+    out.push(`</svg>`);
+    return out.join("");
+  }
+
+  // src/model/units.ts
+  var M_PER_MM = 1e-3;
+  var M_PER_INCH = 0.0254;
+  var PA_PER_MPA = 1e6;
+  var PA_PER_BAR = 1e5;
+  var PA_PER_PSI = 4.4482216152605 / (M_PER_INCH * M_PER_INCH);
+  var N_PER_KN = 1e3;
+  var N_PER_TONNE_FORCE = 1e3 * 9.80665;
+  var N_PER_US_TON_FORCE = 2e3 * 4.4482216152605;
+  var cToF = (c) => c * 1.8 + 32;
+
+  // src/page/display_units.ts
+  var METRIC_UNITS = {
+    length: "mm",
+    pressure: "MPa",
+    force: "kN",
+    temperature: "C"
+  };
+  var UNIT_CHOICES = {
+    length: [
+      [
+        "mm",
+        "mm"
+      ],
+      [
+        "in",
+        "inch"
+      ]
+    ],
+    pressure: [
+      [
+        "MPa",
+        "MPa"
+      ],
+      [
+        "bar",
+        "bar"
+      ],
+      [
+        "psi",
+        "psi"
+      ]
+    ],
+    force: [
+      [
+        "kN",
+        "kN"
+      ],
+      [
+        "tf",
+        "tonne-force"
+      ],
+      [
+        "tonUS",
+        "US ton"
+      ]
+    ],
+    temperature: [
+      [
+        "C",
+        "\xB0C"
+      ],
+      [
+        "F",
+        "\xB0F"
+      ]
+    ]
+  };
+  function unitSymbol(units, quantity) {
+    switch (quantity) {
+      case "length":
+        return units.length === "mm" ? "mm" : "in";
+      case "pressure":
+        return units.pressure;
+      case "force":
+        return units.force === "kN" ? "kN" : units.force === "tf" ? "tf" : "US tonf";
+      case "temperature":
+        return units.temperature === "C" ? "\xB0C" : "\xB0F";
+    }
+  }
+  function lengthFromMm(mm, unit) {
+    return unit === "mm" ? mm : mm * M_PER_MM / M_PER_INCH;
+  }
+  function lengthToMm(value, unit) {
+    return unit === "mm" ? value : value * M_PER_INCH / M_PER_MM;
+  }
+  function pressureFromMpa(mpa, unit) {
+    const pa = mpa * PA_PER_MPA;
+    return unit === "MPa" ? mpa : unit === "bar" ? pa / PA_PER_BAR : pa / PA_PER_PSI;
+  }
+  function forceFromKn(kn, unit) {
+    const n = kn * N_PER_KN;
+    return unit === "kN" ? kn : unit === "tf" ? n / N_PER_TONNE_FORCE : n / N_PER_US_TON_FORCE;
+  }
+  function temperatureFromC(c, unit) {
+    return unit === "C" ? c : cToF(c);
+  }
+  function temperatureToC(value, unit) {
+    return unit === "C" ? value : (value - 32) / 1.8;
+  }
+  function formatNumber(value, digits = 3) {
+    if (value === null || value === void 0 || !Number.isFinite(value)) return "\u2013";
+    if (value === 0) return "0";
+    const magnitude = Math.floor(Math.log10(Math.abs(value)));
+    const decimals = Math.max(0, digits - 1 - magnitude);
+    if (magnitude >= 6 || magnitude < -4) return value.toPrecision(digits);
+    return value.toFixed(Math.min(decimals, 8));
+  }
+  function formatLength(mm, unit) {
+    if (mm === null || mm === void 0 || !Number.isFinite(mm)) return "\u2013";
+    const v = lengthFromMm(mm, unit);
+    return unit === "mm" ? trimZeros(v.toFixed(2)) : v.toFixed(4);
+  }
+  function formatPressure(mpa, units) {
+    if (mpa === null || mpa === void 0 || !Number.isFinite(mpa)) return "\u2013";
+    const v = pressureFromMpa(mpa, units.pressure);
+    const text = units.pressure === "psi" ? Math.round(v).toString() : formatNumber(v, 3);
+    return `${text} ${unitSymbol(units, "pressure")}`;
+  }
+  function formatForce(kn, units) {
+    if (kn === null || kn === void 0 || !Number.isFinite(kn)) return "\u2013";
+    return `${formatNumber(forceFromKn(kn, units.force), 3)} ${unitSymbol(units, "force")}`;
+  }
+  function trimZeros(text) {
+    return text.includes(".") ? text.replace(/\.?0+$/, "") : text;
+  }
+  function parseDisplayUnits(value) {
+    const out = {
+      ...METRIC_UNITS
+    };
+    if (typeof value !== "object" || value === null) return out;
+    const v = value;
+    for (const key of Object.keys(UNIT_CHOICES)) {
+      const allowed = UNIT_CHOICES[key].map((c) => c[0]);
+      if (typeof v[key] === "string" && allowed.includes(v[key])) {
+        out[key] = v[key];
+      }
+    }
+    return out;
+  }
+
+  // src/page/json_locate.ts
+  function pathKey(path) {
+    if (path.length === 0) return "$";
+    let text = "";
+    for (const part of path) {
+      if (typeof part === "number") text += `[${part}]`;
+      else text += text === "" ? part : `.${part}`;
+    }
+    return text;
+  }
+  function lineColumn(text, offset) {
+    let line = 1;
+    let lineStart = 0;
+    const end = Math.min(offset, text.length);
+    for (let i = 0; i < end; i++) {
+      if (text.charCodeAt(i) === 10) {
+        line++;
+        lineStart = i + 1;
+      }
+    }
+    return {
+      line,
+      column: end - lineStart + 1
+    };
+  }
+  var JsonSyntaxError = class extends Error {
+    offset;
+    constructor(message, offset) {
+      super(message), this.offset = offset;
+    }
+  };
+  function locateJson(text) {
+    const spans = /* @__PURE__ */ new Map();
+    let i = 0;
+    const span = (start2, end) => ({
+      start: start2,
+      end,
+      ...lineColumn(text, start2)
+    });
+    const fail = (message, at = i) => {
+      throw new JsonSyntaxError(message, at);
+    };
+    const describe = (at) => at >= text.length ? "the end of the text" : `\u201C${text[at]}\u201D`;
+    const skip = () => {
+      while (i < text.length) {
+        const c = text.charCodeAt(i);
+        if (c === 32 || c === 9 || c === 10 || c === 13) i++;
+        else break;
+      }
+    };
+    const readString = () => {
+      const start2 = i;
+      i++;
+      let out = "";
+      while (true) {
+        if (i >= text.length) fail('A string is not closed: a quote \u201C"\u201D is missing', start2);
+        const c = text[i];
+        if (c === '"') {
+          i++;
+          return out;
+        }
+        if (c === "\\") {
+          const e = text[i + 1];
+          const simple = {
+            '"': '"',
+            "\\": "\\",
+            "/": "/",
+            b: "\b",
+            f: "\f",
+            n: "\n",
+            r: "\r",
+            t: "	"
+          };
+          if (e !== void 0 && e in simple) {
+            out += simple[e];
+            i += 2;
+          } else if (e === "u" && /^[0-9a-fA-F]{4}$/.test(text.slice(i + 2, i + 6))) {
+            out += String.fromCharCode(parseInt(text.slice(i + 2, i + 6), 16));
+            i += 6;
+          } else fail("Unknown escape in a string", i);
+          continue;
+        }
+        if (text.charCodeAt(i) < 32) fail("A line break or control character inside a string", i);
+        out += c;
+        i++;
+      }
+    };
+    const readValue = (path, key) => {
+      skip();
+      const start2 = i;
+      let value;
+      const c = text[i];
+      if (c === "{") {
+        i++;
+        const obj2 = {};
+        skip();
+        if (text[i] === "}") i++;
+        else {
+          while (true) {
+            skip();
+            if (text[i] !== '"') {
+              fail(`Expected a quoted field name, found ${describe(i)}`);
+            }
+            const keyStart = i;
+            const name = readString();
+            const keySpan = span(keyStart, i);
+            skip();
+            if (text[i] !== ":") fail(`Expected \u201C:\u201D after "${name}", found ${describe(i)}`);
+            i++;
+            obj2[name] = readValue([
+              ...path,
+              name
+            ], keySpan);
+            skip();
+            if (text[i] === ",") {
+              i++;
+              continue;
+            }
+            if (text[i] === "}") {
+              i++;
+              break;
+            }
+            fail(`Expected \u201C,\u201D or \u201C}\u201D after the value of "${name}", found ${describe(i)}`);
+          }
+        }
+        value = obj2;
+      } else if (c === "[") {
+        i++;
+        const arr = [];
+        skip();
+        if (text[i] === "]") i++;
+        else {
+          while (true) {
+            arr.push(readValue([
+              ...path,
+              arr.length
+            ]));
+            skip();
+            if (text[i] === ",") {
+              i++;
+              continue;
+            }
+            if (text[i] === "]") {
+              i++;
+              break;
+            }
+            fail(`Expected \u201C,\u201D or \u201C]\u201D in a list, found ${describe(i)}`);
+          }
+        }
+        value = arr;
+      } else if (c === '"') {
+        value = readString();
+      } else {
+        const m = /^-?(0|[1-9]\d*)(\.\d+)?([eE][+-]?\d+)?/.exec(text.slice(i, i + 64));
+        if (m && m[0].length > 0 && text[i] !== void 0 && /[-0-9]/.test(text[i])) {
+          value = Number(m[0]);
+          i += m[0].length;
+        } else if (text.startsWith("true", i)) {
+          value = true;
+          i += 4;
+        } else if (text.startsWith("false", i)) {
+          value = false;
+          i += 5;
+        } else if (text.startsWith("null", i)) {
+          value = null;
+          i += 4;
+        } else {
+          fail(`Expected a value, found ${describe(i)}`);
+        }
+      }
+      spans.set(pathKey(path), {
+        value: span(start2, i),
+        ...key ? {
+          key
+        } : {}
+      });
+      return value;
+    };
+    try {
+      const value = readValue([]);
+      skip();
+      if (i < text.length) fail(`Unexpected ${describe(i)} after the end of the JSON value`);
+      return {
+        ok: true,
+        value,
+        spans
+      };
+    } catch (error) {
+      if (error instanceof JsonSyntaxError) {
+        const at = Math.min(error.offset, text.length);
+        return {
+          ok: false,
+          message: error.message,
+          span: span(at, Math.min(at + 1, text.length))
+        };
+      }
+      throw error;
+    }
+  }
+  function spanForPath(spans, path) {
+    for (let n = path.length; n >= 0; n--) {
+      const found = spans.get(pathKey(path.slice(0, n)));
+      if (found) {
+        if (found.key) {
+          return {
+            ...found.key,
+            end: found.value.end
+          };
+        }
+        return found.value;
+      }
+    }
+    return {
+      start: 0,
+      end: 0,
+      line: 1,
+      column: 1
+    };
+  }
+
+  // src/page/editor_issues.ts
+  function placeIssues(text, issues) {
+    const located = locateJson(text);
+    const spans = located.ok ? located.spans : /* @__PURE__ */ new Map();
+    return issues.map((i) => ({
+      ...i,
+      span: spanForPath(spans, i.path)
+    })).sort((a, b) => a.span.start - b.span.start);
+  }
+  function checkJsonSyntax(text) {
+    const located = locateJson(text);
+    if (located.ok) return {
+      ok: true,
+      value: located.value
+    };
+    return {
+      ok: false,
+      syntax: true,
+      issues: [
+        {
+          at: `line ${located.span.line}, column ${located.span.column}`,
+          path: [],
+          code: "invalid_json",
+          message: located.message,
+          span: located.span
+        }
+      ]
+    };
+  }
+
+  // src/page/layout_drawing.ts
+  function median(values) {
+    if (values.length === 0) return NaN;
+    const s = [
+      ...values
+    ].sort((a, b) => a - b);
+    const m = Math.floor(s.length / 2);
+    return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+  }
+  function runnerWidthMm(r) {
+    return r.width_mm ?? r.diameter_mm;
+  }
+  function gateSizeMm(g) {
+    return g.type === "edge" ? g.thickness_mm ?? 1 : g.diameter_mm ?? 1;
+  }
+  function layoutGeometry(scenario, sizes = /* @__PURE__ */ new Map()) {
+    const nodes = new Map(scenario.nodes.map((n) => [
+      n.id,
+      {
+        x: n.x_mm,
+        y: n.y_mm
+      }
+    ]));
+    const runners = (scenario.runners ?? []).flatMap((r) => {
+      const a = nodes.get(r.from), b = nodes.get(r.to);
+      if (!a || !b) return [];
+      const size = sizes.get(r.id);
+      const width = size !== void 0 && r.width_mm === void 0 ? size : runnerWidthMm(r);
+      return [
+        {
+          id: r.id,
+          x1: a.x,
+          y1: a.y,
+          x2: b.x,
+          y2: b.y,
+          width_mm: width
+        }
+      ];
+    });
+    const lengths = runners.map((r) => Math.hypot(r.x2 - r.x1, r.y2 - r.y1)).filter((l) => l > 0);
+    const xsAll = [
+      ...nodes.values()
+    ].map((n) => n.x);
+    const ysAll = [
+      ...nodes.values()
+    ].map((n) => n.y);
+    const spread = Math.max(Math.max(...xsAll) - Math.min(...xsAll), Math.max(...ysAll) - Math.min(...ysAll));
+    const typical = Number.isFinite(median(lengths)) ? median(lengths) : spread > 0 ? spread / 3 : 30;
+    const centre = {
+      x: xsAll.reduce((a, b) => a + b, 0) / xsAll.length,
+      y: ysAll.reduce((a, b) => a + b, 0) / ysAll.length
+    };
+    const arrival = /* @__PURE__ */ new Map();
+    for (const r of scenario.runners ?? []) {
+      const a = nodes.get(r.from), b = nodes.get(r.to);
+      if (!a || !b) continue;
+      const l = Math.hypot(b.x - a.x, b.y - a.y);
+      if (l === 0) continue;
+      const v = arrival.get(r.to) ?? {
+        x: 0,
+        y: 0
+      };
+      arrival.set(r.to, {
+        x: v.x + (b.x - a.x) / l,
+        y: v.y + (b.y - a.y) / l
+      });
+    }
+    const gap = Math.max(3, 0.15 * typical);
+    const vMax = Math.max(...scenario.cavities.map((c) => c.volume_cm3), 1e-9);
+    let k = 0.45 * typical / Math.sqrt(vMax);
+    const direction = (cavityId) => {
+      const gateNodes = scenario.gates.filter((g) => g.cavity === cavityId).flatMap((g) => {
+        const n = nodes.get(g.from);
+        return n ? [
+          {
+            id: g.from,
+            ...n
+          }
+        ] : [];
+      });
+      if (gateNodes.length === 0) return {
+        at: centre,
+        d: {
+          x: 0,
+          y: 1
+        }
+      };
+      const at = {
+        x: gateNodes.reduce((a, n) => a + n.x, 0) / gateNodes.length,
+        y: gateNodes.reduce((a, n) => a + n.y, 0) / gateNodes.length
+      };
+      let d = gateNodes.reduce((acc, n) => {
+        const v = arrival.get(n.id) ?? {
+          x: 0,
+          y: 0
+        };
+        return {
+          x: acc.x + v.x,
+          y: acc.y + v.y
+        };
+      }, {
+        x: 0,
+        y: 0
+      });
+      if (Math.hypot(d.x, d.y) < 1e-6) d = {
+        x: at.x - centre.x,
+        y: at.y - centre.y
+      };
+      if (Math.hypot(d.x, d.y) < 1e-6) d = {
+        x: 0,
+        y: 1
+      };
+      const l = Math.hypot(d.x, d.y);
+      return {
+        at,
+        d: {
+          x: d.x / l,
+          y: d.y / l
+        }
+      };
+    };
+    const dirs = new Map(scenario.cavities.map((c) => [
+      c.id,
+      direction(c.id)
+    ]));
+    let placed = [];
+    for (let attempt = 0; attempt < 30; attempt++) {
+      placed = scenario.cavities.map((c) => {
+        const r = k * Math.sqrt(c.volume_cm3);
+        const { at, d } = dirs.get(c.id);
+        return {
+          id: c.id,
+          ...c.name ? {
+            name: c.name
+          } : {},
+          volume_cm3: c.volume_cm3,
+          x: at.x + d.x * (gap + r),
+          y: at.y + d.y * (gap + r),
+          r,
+          dx: d.x,
+          dy: d.y
+        };
+      });
+      let overlap = false;
+      for (let i = 0; i < placed.length && !overlap; i++) {
+        for (let j = i + 1; j < placed.length; j++) {
+          const a = placed[i], b = placed[j];
+          if (Math.hypot(a.x - b.x, a.y - b.y) < (a.r + b.r) * 1.08) {
+            overlap = true;
+            break;
+          }
+        }
+      }
+      if (!overlap) break;
+      k *= 0.85;
+    }
+    const cavityById = new Map(placed.map((c) => [
+      c.id,
+      c
+    ]));
+    const gates = scenario.gates.flatMap((g) => {
+      const n = nodes.get(g.from), c = cavityById.get(g.cavity);
+      if (!n || !c) return [];
+      const l = Math.hypot(c.x - n.x, c.y - n.y);
+      const t = l > 0 ? Math.max(0, (l - c.r) / l) : 0;
+      return [
+        {
+          id: g.id,
+          x1: n.x,
+          y1: n.y,
+          x2: n.x + (c.x - n.x) * t,
+          y2: n.y + (c.y - n.y) * t,
+          size_mm: sizes.get(g.id) ?? gateSizeMm(g)
+        }
+      ];
+    });
+    let x0 = Infinity, y0 = Infinity, x1 = -Infinity, y1 = -Infinity;
+    const grow = (x, y, pad) => {
+      x0 = Math.min(x0, x - pad);
+      x1 = Math.max(x1, x + pad);
+      y0 = Math.min(y0, y - pad);
+      y1 = Math.max(y1, y + pad);
+    };
+    for (const n of nodes.values()) grow(n.x, n.y, 4);
+    for (const c of placed) grow(c.x, c.y, c.r);
+    return {
+      nodes,
+      cavities: placed,
+      gates,
+      runners,
+      bounds: {
+        x0,
+        y0,
+        x1,
+        y1
+      }
+    };
+  }
+  function segmentBoxDistance(ax, ay, bx, by, box) {
+    const n = Math.max(2, Math.ceil(Math.hypot(bx - ax, by - ay) / Math.max(box.hh, 0.5)));
+    let best = Infinity;
+    for (let k = 0; k <= n; k++) {
+      const x = ax + (bx - ax) * k / n, y = ay + (by - ay) * k / n;
+      const dx = Math.max(Math.abs(x - box.x) - box.hw, 0);
+      const dy = Math.max(Math.abs(y - box.y) - box.hh, 0);
+      best = Math.min(best, Math.hypot(dx, dy));
+    }
+    return best;
+  }
+  function circleBoxOverlap(cx, cy, r, box) {
+    const dx = Math.max(Math.abs(cx - box.x) - box.hw, 0);
+    const dy = Math.max(Math.abs(cy - box.y) - box.hh, 0);
+    return Math.hypot(dx, dy) < r;
+  }
+  function layoutSvg(scenario, options = {}) {
+    const unit = options.lengthUnit ?? "mm";
+    const changes = new Map((options.changes ?? []).map((c) => [
+      c.element,
+      c
+    ]));
+    const sizes = new Map([
+      ...changes.values()
+    ].map((c) => [
+      c.element,
+      c.to_mm
+    ]));
+    const geo = layoutGeometry(scenario, sizes);
+    const { x0, y0, x1, y1 } = geo.bounds;
+    const span = Math.max(x1 - x0, y1 - y0, 10);
+    const font = span / 40;
+    const f = (v) => (Math.round(v * 1e3) / 1e3).toString();
+    const size = (mm, prefix) => `${prefix}${formatLength(mm, unit)}`;
+    const label = (id, currentMm, prefix) => {
+      const c = changes.get(id);
+      if (!c) return `${id} ${size(currentMm, prefix)}`;
+      return `${id} ${size(c.from_mm, prefix)} \u2192 ${formatLength(c.to_mm, unit)}`;
+    };
+    const charWidth = font * 0.6;
+    const lineHeight = font * 1.25;
+    const halfSize = (tag) => ({
+      hw: (Math.max(...tag.lines.map((l) => l.length)) * charWidth + (tag.badge ? font * 1.9 : 0)) / 2 + font * 0.15,
+      hh: tag.lines.length * lineHeight / 2
+    });
+    const segments = [
+      ...geo.runners.map((r) => ({
+        ...r,
+        half: r.width_mm / 2
+      })),
+      ...geo.gates.map((g) => ({
+        ...g,
+        half: Math.max(g.size_mm, font * 0.25) / 2
+      }))
+    ];
+    const placed = [];
+    const feedNode = geo.nodes.get(scenario.feed.node);
+    const feedD = scenario.feed.kind === "sprue" ? scenario.feed.exit_diameter_mm ?? 5 : scenario.feed.diameter_mm ?? 5;
+    const cost = (box) => {
+      let c = 0;
+      for (const p of placed) {
+        if (Math.abs(p.x - box.x) < p.hw + box.hw && Math.abs(p.y - box.y) < p.hh + box.hh) c += 4;
+      }
+      for (const cav of geo.cavities) if (circleBoxOverlap(cav.x, cav.y, cav.r, box)) c += 3;
+      for (const sgm of segments) {
+        if (segmentBoxDistance(sgm.x1, sgm.y1, sgm.x2, sgm.y2, box) < sgm.half + font * 0.1) c += 2;
+      }
+      if (feedNode && circleBoxOverlap(feedNode.x, feedNode.y, feedD / 2 + font * 0.5, box)) c += 2;
+      return c;
+    };
+    const place = (tag, optional = false) => {
+      const { hw, hh } = halfSize(tag);
+      let best = null, bestCost = Infinity;
+      for (const c of tag.candidates) {
+        const box = {
+          x: c.x,
+          y: c.y,
+          hw,
+          hh
+        };
+        const k = cost(box);
+        if (k < bestCost) {
+          best = box;
+          bestCost = k;
+          if (k === 0) break;
+        }
+      }
+      if (optional && bestCost > 0) return null;
+      placed.push(best);
+      return best;
+    };
+    const tagSvg = (tag, box) => {
+      if (box === null) return "";
+      const left = box.x - box.hw + font * 0.15;
+      let out2 = "";
+      let textX = box.x;
+      if (tag.badge !== void 0) {
+        const bx = left + font * 0.8;
+        out2 += `<g class="step-badge"><circle cx="${f(bx)}" cy="${f(-box.y)}" r="${f(font * 0.8)}"/><text x="${f(bx)}" y="${f(-box.y)}" text-anchor="middle" dy="0.35em">${tag.badge}</text></g>`;
+        textX = box.x + font * 0.95;
+      }
+      const top = box.y + box.hh - lineHeight / 2;
+      tag.lines.forEach((line, k) => {
+        out2 += `<text class="label${tag.strong && k === 0 ? " strong" : ""}" x="${f(textX)}" y="${f(-(top - k * lineHeight))}" text-anchor="middle" dy="0.35em">${escapeXml(line)}</text>`;
+      });
+      return out2;
+    };
+    const besideSegment = (ax, ay, bx, by, half, tag, shifts) => {
+      const { hw, hh } = halfSize(tag);
+      const l = Math.hypot(bx - ax, by - ay) || 1;
+      const tx = (bx - ax) / l, ty = (by - ay) / l;
+      let nx = -ty, ny = tx;
+      if (ny < 0 || ny === 0 && nx < 0) [nx, ny] = [
+        -nx,
+        -ny
+      ];
+      const extent2 = Math.abs(nx) * hw + Math.abs(ny) * hh;
+      const reach = half + font * 0.35 + extent2;
+      const mx = (ax + bx) / 2, my = (ay + by) / 2;
+      const out2 = [];
+      for (const ring of [
+        0,
+        1,
+        2
+      ]) {
+        const r = reach + ring * (2 * extent2 + font * 0.4);
+        for (const s of shifts) {
+          for (const side of [
+            1,
+            -1
+          ]) {
+            out2.push({
+              x: mx + tx * s * l + nx * side * r,
+              y: my + ty * s * l + ny * side * r
+            });
+          }
+        }
+      }
+      return out2;
+    };
+    const body = [];
+    const channels = {
+      runner: [],
+      gate: []
+    };
+    const feedBody = [];
+    const labels = [];
+    const jobs = [];
+    const defer = (priority, run) => jobs.push({
+      priority,
+      order: jobs.length,
+      run
+    });
+    if (feedNode) {
+      const text = scenario.feed.kind === "sprue" ? `sprue \u2300${formatLength(scenario.feed.entry_diameter_mm ?? feedD, unit)}\u2013${formatLength(feedD, unit)}` : `hot drop \u2300${formatLength(feedD, unit)}`;
+      const tag = {
+        lines: [
+          text
+        ],
+        strong: false,
+        candidates: []
+      };
+      const { hw, hh } = halfSize(tag);
+      const free = freeDirection(geo, scenario.feed.node);
+      for (const turn of [
+        0,
+        0.5,
+        -0.5,
+        1,
+        -1,
+        1.5,
+        -1.5,
+        Math.PI
+      ]) {
+        const a = free + turn;
+        const reach = feedD / 2 + font * 0.7;
+        tag.candidates.push({
+          x: feedNode.x + Math.cos(a) * (reach + hw),
+          y: feedNode.y + Math.sin(a) * (reach + hh)
+        });
+      }
+      feedBody.push(`<g class="feed"><circle cx="${f(feedNode.x)}" cy="${f(-feedNode.y)}" r="${f(feedD / 2)}"/><circle class="feed-ring" cx="${f(feedNode.x)}" cy="${f(-feedNode.y)}" r="${f(feedD / 2 + font * 0.5)}"/></g>`);
+      defer(3, () => labels.push(`<g class="feed-label">${tagSvg(tag, place(tag))}</g>`));
+    }
+    for (const c of geo.cavities) {
+      const title = `${c.id}${c.name ? ` ${c.name}` : ""}`;
+      const volume = `${formatVolume(c.volume_cm3)} cm\xB3`;
+      const fits = (text2) => c.r * 2 > charWidth * 1.05 * Math.max(text2.length, 3);
+      const inside = fits(title) && fits(volume) && c.r > font * 1.4;
+      const idInside = !inside && fits(c.id) && c.r > font * 0.8;
+      let text = "";
+      if (inside) {
+        text = `<text x="${f(c.x)}" y="${f(-c.y)}" text-anchor="middle" dy="-0.2em" class="label strong">${escapeXml(title)}</text><text x="${f(c.x)}" y="${f(-c.y)}" text-anchor="middle" dy="1.0em" class="label">${escapeXml(volume)}</text>`;
+      } else {
+        if (idInside) {
+          text = `<text x="${f(c.x)}" y="${f(-c.y)}" text-anchor="middle" dy="0.35em" class="label strong">${escapeXml(c.id)}</text>`;
+        }
+        const lines = idInside ? c.name ? [
+          c.name,
+          volume
+        ] : [
+          volume
+        ] : [
+          title,
+          volume
+        ];
+        const tag = {
+          lines,
+          strong: !idInside,
+          candidates: []
+        };
+        const { hw, hh } = halfSize(tag);
+        for (const turn of [
+          0,
+          0.6,
+          -0.6,
+          1.2,
+          -1.2,
+          Math.PI / 2,
+          -Math.PI / 2,
+          2.2,
+          -2.2
+        ]) {
+          const a = Math.atan2(c.dy, c.dx) + turn;
+          const ux = Math.cos(a), uy = Math.sin(a);
+          const reach = c.r + font * 0.3 + Math.abs(ux) * hw + Math.abs(uy) * hh;
+          tag.candidates.push({
+            x: c.x + ux * reach,
+            y: c.y + uy * reach
+          });
+        }
+        defer(2, () => labels.push(`<g class="cavity-label" data-for="${escapeXml(c.id)}">${tagSvg(tag, place(tag, idInside))}</g>`));
+      }
+      body.push(`<g class="cavity" data-id="${escapeXml(c.id)}"><circle cx="${f(c.x)}" cy="${f(-c.y)}" r="${f(c.r)}"/>${text}</g>`);
+    }
+    const channel = (kind, id, seg, width, text, shifts) => {
+      const changed = changes.get(id);
+      const tag = {
+        lines: [
+          text
+        ],
+        strong: changed !== void 0,
+        ...changed ? {
+          badge: changed.step
+        } : {},
+        candidates: []
+      };
+      tag.candidates = besideSegment(seg.x1, seg.y1, seg.x2, seg.y2, width / 2, tag, shifts);
+      if (kind === "gate") {
+        const { hw } = halfSize(tag);
+        const atNode = geo.runners.filter((r) => r.x1 === seg.x1 && r.y1 === seg.y1 || r.x2 === seg.x1 && r.y2 === seg.y1);
+        const clear = Math.max(width / 2, ...atNode.map((r) => r.width_mm / 2)) + font * 0.4;
+        const mx = (seg.x1 + seg.x2) / 2, my = (seg.y1 + seg.y2) / 2;
+        const near = [];
+        for (const dy of [
+          0,
+          1,
+          -1,
+          2,
+          -2
+        ]) {
+          for (const side of [
+            1,
+            -1
+          ]) {
+            near.push({
+              x: mx + side * (clear + hw),
+              y: my + dy * lineHeight
+            });
+          }
+        }
+        tag.candidates.splice(shifts.length * 2, 0, ...near);
+      }
+      const slot = channels[kind].push("") - 1;
+      defer(kind === "gate" ? 0 : 1, () => {
+        const box = place(tag);
+        channels[kind][slot] = `<g class="${kind}${changed ? " changed" : ""}" data-id="${escapeXml(id)}">` + (changed ? `<line class="halo" x1="${f(seg.x1)}" y1="${f(-seg.y1)}" x2="${f(seg.x2)}" y2="${f(-seg.y2)}" stroke-width="${f(width + font * 0.8)}"/>` : "") + `<line class="body" x1="${f(seg.x1)}" y1="${f(-seg.y1)}" x2="${f(seg.x2)}" y2="${f(-seg.y2)}" stroke-width="${f(width)}"/>` + tagSvg(tag, box) + `</g>`;
+      });
+    };
+    for (const g of geo.gates) {
+      const gate = scenario.gates.find((x) => x.id === g.id);
+      const prefix = gate.type === "edge" ? "t " : "\u2300";
+      const text = gate.type === "edge" && gate.width_mm ? `${label(g.id, g.size_mm, prefix)} \xD7 ${formatLength(gate.width_mm, unit)}` : label(g.id, g.size_mm, prefix);
+      channel("gate", g.id, g, Math.max(g.size_mm, font * 0.25), text, [
+        0,
+        -0.5,
+        0.5,
+        -1.5,
+        1.5
+      ]);
+    }
+    for (const r of geo.runners) {
+      channel("runner", r.id, r, r.width_mm, label(r.id, r.width_mm, "\u2300"), [
+        0,
+        0.3,
+        -0.3,
+        0.6,
+        -0.6
+      ]);
+    }
+    jobs.sort((a, b) => a.priority - b.priority || a.order - b.order).forEach((j) => j.run());
+    let bx0 = x0, bx1 = x1, by0 = y0, by1 = y1;
+    for (const b of placed) {
+      bx0 = Math.min(bx0, b.x - b.hw);
+      bx1 = Math.max(bx1, b.x + b.hw);
+      by0 = Math.min(by0, b.y - b.hh);
+      by1 = Math.max(by1, b.y + b.hh);
+    }
+    const pad = font * 1.5;
+    const vx0 = bx0 - pad, vx1 = bx1 + pad;
+    const vy0 = -by1 - pad, vy1 = -by0 + pad + font * 3;
+    const stepMm = niceLengthStep(span / 4, unit);
+    const sx = vx0 + pad, sy = vy1 - font * 1.2;
+    const out = [];
+    out.push(`<svg xmlns="http://www.w3.org/2000/svg" class="layout" ${options.id ? `id="${escapeXml(options.id)}" ` : ""}viewBox="${f(vx0)} ${f(vy0)} ${f(vx1 - vx0)} ${f(vy1 - vy0)}" role="img" aria-label="Layout drawing of the runner system">`, `<g font-size="${f(font)}" class="layout-body">`, ...body, ...channels.runner, ...channels.gate, ...feedBody, ...labels, `<g class="scale-bar"><path d="M${f(sx)},${f(sy - font * 0.4)}V${f(sy)}H${f(sx + stepMm)}V${f(sy - font * 0.4)}"/><text class="label" x="${f(sx + stepMm + font * 0.5)}" y="${f(sy)}">${formatLength(stepMm, unit).replace(/\.0+$/, "")} ${unit === "mm" ? "mm" : "in"}</text></g>`, `</g></svg>`);
+    return out.join("");
+  }
+  function freeDirection(geo, nodeId) {
+    const n = geo.nodes.get(nodeId);
+    if (!n) return -Math.PI / 2;
+    const angles = [];
+    for (const r of geo.runners) {
+      if (r.x1 === n.x && r.y1 === n.y) angles.push(Math.atan2(r.y2 - r.y1, r.x2 - r.x1));
+      else if (r.x2 === n.x && r.y2 === n.y) angles.push(Math.atan2(r.y1 - r.y2, r.x1 - r.x2));
+    }
+    for (const g of geo.gates) {
+      if (g.x1 === n.x && g.y1 === n.y) angles.push(Math.atan2(g.y2 - g.y1, g.x2 - g.x1));
+    }
+    if (angles.length === 0) return -Math.PI / 2;
+    angles.sort((a, b) => a - b);
+    let best = -Math.PI / 2, widest = -1;
+    for (let k = 0; k < angles.length; k++) {
+      const a = angles[k];
+      const b = k + 1 < angles.length ? angles[k + 1] : angles[0] + 2 * Math.PI;
+      const score = b - a - 1e-3 * Math.sin((a + b) / 2);
+      if (score > widest) {
+        widest = score;
+        best = (a + b) / 2;
+      }
+    }
+    return best;
+  }
+  function layoutKeyText(unit) {
+    return `Plan view to scale from the node coordinates; sizes in ${unit === "mm" ? "mm" : "inch"}. \u2300 diameter; t gate thickness \xD7 width. Runners at their true width; cavity circles by volume (placed beyond their gates). Changed elements: dashed outline, before \u2192 after, step number.`;
+  }
+  function formatVolume(cm3) {
+    return cm3 >= 100 ? cm3.toFixed(0) : cm3 >= 10 ? cm3.toFixed(1) : cm3.toFixed(2);
+  }
+  function niceLengthStep(approxMm, unit) {
+    const inUnit = lengthFromMm(approxMm, unit);
+    const step = niceStep(0, inUnit, 1);
+    return lengthToMm(step, unit);
+  }
+
+  // src/page/results_view.ts
+  function primary(shown) {
+    return shown.kind === "simulation" ? shown.result : shown.result.after;
+  }
+  var num = (v, digits = 3) => formatNumber(v, digits);
+  function cell(value, text, attrs, extraClass = "") {
+    const a = Object.entries(attrs).map(([k, v]) => ` data-${k}="${escapeXml(v)}"`).join("");
+    return `<td class="num${extraClass ? ` ${extraClass}` : ""}"${a} data-value="${value === null || value === void 0 ? "" : String(value)}">${escapeXml(text)}</td>`;
+  }
+  function summaryHtml(shown, ctx) {
+    const r = primary(shown);
+    const b = shown.kind === "optimization" ? shown.result.before : null;
+    const u = ctx.units;
+    const m = ctx.scenario.machine;
+    const target = ctx.scenario.goals?.max_imbalance_percent;
+    const item = (key, label, value, before, note, raw) => `<div class="figure" data-figure="${key}" data-value="${raw ?? ""}"><dt>${escapeXml(label)}</dt><dd>${before !== null ? `<span class="before">${escapeXml(before)} \u2192</span> ` : ""}<strong>${escapeXml(value)}</strong><small>${escapeXml(note)}</small></dd></div>`;
+    const pct = (v) => `${num(v, 3)} %`;
+    return `<dl class="figures">` + item("imbalance", "Fill-time imbalance", pct(r.imbalance_percent), b ? pct(b.imbalance_percent) : null, target !== void 0 ? `target \u2264 ${target} %` : "", r.imbalance_percent) + item("pressure", "Peak injection pressure", formatPressure(r.feed_pressure_peak_MPa, u), b ? formatPressure(b.feed_pressure_peak_MPa, u) : null, `press limit ${formatPressure(m.max_injection_pressure_MPa, u)} (${num(r.machine_pressure_share_percent, 3)} % used)`, r.feed_pressure_peak_MPa) + item("clamp", "Peak clamp force", formatForce(r.clamp_force_peak_kN, u), b ? formatForce(b.clamp_force_peak_kN, u) : null, `press rating ${formatForce(m.clamp_force_kN, u)} (${num(r.clamp_share_percent, 3)} % used)`, r.clamp_force_peak_kN) + item("runner", "Cold runner per shot", `${num(r.runner_mass_g, 3)} g`, b ? `${num(b.runner_mass_g, 3)} g` : null, `${num(r.runner_volume_cm3, 3)} cm\xB3, ${num(r.runner_share_percent, 3)} % of the ${num(r.shot_mass_g, 4)} g shot`, r.runner_mass_g) + item("fill-time", "Fill time", `${num(r.fill_time_s, 3)} s`, b ? `${num(b.fill_time_s, 3)} s` : null, r.freeze?.part_cooling_time_s ? `part cooling \u2248 ${num(r.freeze.part_cooling_time_s, 3)} s` : "", r.fill_time_s) + `</dl>`;
+  }
+  function cavityTableHtml(shown) {
+    const after = primary(shown);
+    const before = shown.kind === "optimization" ? shown.result.before : null;
+    const beforeById = new Map((before?.cavities ?? []).map((c) => [
+      c.id,
+      c
+    ]));
+    const which = before ? [
+      "before",
+      "after"
+    ] : [
+      "result"
+    ];
+    const head2 = (label) => before ? `<th scope="colgroup" colspan="2">${label}</th>` : `<th scope="col" rowspan="${before ? 2 : 1}">${label}</th>`;
+    const sub = before ? `<tr class="sub">${[
+      "fill time",
+      "fill %",
+      "gate shear",
+      "mass"
+    ].map(() => `<th scope="col">before</th><th scope="col">after</th>`).join("")}</tr>` : "";
+    const rows = after.cavities.map((c) => {
+      const bc = beforeById.get(c.id);
+      const pair = (field, text, cls) => which.map((w) => {
+        const x = w === "before" ? bc : c;
+        if (!x) return "<td>\u2013</td>";
+        return cell(x[field], text(x), {
+          cavity: c.id,
+          field: String(field),
+          which: w
+        }, cls ? cls(x) : "");
+      }).join("");
+      const shear = (x) => {
+        const ratio = x.gate_shear_rate_peak_1_s !== null && x.gate_shear_limit_1_s ? x.gate_shear_rate_peak_1_s / x.gate_shear_limit_1_s : null;
+        return `${num(x.gate_shear_rate_peak_1_s, 3)} (${ratio === null ? "\u2013" : Math.round(ratio * 100)} %)`;
+      };
+      const over = (x) => x.gate_shear_rate_peak_1_s !== null && x.gate_shear_limit_1_s !== null && x.gate_shear_rate_peak_1_s > x.gate_shear_limit_1_s ? "over" : "";
+      return `<tr data-cavity="${escapeXml(c.id)}"><th scope="row">${escapeXml(c.id)}${c.name ? ` <span class="muted">${escapeXml(c.name)}</span>` : ""}</th>` + pair("fill_time_s", (x) => num(x.fill_time_s, 4)) + pair("fill_percent_at_first_full", (x) => num(x.fill_percent_at_first_full, 4)) + pair("gate_shear_rate_peak_1_s", shear, over) + pair("mass_g", (x) => num(x.mass_g, 4)) + `<td class="num">${num(c.gate_shear_limit_1_s, 3)}</td></tr>`;
+    }).join("");
+    return `<table class="data cavities" id="cavity-table"><caption>Per cavity${before ? ": before \u2192 after" : ""}</caption><thead><tr><th scope="col" rowspan="${before ? 2 : 1}">cavity</th>${head2("fill time, s")}${head2("fill % when the first is full")}${head2("gate shear peak, 1/s (share of limit)")}${head2("part mass, g")}<th scope="col" rowspan="${before ? 2 : 1}">gate shear limit, 1/s</th></tr>${sub}</thead><tbody>${rows}</tbody></table><p class="note">Shear over the resin's limit is marked <span class="over-key">\u25B2 over</span>.</p>`;
+  }
+  function changeSizeText(c, side, units) {
+    const mm = side === "from" ? c.from_mm : c.to_mm;
+    const inch = side === "from" ? c.from_in : c.to_in;
+    return units.length === "mm" ? `${formatLength(mm, "mm")} mm (${inch.toFixed(4)} in)` : `${inch.toFixed(4)} in (${formatLength(mm, "mm")} mm)`;
+  }
+  function changeTableHtml(changes, units, options = {}) {
+    const caption = options.sheet ? "" : `<caption>Changes in order of work (each step simulated with every step before it)</caption>`;
+    if (changes.length === 0) {
+      return `<p class="empty" id="${escapeXml(options.id ?? "change-table")}">No change proposed.</p>`;
+    }
+    const rows = changes.map((c) => {
+      const t = c.after_step;
+      return `<tr data-step="${c.step}" data-element="${escapeXml(c.element)}"><td class="num step">${c.step}</td><th scope="row">${escapeXml(c.element)}</th><td>${escapeXml(c.kind)}, ${escapeXml(c.section)}</td><td>${escapeXml(c.dimension)}</td><td class="num" data-field="from" data-mm="${c.from_mm}" data-in="${c.from_in}">${escapeXml(changeSizeText(c, "from", units))}</td><td class="num" data-field="to" data-mm="${c.to_mm}" data-in="${c.to_in}"><strong>${escapeXml(changeSizeText(c, "to", units))}</strong></td><td data-field="cutter">${escapeXml(c.cutter)}</td><td data-field="steel">${c.steel_safe ? "enlarge (steel-safe)" : "<strong>ADD STEEL</strong> (weld or insert)"}</td><td>${escapeXml(c.mold_half)}</td><td class="num" data-field="imbalance" data-value="${t.imbalance_percent}">${num(t.imbalance_percent, 3)} %</td><td class="num" data-field="pressure" data-value="${t.feed_pressure_peak_MPa}">${escapeXml(formatPressure(t.feed_pressure_peak_MPa, units))}</td><td class="num" data-field="runner" data-value="${t.runner_volume_cm3}">${num(t.runner_volume_cm3, 3)}</td><td>${t.limits_met ? "yes" : "no"}</td>` + (options.sheet ? `<td class="tick-box" aria-label="done">\u2610</td>` : "") + `</tr>`;
+    }).join("");
+    return `<table class="data changes" id="${escapeXml(options.id ?? "change-table")}">` + caption + `<thead><tr><th scope="col">step</th><th scope="col">element</th><th scope="col">what</th><th scope="col">size</th><th scope="col">before</th><th scope="col">after</th><th scope="col">cutter</th><th scope="col">steel</th><th scope="col">mold half</th><th scope="col">imbalance after</th><th scope="col">peak pressure after</th><th scope="col">runner after, cm\xB3</th><th scope="col">limits met</th>` + (options.sheet ? `<th scope="col">done</th>` : "") + `</tr></thead><tbody>${rows}</tbody></table>`;
+  }
+  function fillChartSvg(result, options) {
+    const history2 = result.history ?? [];
+    const series = result.cavities.map((c, k) => {
+      const points = [];
+      for (const h of history2) {
+        const fill = h.cavity_fill_percent[k] ?? NaN;
+        points.push([
+          h.time_s ?? NaN,
+          fill
+        ]);
+        if (fill >= 100) break;
+      }
+      return {
+        label: c.id,
+        style: k,
+        points
+      };
+    });
+    const firstFull = Math.min(...result.cavities.map((c) => c.fill_time_s ?? Infinity));
+    return lineChart(series, {
+      verticals: Number.isFinite(firstFull) ? [
+        {
+          x: firstFull,
+          label: "first full"
+        }
+      ] : [],
+      title: options.title,
+      xLabel: "time, s",
+      yLabel: "cavity fill, %",
+      yDomain: [
+        0,
+        100
+      ],
+      ...options.xMax ? {
+        xDomain: [
+          0,
+          options.xMax
+        ]
+      } : {},
+      width: options.width ?? 460,
+      height: 270,
+      ...options.id ? {
+        id: options.id
+      } : {}
+    });
+  }
+  function pathProfiles(result, scenario) {
+    const nodes = new Map(scenario.nodes.map((n) => [
+      n.id,
+      n
+    ]));
+    const length = /* @__PURE__ */ new Map();
+    length.set("sprue", scenario.feed.length_mm);
+    length.set("hot_drop", scenario.feed.length_mm);
+    for (const r of scenario.runners ?? []) {
+      const a = nodes.get(r.from), b = nodes.get(r.to);
+      length.set(r.id, r.length_mm ?? (a && b ? Math.hypot(a.x_mm - b.x_mm, a.y_mm - b.y_mm) : 10));
+    }
+    for (const g of scenario.gates) length.set(g.id, g.length_mm ?? g.land_mm ?? 1);
+    for (const c of scenario.cavities) length.set(c.id, c.flow_length_mm ?? 50);
+    return (result.paths ?? []).map((p) => {
+      let x = 0;
+      let pressure = p.elements.reduce((s, e) => s + (e.pressure_drop_MPa ?? 0), 0);
+      const points = [
+        [
+          0,
+          pressure
+        ]
+      ];
+      for (const e of p.elements) {
+        x += length.get(e.id) ?? 10;
+        pressure -= e.pressure_drop_MPa ?? 0;
+        points.push([
+          x,
+          Math.max(0, pressure)
+        ]);
+      }
+      return {
+        cavity: p.cavity,
+        points,
+        ids: p.elements.map((e) => e.id)
+      };
+    });
+  }
+  function pathPressureSvg(shown, ctx) {
+    const u = ctx.units;
+    const after = primary(shown);
+    const order = new Map(after.cavities.map((c, k) => [
+      c.id,
+      k
+    ]));
+    const conv = (pts) => pts.map(([x, p]) => [
+      lengthFromMm(x, u.length),
+      pressureFromMpa(p, u.pressure)
+    ]);
+    const series = [];
+    if (shown.kind === "optimization") {
+      for (const p of pathProfiles(shown.result.before, ctx.scenario)) {
+        series.push({
+          label: `${p.cavity} before`,
+          style: order.get(p.cavity) ?? 0,
+          points: conv(p.points),
+          faint: true
+        });
+      }
+    }
+    for (const p of pathProfiles(after, ctx.scenario)) {
+      series.push({
+        label: p.cavity,
+        style: order.get(p.cavity) ?? 0,
+        points: conv(p.points)
+      });
+    }
+    return lineChart(series, {
+      title: `Pressure along each flow path at switchover${shown.kind === "optimization" ? " (after; before in grey)" : ""}`,
+      xLabel: `distance from the nozzle along the path, ${unitSymbol(u, "length")}`,
+      yLabel: `melt pressure, ${unitSymbol(u, "pressure")}`,
+      markEveryPoint: true,
+      width: 560,
+      height: 280,
+      id: "path-chart"
+    });
+  }
+  function pressChartsSvg(shown, ctx) {
+    const u = ctx.units;
+    const after = primary(shown);
+    const before = shown.kind === "optimization" ? shown.result.before : null;
+    const m = ctx.scenario.machine;
+    const frac = ctx.scenario.goals?.max_pressure_fraction ?? 0.8;
+    const hist = (r, f) => (r.history ?? []).map((h) => [
+      h.time_s ?? NaN,
+      f(h)
+    ]);
+    const p = (v) => pressureFromMpa(v ?? NaN, u.pressure);
+    const k = (v) => forceFromKn(v ?? NaN, u.force);
+    const pSeries = [];
+    const kSeries = [];
+    if (before) {
+      pSeries.push({
+        label: "before",
+        style: 6,
+        points: hist(before, (h) => p(h.feed_pressure_MPa)),
+        faint: true
+      });
+      kSeries.push({
+        label: "before",
+        style: 6,
+        points: hist(before, (h) => k(h.clamp_force_kN)),
+        faint: true
+      });
+    }
+    pSeries.push({
+      label: before ? "after" : "feed",
+      style: 0,
+      points: hist(after, (h) => p(h.feed_pressure_MPa))
+    });
+    kSeries.push({
+      label: before ? "after" : "clamp",
+      style: 1,
+      points: hist(after, (h) => k(h.clamp_force_kN))
+    });
+    const pressure = lineChart(pSeries, {
+      labelFaint: true,
+      title: "Injection pressure at the nozzle",
+      xLabel: "time, s",
+      yLabel: `pressure, ${unitSymbol(u, "pressure")}`,
+      rules: [
+        {
+          y: p(m.max_injection_pressure_MPa),
+          label: "press limit"
+        },
+        {
+          y: p(m.max_injection_pressure_MPa * frac),
+          label: `target ${Math.round(frac * 100)} %`
+        }
+      ],
+      width: 420,
+      height: 260,
+      id: "pressure-chart"
+    });
+    const clamp = lineChart(kSeries, {
+      labelFaint: true,
+      title: "Clamp force (cavities + runner)",
+      xLabel: "time, s",
+      yLabel: `force, ${unitSymbol(u, "force")}`,
+      rules: [
+        {
+          y: k(m.clamp_force_kN),
+          label: "press rating"
+        }
+      ],
+      width: 420,
+      height: 260,
+      id: "clamp-chart"
+    });
+    return pressure + clamp;
+  }
+  function warningsHtml(result) {
+    if (result.warnings.length === 0) return `<p class="empty">No warnings.</p>`;
+    return `<ul class="warnings">${result.warnings.map((w) => `<li class="${escapeXml(w.severity ?? "warning")}" data-code="${escapeXml(w.code)}"><span class="sev">${w.severity === "info" ? "note" : "warning"}</span> ${escapeXml(w.message)}</li>`).join("")}</ul>`;
+  }
+  function cautionsHtml(result) {
+    return `<ul class="cautions">${result.cautions.map((c) => `<li>${escapeXml(c)}</li>`).join("")}</ul>`;
+  }
+  var STATUS_WORDS = {
+    converged: "Goals met",
+    infeasible: "Goals not reachable within the limits",
+    iteration_limit: "Stopped at the iteration limit",
+    cancelled: "Cancelled"
+  };
+  function verdictHtml(opt) {
+    const label = STATUS_WORDS;
+    return `<div class="verdict" data-status="${escapeXml(opt.status)}"><p><strong>${escapeXml(label[opt.status] ?? opt.status)}</strong> \u2014 ${escapeXml(opt.reason)}</p>` + (opt.would_need.length ? `<p>What would make it reachable (a linear estimate, confirm by simulation):</p><ul>${opt.would_need.map((w) => `<li>${escapeXml(w)}</li>`).join("")}</ul>` : "") + (opt.snapping ? `<p class="muted">Cutters: ${escapeXml(opt.snapping)}</p>` : "") + `</div>`;
+  }
+  function seriesKeyHtml(ids) {
+    return `<ul class="series-key">${ids.map((id, k) => {
+      const s = seriesStyle(k);
+      return `<li><svg width="34" height="12" aria-hidden="true"><line x1="1" y1="6" x2="26" y2="6" stroke="${s.colour}" stroke-width="2"${s.dash ? ` stroke-dasharray="${s.dash}"` : ""}/>${markerSvg(s.marker, 29, 6, 6, s.colour)}</svg>${escapeXml(id)}</li>`;
+    }).join("")}</ul>`;
+  }
+  function changeSheetHtml(opt, options) {
+    const b = opt.before, a = opt.after;
+    const u = options.units;
+    const row = (label, x, y) => `<tr><th scope="row">${escapeXml(label)}</th><td class="num">${escapeXml(x)}</td><td class="num">${escapeXml(y)}</td></tr>`;
+    return `<article class="sheet" id="sheet"><header class="sheet-head"><div><p class="kicker">evenfill \xB7 change sheet</p><h2>${escapeXml(options.toolName)}</h2>${options.scenarioLabel ? `<p class="muted">${escapeXml(options.scenarioLabel)}</p>` : ""}</div><dl><dt>Date</dt><dd id="sheet-date">${escapeXml(options.date)}</dd><dt>Status</dt><dd>${escapeXml(opt.status)}</dd><dt>Units</dt><dd>${u.length === "mm" ? "mm (inch beside)" : "inch (mm beside)"}, ${escapeXml(unitSymbol(u, "pressure"))}</dd></dl></header><section class="sheet-layout"><h3>Layout (after; changed elements dashed, with their step)</h3>${options.layout}</section><section><h3>Changes in order of work</h3><p class="muted">Each step was simulated with every step before it. Cut one step, shoot and weigh short shots, compare with the predicted effect, then decide on the next.</p>${changeTableHtml(opt.changes, u, {
+      id: "sheet-changes",
+      sheet: true
+    })}</section><section class="sheet-effect"><h3>Predicted effect</h3><table class="data compact"><thead><tr><th></th><th scope="col">before</th><th scope="col">after all steps</th></tr></thead><tbody>` + row("fill-time imbalance", `${num(b.imbalance_percent)} %`, `${num(a.imbalance_percent)} %`) + row("peak injection pressure", formatPressure(b.feed_pressure_peak_MPa, u), formatPressure(a.feed_pressure_peak_MPa, u)) + row("peak clamp force", formatForce(b.clamp_force_peak_kN, u), formatForce(a.clamp_force_peak_kN, u)) + row("cold runner", `${num(b.runner_mass_g)} g`, `${num(a.runner_mass_g)} g`) + `</tbody></table>${verdictHtml(opt)}</section><section class="sheet-cautions"><h3>Cautions</h3>${cautionsHtml(a)}</section><section class="signoff"><h3>Sign-off</h3><div class="sign-lines">` + [
+      "Designed by",
+      "Checked by",
+      "Toolmaker",
+      "Trial shot approved"
+    ].map((who) => `<div class="sign"><span class="line"></span><span>${escapeXml(who)} \u2014 name, date</span></div>`).join("") + `</div></section></article>`;
+  }
+
+  // src/page/scenario_form.ts
+  var obj = (v) => typeof v === "object" && v !== null && !Array.isArray(v) ? v : {};
+  var numOrNull = (v) => typeof v === "number" && Number.isFinite(v) ? v : null;
+  var round = (v, digits = 6) => Number(v.toPrecision(digits));
+  function readForm(scenario, units) {
+    const s = obj(scenario);
+    const process = obj(s.process);
+    const injection = obj(process.injection);
+    const goals = obj(s.goals);
+    const melt = numOrNull(process.melt_temperature_C);
+    const mold = numOrNull(process.mold_temperature_C);
+    const material = s.material;
+    const kind = "fill_time_s" in injection ? "fill_time_s" : "flow_rate_cm3_s";
+    return {
+      material: typeof material === "string" ? material : "",
+      inlineMaterialName: typeof material === "object" && material !== null ? String(obj(material).name ?? obj(material).id ?? "inline material") : null,
+      meltTemperature: melt === null ? null : round(temperatureFromC(melt, units.temperature), 5),
+      moldTemperature: mold === null ? null : round(temperatureFromC(mold, units.temperature), 5),
+      injectionKind: kind,
+      injectionValue: numOrNull(injection[kind]),
+      mode: typeof goals.mode === "string" ? goals.mode : "new_tool",
+      maxImbalancePercent: numOrNull(goals.max_imbalance_percent),
+      cutters: Array.isArray(goals.cutters) ? "list" : typeof goals.cutters === "string" ? goals.cutters : "metric"
+    };
+  }
+  function applyFormField(scenario, field, value, units) {
+    const s = structuredClone(obj(scenario));
+    const process = obj(s.process);
+    const goals = obj(s.goals);
+    const number = Number(value);
+    const isNumber = value.trim() !== "" && Number.isFinite(number);
+    switch (field) {
+      case "material":
+        if (value) s.material = value;
+        break;
+      case "meltTemperature":
+        if (isNumber) process.melt_temperature_C = round(temperatureToC(number, units.temperature));
+        s.process = process;
+        break;
+      case "moldTemperature":
+        if (isNumber) process.mold_temperature_C = round(temperatureToC(number, units.temperature));
+        s.process = process;
+        break;
+      case "injectionKind": {
+        const injection = obj(process.injection);
+        const current = numOrNull(injection.flow_rate_cm3_s) ?? numOrNull(injection.fill_time_s);
+        if (value === "fill_time_s" || value === "flow_rate_cm3_s") {
+          process.injection = {
+            [value]: current ?? (value === "fill_time_s" ? 1 : 30)
+          };
+        }
+        s.process = process;
+        break;
+      }
+      case "injectionValue": {
+        const injection = obj(process.injection);
+        const kind = "fill_time_s" in injection ? "fill_time_s" : "flow_rate_cm3_s";
+        if (isNumber) process.injection = {
+          [kind]: number
+        };
+        s.process = process;
+        break;
+      }
+      case "mode":
+        goals.mode = value;
+        s.goals = goals;
+        break;
+      case "maxImbalancePercent":
+        if (isNumber) goals.max_imbalance_percent = number;
+        s.goals = goals;
+        break;
+      case "cutters":
+        if (value !== "list") goals.cutters = value;
+        s.goals = goals;
+        break;
+      default:
+        break;
+    }
+    return s;
+  }
+
+  // src/page/main.ts
+  var $ = (id) => {
+    const el = document.getElementById(id);
+    if (!el) throw new Error(`The page has no element #${id}`);
+    return el;
+  };
+  var state = {
+    units: loadUnits(),
+    materials: [],
+    demos: [],
+    saved: [],
+    source: {
+      kind: "none"
+    },
+    issues: [],
+    shown: null,
+    ranScenario: null,
+    jobId: null,
+    progress: [],
+    /** Imbalance target of the job being run, %. */
+    runTarget: null,
+    busy: false
+  };
+  function loadUnits() {
+    try {
+      return parseDisplayUnits(JSON.parse(localStorage.getItem("evenfill.units") ?? "null"));
+    } catch {
+      return parseDisplayUnits(null);
+    }
+  }
+  function say(message, kind = "info") {
+    const el = $("status");
+    el.textContent = message;
+    el.dataset.kind = kind;
+  }
+  var TABS = [
+    "scenario",
+    "run",
+    "results",
+    "sheet"
+  ];
+  function showTab(tab, focus = false) {
+    for (const t of TABS) {
+      const button = $(`tab-${t}`);
+      const panel = $(`panel-${t}`);
+      const on = t === tab;
+      button.setAttribute("aria-selected", String(on));
+      button.tabIndex = on ? 0 : -1;
+      panel.hidden = !on;
+    }
+    document.body.dataset.view = tab;
+    if (focus) $(`tab-${tab}`).focus();
+    if (location.hash !== `#${tab}`) history.replaceState(null, "", `#${tab}`);
+  }
+  function setupTabs() {
+    for (const t of TABS) {
+      const button = $(`tab-${t}`);
+      button.addEventListener("click", () => showTab(t));
+      button.addEventListener("keydown", (e) => {
+        const k = TABS.indexOf(t);
+        let next = null;
+        if (e.key === "ArrowRight") next = (k + 1) % TABS.length;
+        if (e.key === "ArrowLeft") next = (k - 1 + TABS.length) % TABS.length;
+        if (e.key === "Home") next = 0;
+        if (e.key === "End") next = TABS.length - 1;
+        if (next !== null) {
+          e.preventDefault();
+          showTab(TABS[next], true);
+        }
+      });
+    }
+    const fromHash = location.hash.slice(1);
+    showTab(TABS.includes(fromHash) ? fromHash : "scenario");
+  }
+  function setupUnits() {
+    for (const key of [
+      "length",
+      "pressure",
+      "force",
+      "temperature"
+    ]) {
+      const select = $(`unit-${key}`);
+      select.value = state.units[key];
+      select.addEventListener("change", () => {
+        state.units = parseDisplayUnits({
+          ...state.units,
+          [key]: select.value
+        });
+        localStorage.setItem("evenfill.units", JSON.stringify(state.units));
+        refreshForm(true);
+        renderPreview();
+        renderProgress();
+        renderResults();
+      });
+    }
+  }
+  var editor = () => $("scenario-text");
+  function setEditorText(text) {
+    editor().value = text;
+    renderGutter();
+    const value = checkEditor();
+    if (value !== null) validateOnService(text, value);
+  }
+  var checkTimer;
+  var validated = {
+    text: "",
+    ok: false
+  };
+  var validation = 0;
+  function onEditorChange() {
+    renderGutter();
+    if (checkTimer !== void 0) clearTimeout(checkTimer);
+    checkTimer = setTimeout(() => {
+      const value = checkEditor();
+      if (value !== null) validateOnService(editor().value, value);
+    }, 300);
+  }
+  async function validateOnService(text, value) {
+    if (validated.text === text) return;
+    const ticket = ++validation;
+    try {
+      const answer = await api.validate(value);
+      if (ticket !== validation || editor().value !== text) return;
+      validated = {
+        text,
+        ok: answer.ok
+      };
+      state.issues = answer.ok ? [] : placeIssues(text, answer.issues ?? []);
+      renderIssues();
+      showEditorState(answer.ok ? "ok" : "error", answer.ok ? "Scenario is valid." : `${state.issues.length} problem${state.issues.length === 1 ? "" : "s"} (checked by the service).`);
+    } catch (error) {
+      if (ticket === validation) report(error);
+    }
+  }
+  function showEditorState(kind, text) {
+    $("editor-state").textContent = text;
+    $("editor-state").dataset.kind = kind;
+  }
+  function checkEditor() {
+    if (checkTimer !== void 0) clearTimeout(checkTimer);
+    const text = editor().value;
+    const check = checkJsonSyntax(text);
+    if (!check.ok) {
+      state.issues = check.issues;
+      validated = {
+        text: "",
+        ok: false
+      };
+      renderIssues();
+      showEditorState("error", "Not valid JSON: nothing will be sent until it is fixed.");
+      return null;
+    }
+    if (validated.text !== text) {
+      state.issues = state.issues.filter((i) => i.code !== "invalid_json");
+      renderIssues();
+      showEditorState("info", "JSON is well formed; checking the scenario\u2026");
+    }
+    refreshForm(false, check.value);
+    renderPreview(check.value);
+    return check.value;
+  }
+  var LINE_HEIGHT = 20;
+  function renderGutter() {
+    const lines = editor().value.split("\n").length;
+    const byLine = new Set(state.issues.map((i) => i.span.line));
+    const out = [];
+    for (let k = 1; k <= lines; k++) {
+      out.push(byLine.has(k) ? `<span class="bad">${k}</span>` : String(k));
+    }
+    $("editor-gutter").innerHTML = out.join("\n");
+    syncScroll();
+  }
+  function renderIssues() {
+    renderGutter();
+    const marks = $("editor-marks");
+    const seen = /* @__PURE__ */ new Map();
+    marks.innerHTML = state.issues.map((i, k) => {
+      const n = seen.get(i.span.line) ?? 0;
+      seen.set(i.span.line, n + 1);
+      const top = (i.span.line - 1) * LINE_HEIGHT;
+      return `<div class="mark-band" style="top:${top}px"></div><div class="editor-note" role="note" data-line="${i.span.line}" data-at="${escapeXml(i.at)}" data-index="${k}" style="top:${top + n * LINE_HEIGHT}px">${escapeXml(i.at)}: ${escapeXml(i.message)}</div>`;
+    }).join("");
+    const list = $("issue-list");
+    list.innerHTML = state.issues.map((i, k) => `<li><button type="button" class="link" data-index="${k}" data-at="${escapeXml(i.at)}">${i.code === "invalid_json" ? escapeXml(i.at) : `line ${i.span.line}, <code>${escapeXml(i.at)}</code>`}</button> ${escapeXml(i.message)}</li>`).join("");
+    list.hidden = state.issues.length === 0;
+    syncScroll();
+  }
+  function syncScroll() {
+    const top = editor().scrollTop;
+    $("editor-gutter").scrollTop = top;
+    $("editor-marks").style.transform = `translateY(${-top}px)`;
+  }
+  function goToIssue(index) {
+    const issue = state.issues[index];
+    if (!issue) return;
+    const ta = editor();
+    ta.focus();
+    ta.setSelectionRange(issue.span.start, Math.max(issue.span.end, issue.span.start + 1));
+    ta.scrollTop = Math.max(0, (issue.span.line - 4) * LINE_HEIGHT);
+    syncScroll();
+  }
+  function setupEditor() {
+    const ta = editor();
+    ta.addEventListener("input", onEditorChange);
+    ta.addEventListener("scroll", syncScroll);
+    ta.addEventListener("keydown", (e) => {
+      if (e.key === "Tab" && !e.shiftKey && !e.ctrlKey && !e.altKey && ta.dataset.tabIndent === "on") {
+        e.preventDefault();
+        ta.setRangeText("  ", ta.selectionStart, ta.selectionEnd, "end");
+        onEditorChange();
+      }
+    });
+    $("issue-list").addEventListener("click", (e) => {
+      const b = e.target.closest("button[data-index]");
+      if (b) goToIssue(Number(b.dataset.index));
+    });
+    $("check").addEventListener("click", async () => {
+      const value = checkEditor();
+      if (value === null) {
+        say("Not valid JSON; see the editor.", "error");
+        goToIssue(0);
+        return;
+      }
+      validated = {
+        text: "",
+        ok: false
+      };
+      await validateOnService(editor().value, value);
+      say(validated.ok ? "The scenario is valid." : "The scenario has problems; see the editor.", validated.ok ? "ok" : "error");
+      if (!validated.ok) goToIssue(0);
+    });
+    $("format").addEventListener("click", () => {
+      const value = checkEditor();
+      try {
+        setEditorText(JSON.stringify(value ?? JSON.parse(editor().value), null, 2) + "\n");
+      } catch {
+        say("Fix the JSON syntax first.", "error");
+      }
+    });
+  }
+  var FORM_FIELDS = [
+    "material",
+    "meltTemperature",
+    "moldTemperature",
+    "injectionKind",
+    "injectionValue",
+    "mode",
+    "maxImbalancePercent",
+    "cutters"
+  ];
+  function currentObject() {
+    try {
+      return JSON.parse(editor().value);
+    } catch {
+      return null;
+    }
+  }
+  function refreshForm(force, value = currentObject()) {
+    if (value === null || value === void 0) return;
+    const f = readForm(value, state.units);
+    for (const field of FORM_FIELDS) {
+      const el = $(`form-${field}`);
+      if (!force && document.activeElement === el) continue;
+      const v = f[field];
+      el.value = v === null ? "" : String(v);
+    }
+    $("form-inline-material").textContent = f.inlineMaterialName ? `This scenario carries its own material: ${f.inlineMaterialName} (edit it in the JSON).` : "";
+    $("form-material").disabled = f.inlineMaterialName !== null;
+    $("form-injection-unit").textContent = f.injectionKind === "fill_time_s" ? "s" : "cm\xB3/s";
+    for (const id of [
+      "unit-melt",
+      "unit-mold"
+    ]) {
+      $(id).textContent = unitSymbol(state.units, "temperature");
+    }
+  }
+  function setupForm() {
+    for (const field of FORM_FIELDS) {
+      const el = $(`form-${field}`);
+      el.addEventListener("change", () => {
+        const value = currentObject();
+        if (value === null) {
+          say("Fix the JSON syntax before using the form.", "error");
+          return;
+        }
+        const next = applyFormField(value, field, el.value, state.units);
+        setEditorText(JSON.stringify(next, null, 2) + "\n");
+      });
+    }
+  }
+  function renderMaterials() {
+    $("form-material").innerHTML = state.materials.map((m) => `<option value="${escapeXml(m.id)}">${escapeXml(m.name)}${m.generic && !/generic/i.test(m.name) ? " (generic)" : ""}</option>`).join("");
+  }
+  function renderPreview(value = currentObject()) {
+    const holder = $("preview");
+    try {
+      const s = value;
+      if (!s || !Array.isArray(s.nodes) || !Array.isArray(s.gates) || !Array.isArray(s.cavities)) {
+        return;
+      }
+      holder.innerHTML = layoutSvg(s, {
+        lengthUnit: state.units.length,
+        id: "preview-layout"
+      }) + `<p class="note">${escapeXml(layoutKeyText(state.units.length))}</p>`;
+    } catch {
+    }
+  }
+  function renderSources() {
+    const select = $("source");
+    const keep = select.value;
+    select.innerHTML = `<optgroup label="Demo tools">${state.demos.map((d) => `<option value="demo:${escapeXml(d.id)}" data-cavities="${d.cavities}">${escapeXml(d.name)} (${d.cavities} cavities)</option>`).join("")}</optgroup>` + (state.saved.length ? `<optgroup label="Saved scenarios">${state.saved.map((s) => `<option value="saved:${escapeXml(s.id)}">${escapeXml(s.name)} (rev ${s.revision}, ${escapeXml(s.updated_at.slice(0, 16).replace("T", " "))})</option>`).join("")}</optgroup>` : "");
+    if (keep && [
+      ...select.options
+    ].some((o) => o.value === keep)) select.value = keep;
+  }
+  function sourceLabel() {
+    const s = state.source;
+    if (s.kind === "demo") return `demo ${s.id}`;
+    if (s.kind === "saved") return `saved scenario ${s.id}, revision ${s.revision}`;
+    if (s.kind === "file") return `file ${s.name}`;
+    return "new";
+  }
+  function renderSourceState() {
+    $("source-state").textContent = `Editing: ${sourceLabel()}`;
+    const saved = state.source.kind === "saved";
+    $("save").textContent = saved ? "Save revision" : "Save";
+    $("revisions-box").hidden = !saved;
+  }
+  async function openSource(value) {
+    const [kind, ...rest] = value.split(":");
+    const id = rest.join(":");
+    try {
+      if (kind === "demo") {
+        const scenario = await api.demo(id);
+        state.source = {
+          kind: "demo",
+          id
+        };
+        setEditorText(JSON.stringify(scenario, null, 2) + "\n");
+      } else if (kind === "saved") {
+        const saved = await api.scenario(id);
+        state.source = {
+          kind: "saved",
+          id,
+          revision: saved.revision
+        };
+        setEditorText(JSON.stringify(saved.scenario, null, 2) + "\n");
+        await loadRevisions();
+      }
+      renderSourceState();
+      say(`Opened ${sourceLabel()}.`);
+    } catch (error) {
+      report(error);
+    }
+  }
+  async function loadRevisions() {
+    if (state.source.kind !== "saved") return;
+    const { revisions } = await api.revisions(state.source.id);
+    $("revisions").innerHTML = revisions.slice().sort((a, b) => b.revision - a.revision).map((r) => `<option value="${r.revision}">rev ${r.revision} \xB7 ${escapeXml(r.created_at.slice(0, 19).replace("T", " "))}</option>`).join("");
+  }
+  async function refreshLists() {
+    const [materials, demos, saved] = await Promise.all([
+      api.materials(),
+      api.demos(),
+      api.scenarios()
+    ]);
+    state.materials = materials.materials;
+    state.demos = demos.demos;
+    state.saved = saved.scenarios;
+    renderMaterials();
+    renderSources();
+  }
+  function setupSources() {
+    $("open").addEventListener("click", () => openSource($("source").value));
+    $("file").addEventListener("change", async () => {
+      const input = $("file");
+      const file = input.files?.[0];
+      if (!file) return;
+      state.source = {
+        kind: "file",
+        name: file.name
+      };
+      setEditorText(await file.text());
+      renderSourceState();
+      say(`Loaded ${file.name}.`);
+      input.value = "";
+    });
+    $("download").addEventListener("click", () => {
+      const blob = new Blob([
+        editor().value
+      ], {
+        type: "application/json"
+      });
+      const a = document.createElement("a");
+      a.href = URL.createObjectURL(blob);
+      const name = currentObject()?.name ?? "scenario";
+      a.download = `${name.replace(/[^A-Za-z0-9_.-]+/g, "_").slice(0, 60)}.json`;
+      a.click();
+      setTimeout(() => URL.revokeObjectURL(a.href), 1e3);
+    });
+    $("save").addEventListener("click", () => save(false));
+    $("save-new").addEventListener("click", () => save(true));
+    $("open-revision").addEventListener("click", async () => {
+      if (state.source.kind !== "saved") return;
+      const rev = Number($("revisions").value);
+      try {
+        const r = await api.revision(state.source.id, rev);
+        setEditorText(JSON.stringify(r.scenario, null, 2) + "\n");
+        say(`Opened revision ${rev} (saving makes it the newest revision).`);
+      } catch (error) {
+        report(error);
+      }
+    });
+  }
+  async function save(asNew) {
+    const scenario = checkEditor();
+    if (scenario === null) {
+      say("Not saved: the JSON is not valid (see the editor).", "error");
+      goToIssue(0);
+      return;
+    }
+    try {
+      if (state.source.kind === "saved" && !asNew) {
+        const r = await api.updateScenario(state.source.id, scenario);
+        state.source = {
+          kind: "saved",
+          id: state.source.id,
+          revision: r.revision
+        };
+      } else {
+        const r = await api.createScenario(scenario);
+        state.source = {
+          kind: "saved",
+          id: r.id,
+          revision: r.revision
+        };
+      }
+      state.saved = (await api.scenarios()).scenarios;
+      renderSources();
+      $("source").value = `saved:${state.source.id}`;
+      await loadRevisions();
+      renderSourceState();
+      say(`Saved: ${sourceLabel()}.`, "ok");
+    } catch (error) {
+      report(error);
+    }
+  }
+  function report(error) {
+    if (error instanceof ApiError && error.status === 401) {
+      const token = globalThis.prompt("This service asks for its access token (EVENFILL_TOKEN) before changes. Token:");
+      setAccessToken(token);
+      say(token ? "Token set for this tab: try again." : `${error.message} (${error.code})`, "error");
+      return;
+    }
+    if (error instanceof ApiError) {
+      if (error.issues.length > 0) {
+        state.issues = placeIssues(editor().value, error.issues);
+        renderIssues();
+        showTab("scenario");
+        say(`The service found problems in the scenario: ${error.message}`, "error");
+        return;
+      }
+      say(`${error.message} (${error.code})`, "error");
+      return;
+    }
+    say(String(error), "error");
+  }
+  function setBusy(busy, job = false) {
+    state.busy = busy;
+    $("simulate").disabled = busy;
+    $("optimize").disabled = busy;
+    $("cancel").disabled = !(busy && job);
+  }
+  async function simulate() {
+    const scenario = checkEditor();
+    if (scenario === null) {
+      say("Nothing sent: the JSON is not valid (see the editor).", "error");
+      showTab("scenario");
+      goToIssue(0);
+      return;
+    }
+    setBusy(true);
+    $("run-state").textContent = "Simulating\u2026";
+    try {
+      const result = await api.simulate(scenario);
+      state.shown = {
+        kind: "simulation",
+        result
+      };
+      state.ranScenario = scenario;
+      renderResults();
+      $("run-state").textContent = "Simulation done.";
+      say("Simulation done.", "ok");
+      showTab("results");
+    } catch (error) {
+      $("run-state").textContent = "Simulation failed.";
+      report(error);
+    } finally {
+      setBusy(false);
+    }
+  }
+  async function optimize() {
+    const scenario = checkEditor();
+    if (scenario === null) {
+      say("Nothing sent: the JSON is not valid (see the editor).", "error");
+      showTab("scenario");
+      goToIssue(0);
+      return;
+    }
+    setBusy(true);
+    state.progress = [];
+    const goals = scenario.goals;
+    state.runTarget = goals?.max_imbalance_percent ?? null;
+    renderProgress();
+    $("run-state").textContent = "Optimization queued\u2026";
+    $("run-panel").dataset.job = "queued";
+    try {
+      const started = await api.startJob(scenario);
+      state.jobId = started.id;
+      $("run-panel").dataset.jobId = started.id;
+      setBusy(true, true);
+      const job = await watchJob(started.id, {
+        onState: (status) => {
+          $("run-state").textContent = `Optimization ${status}\u2026`;
+          $("run-panel").dataset.job = status;
+        },
+        onProgress: (p) => {
+          const last = state.progress[state.progress.length - 1];
+          if (!last || last.iteration !== p.iteration || last.simulations !== p.simulations) {
+            state.progress.push(p);
+          }
+          renderProgress();
+        }
+      });
+      $("run-panel").dataset.job = job.status;
+      if (job.status === "done" && job.result) {
+        state.shown = {
+          kind: "optimization",
+          result: job.result
+        };
+        state.ranScenario = scenario;
+        renderResults();
+        const words = STATUS_WORDS[job.result.status] ?? job.result.status;
+        $("run-state").textContent = `Optimization done: ${words}.`;
+        say(`Optimization done: ${words}.`, "ok");
+        showTab("results");
+      } else if (job.status === "cancelled") {
+        $("run-state").textContent = "Optimization cancelled.";
+        say("Optimization cancelled.");
+      } else {
+        const message = typeof job.error === "string" ? job.error : job.error?.message ?? "unknown error";
+        $("run-state").textContent = `Optimization ${job.status}: ${message}`;
+        say(`Optimization ${job.status}: ${message}`, "error");
+      }
+    } catch (error) {
+      $("run-state").textContent = "Optimization could not run.";
+      $("run-panel").dataset.job = "failed";
+      report(error);
+    } finally {
+      state.jobId = null;
+      setBusy(false);
+    }
+  }
+  function renderProgress() {
+    const p = state.progress[state.progress.length - 1];
+    const u = state.units;
+    $("progress-figures").innerHTML = p ? `<div><dt>iteration</dt><dd data-field="iteration">${p.iteration}</dd></div><div><dt>imbalance</dt><dd>${formatNumber(p.imbalance_percent, 3)} %</dd></div><div><dt>peak pressure</dt><dd>${escapeXml(formatPressure(p.feed_pressure_peak_MPa, u))}</dd></div><div><dt>runner</dt><dd>${formatNumber(p.runner_volume_cm3, 3)} cm\xB3</dd></div><div><dt>simulations</dt><dd>${p.simulations ?? "\u2013"}</dd></div>` : `<div><dt>iteration</dt><dd>\u2013</dd></div>`;
+    $("progress-chart").innerHTML = state.progress.length > 0 ? lineChart([
+      {
+        label: "imbalance",
+        style: 0,
+        points: state.progress.map((q) => [
+          q.iteration,
+          q.imbalance_percent
+        ])
+      }
+    ], {
+      title: "Imbalance per iteration",
+      xLabel: "iteration",
+      yLabel: "imbalance, %",
+      markEveryPoint: true,
+      integerX: true,
+      rules: state.runTarget === null ? [] : [
+        {
+          y: state.runTarget,
+          label: "target"
+        }
+      ],
+      width: 420,
+      height: 220
+    }) : "";
+  }
+  function setupRun() {
+    $("simulate").addEventListener("click", simulate);
+    $("optimize").addEventListener("click", optimize);
+    $("cancel").addEventListener("click", async () => {
+      if (!state.jobId) return;
+      try {
+        await api.cancelJob(state.jobId);
+        $("run-state").textContent = "Cancelling\u2026";
+      } catch (error) {
+        report(error);
+      }
+    });
+    $("print").addEventListener("click", () => globalThis.print());
+  }
+  function renderResults() {
+    const shown = state.shown, scenario = state.ranScenario;
+    const results = $("results-body");
+    const sheet = $("sheet-body");
+    if (!shown || !scenario) {
+      results.innerHTML = `<p class="empty">No result yet: simulate or optimize on the Run tab.</p>`;
+      sheet.innerHTML = `<p class="empty">The change sheet comes from an optimization: run one on the Run tab.</p>`;
+      return;
+    }
+    const ctx = {
+      scenario,
+      units: state.units
+    };
+    const r = primary(shown);
+    const opt = shown.kind === "optimization" ? shown.result : null;
+    const changes = opt?.changes ?? [];
+    const layout = (id) => layoutSvg(scenario, {
+      lengthUnit: state.units.length,
+      changes,
+      id
+    });
+    const xMax = Math.max(...[
+      opt?.before,
+      r
+    ].flatMap((x) => (x?.history ?? []).map((h) => h.time_s ?? 0)), 1e-3);
+    const ids = r.cavities.map((c) => `${c.id}${c.name ? ` ${c.name}` : ""}`);
+    results.innerHTML = `<h2 class="run-title">${escapeXml(scenario.name)} <small>${opt ? "optimization" : "simulation"}${r.material ? ` \xB7 ${escapeXml(r.material.name)}` : ""}</small></h2>` + (opt ? verdictHtml(opt) : "") + summaryHtml(shown, ctx) + `<section class="block"><h3>Layout${opt ? " after the changes" : ""}</h3>${layout("results-layout")}<p class="note">${escapeXml(layoutKeyText(state.units.length))}</p></section><section class="block"><h3>Fill history</h3>${seriesKeyHtml(ids)}<div class="charts">${opt ? fillChartSvg(opt.before, {
+      title: "Before",
+      id: "fill-before",
+      xMax
+    }) + fillChartSvg(opt.after, {
+      title: "After",
+      id: "fill-after",
+      xMax
+    }) : fillChartSvg(r, {
+      title: "Cavity fill",
+      id: "fill-result",
+      xMax
+    })}</div></section><section class="block">${cavityTableHtml(shown)}</section>` + (opt ? `<section class="block"><h3>Change list</h3>${changeTableHtml(changes, state.units, {
+      id: "change-table"
+    })}</section>` : "") + `<section class="block"><h3>Pressure along each flow path</h3>${seriesKeyHtml(ids)}<div class="charts">${pathPressureSvg(shown, ctx)}</div></section><section class="block"><h3>Against the press</h3><div class="charts">${pressChartsSvg(shown, ctx)}</div><p class="muted">Estimates: the press maker's limits and local safety practice come first.</p></section><section class="block two"><div><h3>Warnings</h3>${warningsHtml(r)}</div><div><h3>Cautions</h3>${cautionsHtml(r)}</div></section>`;
+    sheet.innerHTML = opt ? changeSheetHtml(opt, {
+      toolName: scenario.name,
+      date: (/* @__PURE__ */ new Date()).toISOString().slice(0, 10),
+      layout: layout("sheet-layout") + `<p class="note">${escapeXml(layoutKeyText(state.units.length))}</p>`,
+      units: state.units,
+      scenarioLabel: `${sourceLabel()}; mode ${scenario.goals?.mode ?? "new_tool"}; material ${opt.after.material?.name ?? ""}`
+    }) : `<p class="empty">The change sheet comes from an optimization: run one on the Run tab.</p>`;
+  }
+  async function start() {
+    setupTabs();
+    setupUnits();
+    setupEditor();
+    setupForm();
+    setupSources();
+    setupRun();
+    setBusy(false);
+    renderResults();
+    renderProgress();
+    try {
+      const health = await api.health();
+      $("version").textContent = health.version ? `service ${health.version}` : "";
+      await refreshLists();
+      const first = state.demos[0];
+      if (first) await openSource(`demo:${first.id}`);
+      $("source").value = first ? `demo:${first.id}` : "";
+      document.body.dataset.ready = "true";
+    } catch (error) {
+      report(error);
+      document.body.dataset.ready = "error";
+    }
+  }
+  start();
+})();

@@ -1,0 +1,189 @@
+import type {
+  ApiErrorBody,
+  DemoEntry,
+  Issue,
+  Job,
+  JobProgress,
+  MaterialEntry,
+  SavedEntry,
+  SimulationResult,
+} from "./wire.ts";
+
+/**
+ * The page's client of the service's JSON API (same origin). Every call
+ * returns a value or throws an {@link ApiError} carrying the service's error
+ * code, message and, for a scenario, its issue list.
+ *
+ * @module
+ */
+
+/** A failed API call. */
+export class ApiError extends Error {
+  constructor(
+    readonly status: number,
+    readonly code: string,
+    message: string,
+    readonly issues: Issue[] = [],
+  ) {
+    super(message);
+  }
+}
+
+const TOKEN_KEY = "evenfill.token";
+
+/** Remember the service's access token (EVENFILL_TOKEN) for this browser tab. */
+export function setAccessToken(token: string | null) {
+  if (token) sessionStorage.setItem(TOKEN_KEY, token);
+  else sessionStorage.removeItem(TOKEN_KEY);
+}
+
+async function call<T>(method: string, url: string, body?: unknown): Promise<T> {
+  let response: Response;
+  const headers: Record<string, string> = {};
+  if (body !== undefined) headers["content-type"] = "application/json";
+  const token = sessionStorage.getItem(TOKEN_KEY);
+  if (token && method !== "GET") headers.authorization = `Bearer ${token}`;
+  try {
+    response = await fetch(url, {
+      method,
+      headers,
+      ...(body === undefined ? {} : { body: JSON.stringify(body) }),
+    });
+  } catch (error) {
+    throw new ApiError(0, "network", `The service did not answer (${String(error)})`);
+  }
+  if (response.status === 204) return undefined as T;
+  const text = await response.text();
+  let json: unknown = null;
+  try {
+    json = text ? JSON.parse(text) : null;
+  } catch {
+    throw new ApiError(
+      response.status,
+      "bad_response",
+      `Not JSON from ${url}: ${text.slice(0, 200)}`,
+    );
+  }
+  if (!response.ok) {
+    const e = (json as ApiErrorBody | null)?.error;
+    throw new ApiError(
+      response.status,
+      e?.code ?? "http_" + response.status,
+      e?.message ?? `${method} ${url} answered ${response.status}`,
+      e?.issues ?? [],
+    );
+  }
+  return json as T;
+}
+
+/** The service's endpoints used by the page. */
+export const api = {
+  health: () => call<{ status: string; version?: string }>("GET", "/api/health"),
+  materials: () => call<{ materials: MaterialEntry[] }>("GET", "/api/materials"),
+  demos: () => call<{ demos: DemoEntry[] }>("GET", "/api/demos"),
+  demo: (id: string) => call<unknown>("GET", `/api/demos/${encodeURIComponent(id)}`),
+  scenarios: () => call<{ scenarios: SavedEntry[] }>("GET", "/api/scenarios"),
+  scenario: (id: string) =>
+    call<SavedEntry & { scenario: unknown }>("GET", `/api/scenarios/${encodeURIComponent(id)}`),
+  createScenario: (scenario: unknown) => call<SavedEntry>("POST", "/api/scenarios", scenario),
+  updateScenario: (id: string, scenario: unknown) =>
+    call<{ id: string; revision: number }>(
+      "PUT",
+      `/api/scenarios/${encodeURIComponent(id)}`,
+      scenario,
+    ),
+  revisions: (id: string) =>
+    call<{ revisions: { revision: number; name: string; created_at: string }[] }>(
+      "GET",
+      `/api/scenarios/${encodeURIComponent(id)}/revisions`,
+    ),
+  revision: (id: string, revision: number) =>
+    call<{ id: string; revision: number; scenario: unknown }>(
+      "GET",
+      `/api/scenarios/${encodeURIComponent(id)}/revisions/${revision}`,
+    ),
+  validate: (scenario: unknown) =>
+    call<{ ok: boolean; issues?: Issue[] }>("POST", "/api/validate", scenario),
+  simulate: (scenario: unknown) =>
+    call<SimulationResult>("POST", "/api/simulate?history=1", scenario),
+  startJob: (scenario: unknown, mode?: string) =>
+    call<{ id: string; status: string }>("POST", "/api/jobs", {
+      kind: "optimize",
+      scenario,
+      ...(mode ? { mode } : {}),
+    }),
+  job: (id: string) => call<Job>("GET", `/api/jobs/${encodeURIComponent(id)}`),
+  cancelJob: (id: string) => call<unknown>("POST", `/api/jobs/${encodeURIComponent(id)}/cancel`),
+};
+
+/** Handlers of a job's live events. */
+export interface JobWatch {
+  onState?: (status: string) => void;
+  onProgress?: (progress: JobProgress) => void;
+}
+
+/**
+ * Follow a job until it ends: server-sent events when the browser has them,
+ * else (or if the stream drops) polling once a second. Resolves with the
+ * final job as `GET /api/jobs/:id` returns it.
+ */
+export function watchJob(id: string, watch: JobWatch): Promise<Job> {
+  return new Promise((resolve, reject) => {
+    let finished = false;
+    let timer: ReturnType<typeof setTimeout> | undefined;
+    let source: EventSource | undefined;
+    const finish = async () => {
+      if (finished) return;
+      finished = true;
+      source?.close();
+      if (timer !== undefined) clearTimeout(timer);
+      try {
+        resolve(await api.job(id));
+      } catch (error) {
+        reject(error);
+      }
+    };
+    const poll = async () => {
+      if (finished) return;
+      try {
+        const job = await api.job(id);
+        watch.onState?.(job.status);
+        if (job.progress) watch.onProgress?.(job.progress);
+        if (job.status === "done" || job.status === "failed" || job.status === "cancelled") {
+          finished = true;
+          resolve(job);
+          return;
+        }
+      } catch (error) {
+        if (error instanceof ApiError && error.status === 404) {
+          finished = true;
+          reject(error);
+          return;
+        }
+      }
+      timer = setTimeout(poll, 1000);
+    };
+    if (typeof EventSource === "undefined") {
+      poll();
+      return;
+    }
+    source = new EventSource(`/api/jobs/${encodeURIComponent(id)}/events`);
+    source.addEventListener("state", (e) => {
+      try {
+        watch.onState?.(JSON.parse((e as MessageEvent).data).status);
+      } catch { /* a malformed event is skipped; the final GET is authoritative */ }
+    });
+    source.addEventListener("progress", (e) => {
+      try {
+        watch.onProgress?.(JSON.parse((e as MessageEvent).data));
+      } catch { /* as above */ }
+    });
+    source.addEventListener("end", () => finish());
+    source.onerror = () => {
+      if (finished) return;
+      source?.close();
+      source = undefined;
+      poll();
+    };
+  });
+}

@@ -1,0 +1,178 @@
+/**
+ * The parts of the service's JSON the page reads (`evenfill.result/1`,
+ * `evenfill.optimization/1`, jobs, store listings). Declared here, not
+ * imported from `report/`, so the page's bundle depends on the wire format
+ * only; `tests/page/wire_test.ts` checks the report's output fits these types.
+ *
+ * @module
+ */
+
+/** One cavity of a result. */
+export interface CavityResult {
+  id: string;
+  name?: string;
+  fill_time_s: number | null;
+  fill_percent_at_first_full: number | null;
+  fill_percent_at_switchover?: number | null;
+  gate?: string;
+  gate_shear_rate_peak_1_s: number | null;
+  gate_shear_limit_1_s: number | null;
+  gate_pressure_drop_MPa?: number | null;
+  mass_g: number | null;
+}
+
+/** One element of a result. */
+export interface ElementResult {
+  id: string;
+  kind: string;
+  pressure_drop_end_MPa: number | null;
+  wall_shear_rate_peak_1_s?: number | null;
+  volume_cm3?: number | null;
+}
+
+/** A warning in plain words. */
+export interface ResultWarning {
+  code: string;
+  severity?: string;
+  element?: string;
+  message: string;
+}
+
+/** One sample of the fill history. */
+export interface HistorySample {
+  time_s: number | null;
+  injected_cm3?: number | null;
+  feed_pressure_MPa: number | null;
+  clamp_force_kN: number | null;
+  cavity_fill_percent: (number | null)[];
+}
+
+/** `evenfill.result/1`. */
+export interface SimulationResult {
+  format: string;
+  scenario?: string;
+  material?: { id: string; name: string; generic?: boolean; source?: string };
+  fill_time_s: number | null;
+  imbalance_percent: number | null;
+  feed_pressure_peak_MPa: number | null;
+  machine_pressure_share_percent?: number | null;
+  clamp_force_peak_kN: number | null;
+  clamp_share_percent?: number | null;
+  shot_mass_g: number | null;
+  runner_volume_cm3: number | null;
+  runner_mass_g: number | null;
+  runner_share_percent?: number | null;
+  cavities: CavityResult[];
+  elements: ElementResult[];
+  paths?: {
+    cavity: string;
+    elements: { id: string; pressure_drop_MPa: number | null }[];
+    total_MPa: number | null;
+  }[];
+  freeze?: { part_cooling_time_s: number | null; runner_cooling_time_s: number | null };
+  warnings: readonly ResultWarning[];
+  cautions: readonly string[];
+  history?: HistorySample[];
+}
+
+/** One entry of the change list, in order of work. */
+export interface ChangeEntry {
+  element: string;
+  kind: string;
+  section: string;
+  dimension: string;
+  from_mm: number;
+  to_mm: number;
+  from_in: number;
+  to_in: number;
+  cutter: string;
+  steel_safe: boolean;
+  mold_half: string;
+  step: number;
+  after_step: {
+    imbalance_percent: number;
+    feed_pressure_peak_MPa: number;
+    runner_volume_cm3: number;
+    limits_met: boolean;
+  };
+}
+
+/** One optimizer iteration. */
+export interface IterationEntry {
+  iteration: number;
+  accepted: boolean;
+  imbalance_percent: number;
+  feed_pressure_peak_MPa: number;
+  runner_volume_cm3: number;
+  simulations?: number;
+}
+
+/** `evenfill.optimization/1`. */
+export interface OptimizationResult {
+  format: string;
+  status: string;
+  reason: string;
+  would_need: string[];
+  snapping: string | null;
+  simulations?: number;
+  before: SimulationResult;
+  after: SimulationResult;
+  changes: ChangeEntry[];
+  iterations: IterationEntry[];
+}
+
+/** Live progress of a job. */
+export interface JobProgress {
+  iteration: number;
+  accepted?: boolean;
+  imbalance_percent: number;
+  feed_pressure_peak_MPa: number;
+  runner_volume_cm3: number;
+  simulations?: number;
+}
+
+/** A job as `GET /api/jobs/:id` returns it. */
+export interface Job {
+  id: string;
+  status: "queued" | "running" | "done" | "failed" | "cancelled";
+  progress: JobProgress | null;
+  result: OptimizationResult | null;
+  error: unknown;
+}
+
+/** One validation issue. */
+export interface Issue {
+  at: string;
+  path: (string | number)[];
+  code: string;
+  message: string;
+}
+
+/** The error body of the API. */
+export interface ApiErrorBody {
+  error: { code: string; message: string; issues?: Issue[] };
+}
+
+/** A library material. */
+export interface MaterialEntry {
+  id: string;
+  name: string;
+  generic?: boolean;
+  source?: string;
+  max_shear_rate_1_s?: number;
+}
+
+/** A demo listing. */
+export interface DemoEntry {
+  id: string;
+  name: string;
+  cavities: number;
+}
+
+/** A saved scenario listing. */
+export interface SavedEntry {
+  id: string;
+  name: string;
+  revision: number;
+  updated_at: string;
+}

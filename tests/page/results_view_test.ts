@@ -1,0 +1,140 @@
+import assert from "node:assert/strict";
+import { simulateScenario } from "../../src/network/simulate_scenario.ts";
+import { resultJson } from "../../src/report/result_json.ts";
+import type { optimizationJson } from "../../src/report/optimization_report.ts";
+import { METRIC_UNITS } from "../../src/page/display_units.ts";
+import {
+  cavityTableHtml,
+  changeSheetHtml,
+  changeSizeText,
+  changeTableHtml,
+  fillChartSvg,
+  pathPressureSvg,
+  pathProfiles,
+  pressChartsSvg,
+  summaryHtml,
+  warningsHtml,
+} from "../../src/page/results_view.ts";
+import type { ChangeEntry, OptimizationResult, SimulationResult } from "../../src/page/wire.ts";
+import { assertClose } from "../assert_close.ts";
+
+// The page's wire types must accept what the report module produces (compile-time check).
+type Fits<A, B> = A extends B ? true : false;
+const optimizationFits: Fits<ReturnType<typeof optimizationJson>, OptimizationResult> = true;
+
+const scenario = JSON.parse(
+  await Deno.readTextFile(new URL("../../scenarios/family_four_housing.json", import.meta.url)),
+);
+
+function simulated(input: unknown = scenario): SimulationResult {
+  const outcome = simulateScenario(input);
+  if (!outcome.ok) throw new Error("demo should simulate");
+  const json: SimulationResult = resultJson(outcome.run, { history: true });
+  return json;
+}
+
+const units = METRIC_UNITS;
+
+Deno.test("the report's JSON fits the page's wire types", () => {
+  assert.equal(optimizationFits, true);
+  const r = simulated();
+  assert.equal(r.cavities.length, 4);
+  assert.ok((r.history ?? []).length > 2);
+});
+
+Deno.test("per-cavity table: one row per cavity with the API's raw values", () => {
+  const r = simulated();
+  const html = cavityTableHtml({ kind: "simulation", result: r });
+  for (const c of r.cavities) {
+    assert.ok(
+      html.includes(
+        `data-cavity="${c.id}" data-field="fill_time_s" data-which="result" data-value="${c.fill_time_s}"`,
+      ),
+      c.id,
+    );
+  }
+  // the demo's tunnel gates over-shear: flagged in a way that prints (▲ via CSS class)
+  assert.ok(html.includes('class="num over"'));
+});
+
+Deno.test("pressure along a path starts at the path's total and ends at zero", () => {
+  const r = simulated();
+  const profiles = pathProfiles(r, scenario);
+  assert.equal(profiles.length, 4);
+  for (const p of profiles) {
+    const path = r.paths!.find((x) => x.cavity === p.cavity)!;
+    assertClose(p.points[0][1], path.total_MPa!, { rel: 1e-5 }); // JSON rounds to 6 digits
+    assertClose(p.points[p.points.length - 1][1], 0, { abs: 1e-9 });
+    // distance grows by each element's length: sprue 60 mm first
+    assert.equal(p.points[1][0], 60);
+  }
+});
+
+Deno.test("charts and summary render for a simulation", () => {
+  const r = simulated();
+  const shown = { kind: "simulation" as const, result: r };
+  const ctx = { scenario, units };
+  assert.equal((fillChartSvg(r, { title: "x" }).match(/class="series"/g) ?? []).length, 4);
+  assert.ok(pathPressureSvg(shown, ctx).includes("distance from the nozzle"));
+  const press = pressChartsSvg(shown, ctx);
+  assert.ok(press.includes("press limit") && press.includes("press rating"));
+  assert.ok(summaryHtml(shown, ctx).includes('data-figure="clamp"'));
+  assert.ok(warningsHtml(r).includes("gate_shear_over_limit"));
+});
+
+const change: ChangeEntry = {
+  element: "R4",
+  kind: "runner",
+  section: "round",
+  dimension: "diameter",
+  from_mm: 5,
+  to_mm: 7,
+  from_in: 0.19685,
+  to_in: 0.27559,
+  cutter: "7 mm",
+  steel_safe: true,
+  mold_half: "both",
+  step: 1,
+  after_step: {
+    imbalance_percent: 8.592,
+    feed_pressure_peak_MPa: 105.83,
+    runner_volume_cm3: 6.6488,
+    limits_met: false,
+  },
+};
+
+Deno.test("change list: mm and inch side by side, cutter, steel, effect of the step", () => {
+  assert.equal(changeSizeText(change, "to", units), "7 mm (0.2756 in)");
+  assert.equal(changeSizeText(change, "to", { ...units, length: "in" }), "0.2756 in (7 mm)");
+  const html = changeTableHtml([change, { ...change, step: 2, steel_safe: false }], units);
+  assert.ok(html.includes('data-step="1" data-element="R4"'));
+  assert.ok(html.includes("7 mm"));
+  assert.ok(html.includes("ADD STEEL"));
+  assert.ok(html.includes('data-field="imbalance" data-value="8.592"'));
+});
+
+Deno.test("change sheet: header, layout, changes, effect, cautions, sign-off", () => {
+  const r = simulated();
+  const opt: OptimizationResult = {
+    format: "evenfill.optimization/1",
+    status: "converged",
+    reason: "imbalance within target",
+    would_need: [],
+    snapping: null,
+    before: r,
+    after: r,
+    changes: [change],
+    iterations: [],
+  };
+  const html = changeSheetHtml(opt, {
+    toolName: "Four-part housing",
+    date: "2026-12-02",
+    layout: "<svg></svg>",
+    units,
+  });
+  for (const text of ["Four-part housing", "2026-12-02", "<svg></svg>", "Sign-off", "Cautions"]) {
+    assert.ok(html.includes(text), text);
+  }
+  for (const caution of r.cautions) assert.ok(html.includes(caution.slice(0, 30)));
+  assert.ok(html.includes('id="sheet-changes"'));
+});
