@@ -4,7 +4,11 @@ import { applyDesign, type DesignSpace, designSpace } from "./design_space.ts";
 import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
 import { createHighsSolver } from "./highs_solver.ts";
 import type { LpSolver } from "./lp_solver.ts";
-import { finiteDifferenceSensitivities, type Sensitivities } from "./sensitivities.ts";
+import {
+  broydenSensitivities,
+  finiteDifferenceSensitivities,
+  type Sensitivities,
+} from "./sensitivities.ts";
 import { snapDesign, type SnapReport } from "./snap_design.ts";
 import { cutterCatalogue } from "./cutters.ts";
 import {
@@ -185,6 +189,7 @@ export async function optimizeBalance(
   let reason = `stopped after ${maxIterations} iterations`;
   let lastLinear: { sens: Sensitivities; program: ReturnType<typeof formulateStep> } | undefined;
   let sens: Sensitivities | undefined;
+  let sensAge = 0;
 
   for (let iteration = 1; iteration <= maxIterations; iteration++) {
     if (options.cancelled?.()) {
@@ -206,6 +211,7 @@ export async function optimizeBalance(
       }
       simulations += s.simulations;
       sens = s;
+      sensAge = 0;
     }
     // The LP aims inside the band (70 % of the target) so that linearisation and simulation
     // noise at the 1e-4 level do not leave the accepted design a hair outside it.
@@ -284,9 +290,15 @@ export async function optimizeBalance(
       accepted = predicted > 0 && actual >= 0.1 * predicted;
       if (accepted) {
         const good = actual >= 0.75 * predicted;
+        const previous = current;
         current = trial;
         currentOutcome = trialResult;
-        sens = undefined;
+        // A step the linear model predicted well carries its slopes forward by a Broyden
+        // update; otherwise, and at least every third iteration, fresh finite differences.
+        if (good && sensAge < 2 && sens) {
+          sens = broydenSensitivities(space, sens, previous, trial);
+          sensAge++;
+        } else sens = undefined;
         if (good && step.atEdge) radius = Math.min(0.5, radius * 2);
       } else radius *= 0.5;
     } else radius *= 0.5;

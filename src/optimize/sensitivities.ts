@@ -82,3 +82,57 @@ export function finiteDifferenceSensitivities(
   }
   return { fillTime, gateShear, pressure, runnerVolume, simulations };
 }
+
+/**
+ * Carry sensitivities from design `from` to design `to` without simulating: a
+ * Broyden rank-one update in log measure (Broyden (1965) Math. Comp. 19:577), so
+ * that the updated slopes reproduce the change the two simulations showed,
+ * ln r(to) − ln r(from) = L·(ln x(to) − ln x(from)), for the split fill times and
+ * the reference pressure. Gate-shear slopes follow from the fill-time slopes by the
+ * mean-flow law above; runner-volume slopes are geometry and are recomputed exactly.
+ */
+export function broydenSensitivities(
+  space: DesignSpace,
+  s: Sensitivities,
+  from: DesignEvaluation,
+  to: DesignEvaluation,
+): Sensitivities {
+  const n = space.variables.length;
+  const dlx = Array.from({ length: n }, (_, j) => Math.log(to.x[j] / from.x[j]));
+  const norm = dlx.reduce((sum, d) => sum + d * d, 0);
+  // Log slopes at `from`, updated, then returned to absolute slopes at `to`.
+  const update = (row: readonly number[], r0: number, r1: number, base: number): number[] => {
+    const logRow = row.map((g, j) => (g * from.x[j]) / r0);
+    if (norm > 0 && r0 > 0 && r1 > 0) {
+      const miss = Math.log(r1 / r0) - logRow.reduce((sum, g, j) => sum + g * dlx[j], 0);
+      for (let j = 0; j < n; j++) logRow[j] += (miss * dlx[j]) / norm;
+    }
+    return logRow.map((g, j) => (g * base) / to.x[j]);
+  };
+  const fillTime = s.fillTime.map((row, i) =>
+    update(row, from.splitFillTimes[i], to.splitFillTimes[i], to.splitFillTimes[i])
+  );
+  const gateShear = fillTime.map((row, i) =>
+    row.map((g, j) => {
+      const v = space.variables[j];
+      let logSlope = -(g * to.x[j]) / to.splitFillTimes[i];
+      if (v.kind === "gate" && space.gateCavity[j] === i) {
+        logSlope -= v.dimension === "thickness" ? 2 : 3;
+      }
+      return (logSlope * to.gateShearBalanced[i]) / to.x[j];
+    })
+  );
+  const pressure = update(
+    s.pressure.map((g) => (g * from.feedPressureReference) / from.feedPressurePeak),
+    from.feedPressureReference,
+    to.feedPressureReference,
+    to.feedPressurePeak,
+  );
+  const runnerVolume = space.variables.map((_, j) => {
+    const h = FD_RELATIVE_STEP * to.x[j];
+    const x = Float64Array.from(to.x);
+    x[j] += h;
+    return (runnerVolumeOf(space, x) - to.runnerVolume) / h;
+  });
+  return { fillTime, gateShear, pressure, runnerVolume, simulations: 0 };
+}
