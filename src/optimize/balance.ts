@@ -125,6 +125,8 @@ export type BalanceResult =
 export const LP_BAND_SHARE = 0.7;
 /** Share of the gate-shear and pressure limits the linear model aims for (room to snap). */
 export const LP_LIMIT_SHARE = 0.97;
+/** Relax-and-fix of the runner cutters is tried up to this many adjustable runners. */
+export const RELAX_AND_FIX_MAX_RUNNERS = 8;
 
 /** Balance a validated scenario. */
 export async function optimizeBalance(
@@ -408,7 +410,10 @@ export async function optimizeBalance(
       }
     }
   }
-  if (snapping && !after.feasible) {
+  // Relax-and-fix costs one short SLP per runner (each with its own slopes): kept to
+  // tools with few adjustable runners, where it pays.
+  const runnerCount = space.variables.filter((v) => v.kind === "runner").length;
+  if (snapping && !after.feasible && runnerCount <= RELAX_AND_FIX_MAX_RUNNERS) {
     const fixedOutcome = await relaxAndFixRunners(scenario, space, current, {
       solver: options.solver,
       cancelled: options.cancelled,
