@@ -1470,7 +1470,9 @@
     for (const c of scenario.cavities) length.set(c.id, c.flow_length_mm ?? 50);
     return (result.paths ?? []).map((p) => {
       let x = 0;
-      let pressure = p.elements.reduce((s, e) => s + (e.pressure_drop_MPa ?? 0), 0);
+      const firstFull = p.elements.every((e) => typeof e.pressure_drop_first_full_MPa === "number");
+      const drop = (e) => (firstFull ? e.pressure_drop_first_full_MPa : e.pressure_drop_MPa) ?? 0;
+      let pressure = p.elements.reduce((s, e) => s + drop(e), 0);
       const points = [
         [
           0,
@@ -1479,7 +1481,7 @@
       ];
       for (const e of p.elements) {
         x += length.get(e.id) ?? 10;
-        pressure -= e.pressure_drop_MPa ?? 0;
+        pressure -= drop(e);
         points.push([
           x,
           Math.max(0, pressure)
@@ -1522,7 +1524,7 @@
       });
     }
     return lineChart(series, {
-      title: `Pressure along each flow path at switchover${shown.kind === "optimization" ? " (after; before in grey)" : ""}`,
+      title: `Pressure along each flow path as the first cavity fills${shown.kind === "optimization" ? " (after; before in grey)" : ""}`,
       xLabel: `distance from the nozzle along the path, ${unitSymbol(u, "length")}`,
       yLabel: `melt pressure, ${unitSymbol(u, "pressure")}`,
       markEveryPoint: true,

@@ -29,6 +29,11 @@ export interface ElementFigures {
   kind: ElementKind;
   /** Pressure drop along the element at switchover (end of the velocity phase), Pa. */
   pressureDropAtSwitchover: number;
+  /**
+   * Pressure drop along the element just as the first cavity fills, when every path
+   * still carries flow, Pa (NaN if no cavity filled).
+   */
+  pressureDropAtFirstFull: number;
   /** Flow through the element at switchover, m³/s. */
   flowAtSwitchover: number;
   /** Peak true wall shear rate up to switchover, 1/s. */
@@ -74,13 +79,15 @@ export interface CavityFigures {
   inletPressureAtSwitchover: number;
 }
 
-/** Pressure drops along one flow path (injection point → cavity) at switchover. */
+/** Pressure drops along one flow path (injection point → cavity). */
 export interface FlowPath {
   cavity: string;
   /** Element ids from the feed to the cavity. */
   elements: string[];
-  /** Each element's pressure drop, Pa. */
+  /** Each element's pressure drop at switchover, Pa. */
   pressureDrops: number[];
+  /** Each element's pressure drop as the first cavity fills (every path flowing), Pa. */
+  pressureDropsAtFirstFull: number[];
 }
 
 /** How the transient solve went. */

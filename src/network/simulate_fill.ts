@@ -404,6 +404,8 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
   const apparentPeak = new Float64Array(E);
   const cavityFullTime = network.cavities.map(() => NaN);
   let fillAtFirstFull: number[] | undefined;
+  /** Each element's pressure drop just as the first cavity fills (every path flowing), Pa. */
+  let dropsAtFirstFull: Float64Array | undefined;
   let atSwitchover: Solved | undefined;
   let feedPressurePeak = 0;
   let clampForcePeak = 0;
@@ -678,7 +680,13 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
       const el = elements[e];
       if (el.kind === "cavity") {
         cavityFullTime[el.cavity] = t;
-        if (!fillAtFirstFull) fillAtFirstFull = cavityFill();
+        if (!fillAtFirstFull) {
+          fillAtFirstFull = cavityFill();
+          dropsAtFirstFull = new Float64Array(E);
+          accepted.s1.assembly.branches.forEach((br, k) => {
+            dropsAtFirstFull![br.element] = accepted.s1.channel[k].pressureDrop;
+          });
+        }
       } else {
         wet(el.to, t);
         wet(el.from, t);
@@ -721,6 +729,7 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
       id: e.id,
       kind: e.kind,
       pressureDropAtSwitchover: k >= 0 ? sw.channel[k].pressureDrop : 0,
+      pressureDropAtFirstFull: dropsAtFirstFull ? dropsAtFirstFull[e.index] : NaN,
       flowAtSwitchover: k >= 0 ? sw.flows[k] : 0,
       wallShearRatePeak: shearPeak[e.index],
       wallShearRatePeakBeforeFirstFull: shearPeakEarly[e.index],
@@ -938,6 +947,7 @@ function flowPaths(network: FeedNetwork, figures: readonly ElementFigures[]): Fl
         cavity: c.id,
         elements: chain.map((k) => network.elements[k].id),
         pressureDrops: chain.map((k) => figures[k].pressureDropAtSwitchover),
+        pressureDropsAtFirstFull: chain.map((k) => figures[k].pressureDropAtFirstFull),
       });
     }
   }

@@ -431,6 +431,10 @@ export async function optimizeBalance(
       }
     }
   }
+  if (status === "converged" && !after.feasible) {
+    reason += "; the continuous optimum meets every limit but the design in cutter sizes does " +
+      `not (${after.violations.map((v) => v.message).join("; ")}): see the cutter line`;
+  }
   return {
     ok: true,
     outcome: {

@@ -293,7 +293,10 @@ export function fillChartSvg(
   });
 }
 
-/** Cumulative position (mm) and pressure (MPa) along each cavity's flow path, at switchover. */
+/**
+ * Cumulative position (mm) and pressure (MPa) along each cavity's flow path as the first
+ * cavity fills, when every path still carries flow (at switchover, for results that lack it).
+ */
 export function pathProfiles(
   result: SimulationResult,
   scenario: ScenarioForViews,
@@ -313,18 +316,21 @@ export function pathProfiles(
   for (const c of scenario.cavities) length.set(c.id, c.flow_length_mm ?? 50);
   return (result.paths ?? []).map((p) => {
     let x = 0;
-    let pressure = p.elements.reduce((s, e) => s + (e.pressure_drop_MPa ?? 0), 0);
+    const firstFull = p.elements.every((e) => typeof e.pressure_drop_first_full_MPa === "number");
+    const drop = (e: (typeof p.elements)[number]) =>
+      (firstFull ? e.pressure_drop_first_full_MPa : e.pressure_drop_MPa) ?? 0;
+    let pressure = p.elements.reduce((s, e) => s + drop(e), 0);
     const points: [number, number][] = [[0, pressure]];
     for (const e of p.elements) {
       x += length.get(e.id) ?? 10;
-      pressure -= e.pressure_drop_MPa ?? 0;
+      pressure -= drop(e);
       points.push([x, Math.max(0, pressure)]);
     }
     return { cavity: p.cavity, points, ids: p.elements.map((e) => e.id) };
   });
 }
 
-/** Pressure along each flow path at switchover (after; before faint), as SVG. */
+/** Pressure along each flow path as the first cavity fills (after; before faint), as SVG. */
 export function pathPressureSvg(shown: Shown, ctx: RunContext): string {
   const u = ctx.units;
   const after = primary(shown);
@@ -348,7 +354,7 @@ export function pathPressureSvg(shown: Shown, ctx: RunContext): string {
     series.push({ label: p.cavity, style: order.get(p.cavity) ?? 0, points: conv(p.points) });
   }
   return lineChart(series, {
-    title: `Pressure along each flow path at switchover${
+    title: `Pressure along each flow path as the first cavity fills${
       shown.kind === "optimization" ? " (after; before in grey)" : ""
     }`,
     xLabel: `distance from the nozzle along the path, ${unitSymbol(u, "length")}`,

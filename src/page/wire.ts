@@ -66,8 +66,13 @@ export interface SimulationResult {
   elements: ElementResult[];
   paths?: {
     cavity: string;
-    elements: { id: string; pressure_drop_MPa: number | null }[];
+    elements: {
+      id: string;
+      pressure_drop_MPa: number | null;
+      pressure_drop_first_full_MPa?: number | null;
+    }[];
     total_MPa: number | null;
+    total_first_full_MPa?: number | null;
   }[];
   freeze?: { part_cooling_time_s: number | null; runner_cooling_time_s: number | null };
   warnings: readonly ResultWarning[];

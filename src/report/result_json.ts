@@ -76,8 +76,12 @@ export function resultJson(run: ScenarioRun, options: { history?: boolean } = {}
       elements: p.elements.map((id, k) => ({
         id,
         pressure_drop_MPa: round(paToMpa(p.pressureDrops[k])),
+        pressure_drop_first_full_MPa: round(paToMpa(p.pressureDropsAtFirstFull[k])),
       })),
       total_MPa: round(paToMpa(p.pressureDrops.reduce((a, b) => a + b, 0))),
+      total_first_full_MPa: round(
+        paToMpa(p.pressureDropsAtFirstFull.reduce((a, b) => a + b, 0)),
+      ),
     })),
     freeze: {
       part_cooling_time_s: round(freeze.partCoolingTime, 4),

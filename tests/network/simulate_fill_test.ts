@@ -246,3 +246,16 @@ Deno.test("bad topology and bad input return errors, never a crash", async () =>
     );
   } else assert.fail("expected invalid_scenario");
 });
+
+Deno.test("as the first cavity fills, every flow path drops the same total: feed pressure to a 0 Pa front", async () => {
+  // Kirchhoff's loop rule on the network: each path from the injection point ends at a melt
+  // front held at 0 Pa, so the drops along every path add up to the same feed pressure.
+  for (const name of ["family_four_housing.json", "hot_drop_eight_caps.json"]) {
+    const r = run(await demo(name));
+    const totals = r.fill.paths.map((p) => p.pressureDropsAtFirstFull.reduce((a, b) => a + b, 0));
+    assert.ok(totals.every((t) => t > 0), `${name}: ${totals}`);
+    for (const t of totals) {
+      assertClose(t, totals[0], { rel: 1e-6, what: `${name}: path totals at first full` });
+    }
+  }
+});
