@@ -108,6 +108,8 @@ export function resultJson(run: ScenarioRun, options: { history?: boolean } = {}
         : "no-flow conduction solution at min(mean contact time, half residence time)",
       fill_time_basis:
         "cavity fill times at the set injection rate continued past switchover; peaks are taken up to switchover",
+      gate_shear_basis:
+        "peak true wall shear while the gate runs full (its cavity filling), up to switchover; the front's transit through the land is left out",
     },
     diagnostics: fill.diagnostics,
     ...(options.history
