@@ -1,5 +1,5 @@
 import type { Scenario } from "../model/scenario_schema.ts";
-import { mToMm } from "../model/units.ts";
+import { mmToM, mToMm } from "../model/units.ts";
 import { applyDesign, type DesignSpace, designSpace } from "./design_space.ts";
 import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
 import { createHighsSolver } from "./highs_solver.ts";
@@ -454,8 +454,8 @@ export async function optimizeBalance(
 
 /**
  * For an infeasible outcome: solve the last linear model again with the mode's and
- * the size rules' bounds lifted (scenario min/max only, a generous region) and list
- * the sizes that would have to leave today's bounds.
+ * the size rules' bounds lifted (a generous region, 0.3–3 × today's sizes), leaving
+ * them at a cost, and list the sizes that would have to leave today's bounds.
  */
 async function explainInfeasible(
   space: DesignSpace,
@@ -465,7 +465,14 @@ async function explainInfeasible(
   o: { epsilon: number; V0: number },
 ): Promise<string[]> {
   const lower = space.variables.map((v) => v.current * 0.3);
-  const upper = space.variables.map((v) => v.current * 3);
+  // A gate never deeper than its cavity's wall, even with the rules lifted.
+  const wallOf = (v: (typeof space.variables)[number]) => {
+    const cavity = space.scenario.gates[v.index].cavity;
+    return mmToM(space.scenario.cavities.find((c) => c.id === cavity)!.wall_mm);
+  };
+  const upper = space.variables.map((v) =>
+    v.kind === "gate" ? Math.min(v.current * 3, wallOf(v)) : v.current * 3
+  );
   const program = formulateStep(space, e, s, {
     radius: 1,
     epsilon: o.epsilon,
@@ -473,7 +480,27 @@ async function explainInfeasible(
     V0: o.V0,
     bounds: { lower, upper },
   });
-  const lp = await solver.solve(program.lp, { timeLimitSeconds: 20 });
+  // Leaving today's bounds costs 1 per unit of log size (above the volume's cost, below a
+  // limit's penalty), so the answer names the fewest, smallest moves out of them.
+  const variables = [...program.lp.variables];
+  const rows = [...program.lp.rows];
+  space.variables.forEach((v, j) => {
+    variables.push({ name: `over_${v.element}`, lower: 0, upper: Infinity, cost: 1 });
+    rows.push({
+      name: `within_upper_${v.element}`,
+      terms: [[j, 1], [variables.length - 1, -1]],
+      lower: -Infinity,
+      upper: Math.log(v.upper / e.x[j]),
+    });
+    variables.push({ name: `under_${v.element}`, lower: 0, upper: Infinity, cost: 1 });
+    rows.push({
+      name: `within_lower_${v.element}`,
+      terms: [[j, 1], [variables.length - 1, 1]],
+      lower: Math.log(v.lower / e.x[j]),
+      upper: Infinity,
+    });
+  });
+  const lp = await solver.solve({ ...program.lp, variables, rows }, { timeLimitSeconds: 20 });
   if (lp.status !== "optimal") return [];
   const proposal = space.variables.map((_, j) => e.x[j] * Math.exp(lp.x[j]));
   const needs: string[] = [];
