@@ -24,6 +24,11 @@ export interface DesignVariable {
   /** Bounds, m, after scenario limits, size rules and mode. */
   lower: number;
   upper: number;
+  /**
+   * The smallest cutter size acceptable when snapping, m: `lower`, except that a
+   * rule-of-thumb lower bound may be undercut by {@link RULE_CUTTER_TOLERANCE}.
+   */
+  cutterLower: number;
   /** Why the bounds are what they are, for an infeasibility report. */
   lowerReason: string;
   upperReason: string;
@@ -46,6 +51,13 @@ export interface DesignSpace {
   conflicts: string[];
 }
 
+/**
+ * How far a cutter may fall under a rule-of-thumb lower bound (a 5/32 in cutter, 3.97 mm,
+ * for a 4.0 mm rule): 3 %, our own judgement, no source. Scenario limits and steel-safe
+ * floors are never undercut.
+ */
+export const RULE_CUTTER_TOLERANCE = 0.03;
+
 /** Runner-size rule: runner ≥ wall + 1.5 mm (common practice, no source). */
 export const RUNNER_OVER_WALL_MM = 1.5;
 /** Tunnel and pin gate diameter 25–60 % of the wall (common practice, no source). */
@@ -63,7 +75,7 @@ export function designSpace(scenario: Scenario): DesignSpace {
   const conflicts: string[] = [];
 
   const push = (
-    v: Omit<DesignVariable, "lower" | "upper" | "lowerReason" | "upperReason">,
+    v: Omit<DesignVariable, "lower" | "upper" | "lowerReason" | "upperReason" | "cutterLower">,
     bounds: {
       lower: [number, string][];
       upper: [number, string][];
@@ -92,7 +104,13 @@ export function designSpace(scenario: Scenario): DesignSpace {
         } mm)`,
       );
     }
-    variables.push({ ...v, lower, upper, lowerReason, upperReason });
+    // Rules of thumb are not sharp: a cutter a few percent under one is acceptable.
+    let cutterLower = -Infinity;
+    for (const [value, why] of bounds.lower) {
+      const soft = why.endsWith(" rule") ? value * (1 - RULE_CUTTER_TOLERANCE) : value;
+      cutterLower = Math.max(cutterLower, soft);
+    }
+    variables.push({ ...v, lower, upper, lowerReason, upperReason, cutterLower });
   };
 
   const { parentOf } = runnerTree(scenario);

@@ -99,7 +99,7 @@ export function snapDesign(
       list = up.length > 0 ? up : [{ size: v.current, label: `${mToMm(v.current)} mm (today)` }];
     }
     const inside = list.filter((c) =>
-      c.size >= v.lower * (1 - 1e-9) && c.size <= v.upper * (1 + 1e-9)
+      c.size >= v.cutterLower * (1 - 1e-9) && c.size <= v.upper * (1 + 1e-9)
     );
     return inside.length > 0 ? inside : list;
   });

@@ -82,7 +82,7 @@ export async function diveRunnerCutters(
     let sides = exact
       ? [exact.size]
       : [below?.size, above?.size].filter((x): x is number =>
-        x !== undefined && x >= v.lower * (1 - 1e-9) && x <= v.upper * (1 + 1e-9)
+        x !== undefined && x >= v.cutterLower * (1 - 1e-9) && x <= v.upper * (1 + 1e-9)
       );
     if (steelSafe) sides = sides.filter((x) => x >= v.current * (1 - 1e-9));
     if (sides.length === 0) sides = [above?.size ?? below?.size ?? e.x[j]];
@@ -129,7 +129,7 @@ export async function diveRunnerCutters(
 
 /**
  * Relax-and-fix for the runner cutters: among the runners whose fed runners are
- * all fixed, fix the one whose continuous size is nearest a permitted cutter
+ * all fixed, fix the one whose nearest permitted cutter is furthest from its size
  * (never smaller than a runner it feeds), re-balance every size still free (a short SLP from
  * the current design), and repeat until every runner is on a cutter; then snap the
  * gates. Costlier than the dive (one short SLP per runner) and surer, because each
@@ -169,7 +169,7 @@ export async function relaxAndFixRunners(
       const x = sizes.get(v.element)!;
       const { below, above, exact } = neighbouringSizes(catalogue, x);
       const allowed = (exact ? [exact] : [below, above]).filter((c): c is Cutter =>
-        c !== undefined && c.size >= v.lower * (1 - 1e-9) && c.size <= v.upper * (1 + 1e-9) &&
+        c !== undefined && c.size >= v.cutterLower * (1 - 1e-9) && c.size <= v.upper * (1 + 1e-9) &&
         (!steelSafe || c.size >= v.current * (1 - 1e-9))
       );
       // Never against the feed order with a runner already on its cutter.
@@ -190,7 +190,8 @@ export async function relaxAndFixRunners(
       if (sides.length === 0) return undefined;
       sides.sort((a, b) => Math.abs(Math.log(a.size / x)) - Math.abs(Math.log(b.size / x)));
       const gap = Math.abs(Math.log(sides[0].size / x));
-      if (!pick || gap < pick.gap) pick = { v, sides, gap };
+      // The runner that rounds furthest goes first, while the most sizes can still adapt.
+      if (!pick || gap > pick.gap) pick = { v, sides, gap };
     }
     if (!pick) break;
     if (options.cancelled?.()) return undefined;
