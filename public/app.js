@@ -911,6 +911,25 @@
       placed = scenario.cavities.map((c) => {
         const r = k * Math.sqrt(c.volume_cm3);
         const { at, d } = dirs.get(c.id);
+        if (typeof c.x_mm === "number" && typeof c.y_mm === "number") {
+          const away = {
+            x: c.x_mm - at.x,
+            y: c.y_mm - at.y
+          };
+          const l = Math.hypot(away.x, away.y);
+          return {
+            id: c.id,
+            ...c.name ? {
+              name: c.name
+            } : {},
+            volume_cm3: c.volume_cm3,
+            x: c.x_mm,
+            y: c.y_mm,
+            r,
+            dx: l > 0 ? away.x / l : d.x,
+            dy: l > 0 ? away.y / l : d.y
+          };
+        }
         return {
           id: c.id,
           ...c.name ? {

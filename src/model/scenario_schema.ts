@@ -166,6 +166,12 @@ export const CavitySchema = z.object({
   gate_radius_mm: mm(100, "gate radius").optional().describe(
     "radial cavities: radius at which radial flow starts (default: the gate's half size)",
   ),
+  x_mm: z.number().min(-5000).max(5000).optional().describe(
+    "plan position of the cavity's centre, for the layout drawing only (default: beyond its gate)",
+  ),
+  y_mm: z.number().min(-5000).max(5000).optional().describe(
+    "plan position of the cavity's centre, for the layout drawing only",
+  ),
 }).strict();
 
 export const GoalsSchema = z.object({

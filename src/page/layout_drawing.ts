@@ -41,7 +41,7 @@ export interface DrawingScenario {
     thickness_mm?: number;
     width_mm?: number;
   }[];
-  cavities: { id: string; name?: string; volume_cm3: number }[];
+  cavities: { id: string; name?: string; volume_cm3: number; x_mm?: number; y_mm?: number }[];
 }
 
 /** A size change to show on the drawing (from the optimization's change list). */
@@ -160,6 +160,21 @@ export function layoutGeometry(
     placed = scenario.cavities.map((c) => {
       const r = k * Math.sqrt(c.volume_cm3);
       const { at, d } = dirs.get(c.id)!;
+      // A cavity the scenario places (x_mm, y_mm) is drawn there; labels go away from its gates.
+      if (typeof c.x_mm === "number" && typeof c.y_mm === "number") {
+        const away = { x: c.x_mm - at.x, y: c.y_mm - at.y };
+        const l = Math.hypot(away.x, away.y);
+        return {
+          id: c.id,
+          ...(c.name ? { name: c.name } : {}),
+          volume_cm3: c.volume_cm3,
+          x: c.x_mm,
+          y: c.y_mm,
+          r,
+          dx: l > 0 ? away.x / l : d.x,
+          dy: l > 0 ? away.y / l : d.y,
+        };
+      }
       return {
         id: c.id,
         ...(c.name ? { name: c.name } : {}),

@@ -81,3 +81,18 @@ Deno.test("gate labels sit next to their gates", () => {
   // G1 runs from NA (-40, 35) towards C1 above it; its label is within 30 mm of the node
   assert.ok(Math.hypot(Number(g1[1]) + 40, -Number(g1[2]) - 35) < 30, `G1 label at ${g1[1]}`);
 });
+
+Deno.test("a cavity placed by the scenario (x_mm, y_mm) is drawn centred there, its gate ending on its rim", () => {
+  const placed = structuredClone(demo);
+  const c1 = placed.cavities.find((c: { id: string }) => c.id === "C1");
+  c1.x_mm = -90;
+  c1.y_mm = 60;
+  const g = layoutGeometry(placed);
+  const drawn = g.cavities.find((c) => c.id === "C1")!;
+  assert.deepEqual([drawn.x, drawn.y], [-90, 60]);
+  const gate = g.gates.find((x) => x.id === "G1")!;
+  assertClose(Math.hypot(gate.x2 - drawn.x, gate.y2 - drawn.y), drawn.r, { rel: 1e-9 });
+  // the other cavities keep their place beyond their gates
+  const c4 = g.cavities.find((c) => c.id === "C4")!;
+  assert.ok(c4.y < -35 - c4.r);
+});
