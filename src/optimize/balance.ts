@@ -14,6 +14,7 @@ import { cutterCatalogue } from "./cutters.ts";
 import {
   formulateStep,
   imbalanceViolation,
+  LP_LIMIT_SHARE,
   modelMerit,
   modelResponses,
   PENALTY,
@@ -123,8 +124,6 @@ export type BalanceResult =
 
 /** Share of the imbalance target the linear model aims for. */
 export const LP_BAND_SHARE = 0.7;
-/** Share of the gate-shear and pressure limits the linear model aims for (room to snap). */
-export const LP_LIMIT_SHARE = 0.97;
 /** Relax-and-fix of the runner cutters is tried up to this many adjustable runners. */
 export const RELAX_AND_FIX_MAX_RUNNERS = 8;
 
@@ -189,7 +188,8 @@ export async function optimizeBalance(
   const iterations: BalanceIteration[] = [];
   let status: BalanceStatus = "iteration_limit";
   let reason = `stopped after ${maxIterations} iterations`;
-  let lastLinear: { sens: Sensitivities; program: ReturnType<typeof formulateStep> } | undefined;
+  /** Slopes of the last LP solved (kept when a rejected step drops the current ones). */
+  let lastSens: Sensitivities | undefined;
   let sens: Sensitivities | undefined;
   let sensAge = 0;
 
@@ -239,7 +239,7 @@ export async function optimizeBalance(
       shearShare,
       V0,
     });
-    lastLinear = { sens, program };
+    lastSens = sens;
     const lp = await solver.solve(program.lp, { timeLimitSeconds: 20 });
     if (lp.status !== "optimal") {
       return {
@@ -338,8 +338,8 @@ export async function optimizeBalance(
     status = "infeasible";
     reason = "the smooth model's limits are met, but the simulated design still breaks a limit";
   }
-  const wouldNeed = status === "infeasible" && lastLinear
-    ? await explainInfeasible(space, current, lastLinear.sens, solver, { epsilon, V0 })
+  const wouldNeed = status === "infeasible" && lastSens
+    ? await explainInfeasible(space, current, lastSens, solver, { epsilon, V0 })
     : [];
   if (status === "infeasible") {
     reason +=
@@ -351,7 +351,7 @@ export async function optimizeBalance(
 
   let after = current;
   let snap: SnapReport | undefined;
-  const linear = sens ?? lastLinear?.sens;
+  const linear = sens ?? lastSens;
   // A cancelled run reports the best design so far, unsnapped.
   const snapping = !options.continuousOnly && status !== "cancelled";
   if (snapping) {

@@ -11,7 +11,7 @@ import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
 import type { LpSolver } from "./lp_solver.ts";
 import type { Sensitivities } from "./sensitivities.ts";
 import { snapDesign, type SnapReport } from "./snap_design.ts";
-import { formulateStep, PENALTY, violation } from "./slp_step.ts";
+import { formulateStep, LP_LIMIT_SHARE, PENALTY, violation } from "./slp_step.ts";
 
 /**
  * Runner cutters chosen together with balance, for a continuous optimum whose
@@ -20,9 +20,6 @@ import { formulateStep, PENALTY, violation } from "./slp_step.ts";
  *
  * @module
  */
-
-/** Share of the shear and pressure limits the dive's LP aims for. */
-const DIVE_LIMIT_SHARE = 0.97;
 
 /** What {@link relaxAndFixRunners} needs of the optimizer (passed in: no import cycle). */
 export interface RelaxAndFixOptions {
@@ -96,7 +93,7 @@ export async function diveRunnerCutters(
     const program = formulateStep(space, e, s, {
       radius: 1,
       epsilon: o.epsilon,
-      limitShare: DIVE_LIMIT_SHARE,
+      limitShare: LP_LIMIT_SHARE,
       V0: o.V0,
       bounds: { lower, upper },
       exactBounds: true,
