@@ -18,6 +18,7 @@ import {
   modelMerit,
   modelResponses,
   PENALTY,
+  snappedMerit,
   violation,
 } from "./slp_step.ts";
 import { diveRunnerCutters, relaxAndFixRunners, remap } from "./snap_runners.ts";
@@ -175,10 +176,7 @@ export async function optimizeBalance(
   const V0 = before.runnerVolume;
   const epsilon = scenario.goals.max_imbalance_percent / 100;
   const merit = (e: DesignEvaluation) => e.runnerVolume / V0 + PENALTY * violation(e, epsilon);
-  /** Snapped designs: simulated fill times, balanced and peak shear both counted. */
-  const judge = (e: DesignEvaluation) =>
-    e.runnerVolume / V0 + PENALTY * (violation(e, epsilon, { split: false }) +
-        violation(e, epsilon, { split: false, shear: "peak" }));
+  const judge = (e: DesignEvaluation) => snappedMerit(e, epsilon, V0);
 
   let radius = 0.2; // trust region as a fraction of each size
   let lpEpsilon = LP_BAND_SHARE * epsilon;
@@ -388,13 +386,13 @@ export async function optimizeBalance(
         const refined = remap(space, second.outcome.space, second.outcome.after);
         if (judge(refined) < judge(after)) {
           after = refined;
-          const runnerChoices = space.variables.flatMap((v) =>
+          const runnerChoices = space.variables.flatMap((v, j) =>
             v.kind === "runner"
               ? [{
                 element: v.element,
-                continuous: current.x[space.variables.indexOf(v)],
-                snapped: refined.x[space.variables.indexOf(v)],
-                label: `${mToMm(refined.x[space.variables.indexOf(v)])} mm`,
+                continuous: current.x[j],
+                snapped: refined.x[j],
+                label: `${mToMm(refined.x[j])} mm`,
               }]
               : []
           );

@@ -69,11 +69,7 @@ export function finiteDifferenceSensitivities(
     const e = outcome.evaluation;
     for (let i = 0; i < cavities; i++) {
       fillTime[i][j] = (e.splitFillTimes[i] - base.splitFillTimes[i]) / h;
-      let logSlope = -(fillTime[i][j] * xj) / base.splitFillTimes[i];
-      if (v.kind === "gate" && space.gateCavity[j] === i) {
-        logSlope -= v.dimension === "thickness" ? 2 : 3;
-      }
-      gateShear[i][j] = (logSlope * base.gateShearBalanced[i]) / xj;
+      gateShear[i][j] = meanFlowShearSlope(space, base, i, j, fillTime[i][j]);
     }
     // The reference pressure's relative slope, applied to the peak (see below).
     pressure[j] = ((e.feedPressureReference - base.feedPressureReference) / h) *
@@ -113,14 +109,7 @@ export function broydenSensitivities(
     update(row, from.splitFillTimes[i], to.splitFillTimes[i], to.splitFillTimes[i])
   );
   const gateShear = fillTime.map((row, i) =>
-    row.map((g, j) => {
-      const v = space.variables[j];
-      let logSlope = -(g * to.x[j]) / to.splitFillTimes[i];
-      if (v.kind === "gate" && space.gateCavity[j] === i) {
-        logSlope -= v.dimension === "thickness" ? 2 : 3;
-      }
-      return (logSlope * to.gateShearBalanced[i]) / to.x[j];
-    })
+    row.map((g, j) => meanFlowShearSlope(space, to, i, j, g))
   );
   const pressure = update(
     s.pressure.map((g) => (g * from.feedPressureReference) / from.feedPressurePeak),
@@ -135,4 +124,23 @@ export function broydenSensitivities(
     return (runnerVolumeOf(space, x) - to.runnerVolume) / h;
   });
   return { fillTime, gateShear, pressure, runnerVolume, simulations: 0 };
+}
+
+/**
+ * ∂γ̇_i/∂x_j of cavity i's balanced-split gate shear by the mean-flow law of this
+ * module's header, from the split fill time's slope `fillTimeSlope` (s per m), at `e`.
+ */
+function meanFlowShearSlope(
+  space: DesignSpace,
+  e: DesignEvaluation,
+  i: number,
+  j: number,
+  fillTimeSlope: number,
+): number {
+  const v = space.variables[j];
+  let logSlope = -(fillTimeSlope * e.x[j]) / e.splitFillTimes[i];
+  if (v.kind === "gate" && space.gateCavity[j] === i) {
+    logSlope -= v.dimension === "thickness" ? 2 : 3;
+  }
+  return (logSlope * e.gateShearBalanced[i]) / e.x[j];
 }

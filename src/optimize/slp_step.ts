@@ -45,6 +45,16 @@ export function violation(
 }
 
 /**
+ * The merit a design in cutter sizes is judged by: relative volume plus the penalty on
+ * the simulated fill times' band distance and on both the balanced-split and the peak
+ * gate shear (a snapped design is not steered further, so both count).
+ */
+export function snappedMerit(e: DesignEvaluation, epsilon: number, V0: number): number {
+  return e.runnerVolume / V0 + PENALTY * (violation(e, epsilon, { split: false }) +
+        violation(e, epsilon, { split: false, shear: "peak" }));
+}
+
+/**
  * ℓ₁ distance of the log fill times from a band [ln τ + ln(1 − ε), ln τ], minimised
  * over τ: zero exactly when (t_max − t_min)/t_max ≤ ε. Piecewise linear and convex in
  * ln τ, so the minimum sits at a breakpoint ln t_i or ln t_i − ln(1 − ε).

@@ -11,7 +11,7 @@ import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
 import type { LpSolver } from "./lp_solver.ts";
 import type { Sensitivities } from "./sensitivities.ts";
 import { snapDesign, type SnapReport } from "./snap_design.ts";
-import { formulateStep, LP_LIMIT_SHARE, PENALTY, violation } from "./slp_step.ts";
+import { formulateStep, LP_LIMIT_SHARE, snappedMerit } from "./slp_step.ts";
 
 /**
  * Runner cutters chosen together with balance, for a continuous optimum whose
@@ -143,9 +143,7 @@ export async function relaxAndFixRunners(
   const steelSafe = scenario.goals.mode === "steel_safe";
   const epsilon = scenario.goals.max_imbalance_percent / 100;
   const V0 = continuous.runnerVolume;
-  const judgeOf = (e: DesignEvaluation) =>
-    e.runnerVolume / V0 + PENALTY * (violation(e, epsilon, { split: false }) +
-        violation(e, epsilon, { split: false, shear: "peak" }));
+  const judgeOf = (e: DesignEvaluation) => snappedMerit(e, epsilon, V0);
   const work: Scenario = structuredClone(scenario);
   const sizes = new Map(space.variables.map((v, j) => [v.element, continuous.x[j]]));
   const labels = new Map<string, string>();
@@ -229,7 +227,7 @@ export async function relaxAndFixRunners(
     for (const [k, value] of best.sizes) sizes.set(k, value);
   }
   // Gates last: the usual snapping on the space of the gates alone.
-  const gateOnly = optimizeBalanceSpaceAt(work, sizes);
+  const gateOnly = gateSpaceAt(work, sizes);
   if (!gateOnly) return undefined;
   const gateSnap = snapDesign(gateOnly.space, gateOnly.evaluation, undefined, {
     merit: judgeOf,
@@ -255,8 +253,8 @@ export async function relaxAndFixRunners(
   return { evaluation, choices, simulations, message: gateSnap.message };
 }
 
-/** The design space of `scenario` (runners fixed) evaluated at the given sizes. */
-function optimizeBalanceSpaceAt(
+/** The design space of `scenario` (its runners fixed), simulated at the given sizes. */
+function gateSpaceAt(
   scenario: Scenario,
   sizes: ReadonlyMap<string, number>,
 ): { space: DesignSpace; evaluation: DesignEvaluation; simulations: number } | undefined {

@@ -1,10 +1,22 @@
-import type { BalanceOutcome } from "../optimize/balance.ts";
+import type { BalanceIteration, BalanceOutcome } from "../optimize/balance.ts";
 import { type Change, changeList, dualSize } from "../optimize/change_list.ts";
 import { m3ToCm3, mToInch, mToMm, paToMpa } from "../model/units.ts";
 import { resultJson } from "./result_json.ts";
 
 /** Wire format of an optimization (`evenfill.optimization/1`). */
 export const OPTIMIZATION_FORMAT = "evenfill.optimization/1";
+
+/** One SLP iteration on the wire: the optimization's history and a job's progress. */
+export function iterationJson(i: BalanceIteration) {
+  return {
+    iteration: i.iteration,
+    accepted: i.accepted,
+    imbalance_percent: Number(i.imbalancePercent.toFixed(4)),
+    feed_pressure_peak_MPa: Number(paToMpa(i.feedPressurePeak).toFixed(3)),
+    runner_volume_cm3: Number(m3ToCm3(i.runnerVolume).toFixed(5)),
+    simulations: i.simulations,
+  };
+}
 
 /** Options of {@link optimizationJson}. */
 export interface OptimizationJsonOptions {
@@ -48,13 +60,8 @@ export function optimizationJson(outcome: BalanceOutcome, options: OptimizationJ
       },
     })),
     iterations: outcome.iterations.map((i) => ({
-      iteration: i.iteration,
-      accepted: i.accepted,
-      imbalance_percent: Number(i.imbalancePercent.toFixed(4)),
-      feed_pressure_peak_MPa: Number(paToMpa(i.feedPressurePeak).toFixed(3)),
-      runner_volume_cm3: Number(m3ToCm3(i.runnerVolume).toFixed(5)),
+      ...iterationJson(i),
       trust_radius: i.trustRadius,
-      simulations: i.simulations,
     })),
   };
 }

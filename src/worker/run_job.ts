@@ -16,8 +16,7 @@
 import { parseScenario } from "../model/parse_scenario.ts";
 import { LIBRARY_MATERIAL_IDS } from "../network/simulate_scenario.ts";
 import { optimizeBalance } from "../optimize/balance.ts";
-import { m3ToCm3, paToMpa } from "../model/units.ts";
-import { optimizationJson } from "../report/optimization_report.ts";
+import { iterationJson, optimizationJson } from "../report/optimization_report.ts";
 import { SqliteStore } from "../store/sqlite_store.ts";
 import type { JobError, JobOutcome, JobProgress, JobRecord, Store } from "../store/store.ts";
 
@@ -97,14 +96,7 @@ export async function runJobAttempt(
       const now = performance.now();
       if (now - lastWrite < PROGRESS_EVERY_MS) return;
       lastWrite = now;
-      const progress: JobProgress = {
-        iteration: i.iteration,
-        accepted: i.accepted,
-        imbalance_percent: Number(i.imbalancePercent.toFixed(4)),
-        feed_pressure_peak_MPa: Number(paToMpa(i.feedPressurePeak).toFixed(3)),
-        runner_volume_cm3: Number(m3ToCm3(i.runnerVolume).toFixed(5)),
-        simulations: i.simulations,
-      };
+      const progress: JobProgress = iterationJson(i);
       if (!store.writeProgress(job.id, owner, attempt, progress)) throw new LeaseLost();
     },
     cancelled: () => {
