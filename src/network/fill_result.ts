@@ -1,3 +1,4 @@
+import type { FillTangent } from "./fill_tangent.ts";
 import type { ElementKind } from "./feed_network.ts";
 
 /**
@@ -125,4 +126,6 @@ export interface FillResult {
   cavities: CavityFigures[];
   paths: FlowPath[];
   diagnostics: FillDiagnostics;
+  /** First-order changes along the requested directions (`SimulateFillOptions.tangent`). */
+  tangent?: FillTangent;
 }

@@ -10,6 +10,12 @@ import {
 import { adiabaticHeating, frozenLayerThickness } from "../physics/thermal.ts";
 import { taperedFilledLength } from "./_fill_geometry.ts";
 import type { FeedNetwork, NetworkElement } from "./feed_network.ts";
+import {
+  type FillTangentRequest,
+  type LinearBranch,
+  linearPattern,
+  solveLinearised,
+} from "./fill_tangent.ts";
 import type {
   CavityFigures,
   ElementFigures,
@@ -62,6 +68,8 @@ export interface SimulateFillOptions {
   maxSteps?: number;
   /** Called after every accepted step with the injected fraction of the shot, 0…1. */
   onProgress?: (fraction: number) => void;
+  /** Carry the tangent along these directions (`fill_tangent.ts`); the result then has `tangent`. */
+  tangent?: FillTangentRequest;
 }
 
 /** Shortest resisting length of a partly filled element, as a fraction of its length. */
@@ -193,8 +201,9 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
     branch: Branch,
     t: number,
     volumes: Float64Array,
+    element?: NetworkElement,
   ): (flow: number) => ChannelFlow => {
-    const e = elements[branch.element];
+    const e = element ?? elements[branch.element];
     const curve = curveFor(e);
     const delta = frozenAt(e, t, branch.side);
     const g = e.geometry;
@@ -451,6 +460,7 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
     const force = clampForce(s);
     let filledVolume = 0;
     for (let i = 0; i < 2 * E; i++) filledVolume += fill[i];
+    if (tangentOn) tangentRecord();
     history.push({
       time: t,
       injectedVolume: Q * t,
@@ -484,12 +494,170 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
     }
   };
 
+  // --- tangent (fill_tangent.ts) ---------------------------------------------
+  const directions = options.tangent?.directions ?? [];
+  const m = directions.length;
+  const C = network.cavities.length;
+  let tangentOn = m > 0;
+  /** dv[j][2e + side]: change of each filling side's volume along direction j, m³. */
+  const dv = Array.from({ length: m }, () => new Float64Array(2 * E));
+  /** Directions that change each element, with the element as rebuilt. */
+  const changedBy: { j: number; element: NetworkElement }[][] = Array.from(
+    { length: E },
+    () => [],
+  );
+  directions.forEach((list, j) => {
+    for (const element of list) changedBy[element.index].push({ j, element });
+  });
+  const patterns = new WeakMap<
+    Assembly,
+    { local: LinearBranch[]; symbolic: ReturnType<typeof linearPattern> }
+  >();
+  /** δQ per direction for the branches of the state last evaluated, and δp at the inlet. */
+  let dFlows: Float64Array[] = [];
+  let dInlet = new Float64Array(m);
+  const tangentCavity: Float64Array[] = [];
+  let firstFillShift: Float64Array | undefined;
+  const tangentPressure: Float64Array[] = [];
+
+  /** The linearised network about solved state `s` (before its thermal update), with today's δv. */
+  const tangentAt = (s: Solved, t: number) => {
+    if (!tangentOn) return;
+    const branches = s.assembly.branches;
+    const K = branches.length;
+    let pattern = patterns.get(s.assembly);
+    if (!pattern) {
+      const local = branches.map((br) => ({
+        a: s.assembly.local[br.a],
+        b: br.b >= 0 ? s.assembly.local[br.b] : -1,
+      }));
+      pattern = { local, symbolic: linearPattern(s.assembly.nodeCount, local) };
+      patterns.set(s.assembly, pattern);
+    }
+    const g = new Float64Array(K);
+    const sources = Array.from({ length: m }, () => new Float64Array(K));
+    for (let k = 0; k < K; k++) {
+      const br = branches[k];
+      const c = s.channel[k];
+      g[k] = 1 / c.dPressureDropDFlow;
+      for (const { j, element } of changedBy[br.element]) {
+        sources[j][k] += lawOf(br, t, fill, element)(s.flows[k]).pressureDrop - c.pressureDrop;
+      }
+      if (br.side < 0) continue;
+      const index = 2 * br.element + br.side;
+      let any = false;
+      for (let j = 0; j < m && !any; j++) any = dv[j][index] !== 0;
+      if (!any) continue;
+      const e = elements[br.element];
+      const v = fill[index];
+      const dvol = Math.max(Math.abs(v) * 1e-4, e.volume * 1e-7);
+      const probe = fill.slice();
+      probe[index] = v + dvol;
+      const slope = (lawOf(br, t, probe)(s.flows[k]).pressureDrop - c.pressureDrop) / dvol;
+      for (let j = 0; j < m; j++) sources[j][k] += slope * dv[j][index];
+    }
+    const solved = solveLinearised(
+      s.assembly.nodeCount,
+      pattern.local,
+      g,
+      sources,
+      pattern.symbolic,
+    );
+    if (!solved) {
+      tangentOn = false;
+      return;
+    }
+    dFlows = solved.flows;
+    const inlet = s.assembly.local[network.inlet];
+    dInlet = Float64Array.from(solved.pressures, (p) => p[inlet]);
+  };
+  /** Euler step of δv over `dt` with the δQ of the state the step started from. */
+  const tangentAdvance = (s0: Solved, dt: number) => {
+    if (!tangentOn) return;
+    s0.assembly.branches.forEach((br, k) => {
+      if (br.side < 0) return;
+      const index = 2 * br.element + br.side;
+      for (let j = 0; j < m; j++) dv[j][index] += dt * dFlows[j][k];
+    });
+  };
+  /** Shift of each newly full element's fill time along each direction, s. */
+  const eventShifts = (s0: Solved, before: Float64Array, full: readonly number[]) => {
+    const shifts = new Map<number, Float64Array>();
+    if (!tangentOn) return shifts;
+    for (const e of full) {
+      let flow = 0;
+      const sides: number[] = [];
+      s0.assembly.branches.forEach((br, k) => {
+        if (br.element !== e || br.side < 0) return;
+        flow += before[k];
+        sides.push(2 * e + br.side);
+      });
+      if (sides.length === 0 || !(flow > 0)) continue;
+      const shift = new Float64Array(m);
+      for (let j = 0; j < m; j++) {
+        const grown = changedBy[e].find((c) => c.j === j);
+        const dVolume = grown ? grown.element.volume - elements[e].volume : 0;
+        let held = 0;
+        for (const index of sides) held += dv[j][index];
+        shift[j] = (dVolume - held) / flow;
+      }
+      shifts.set(e, shift);
+    }
+    return shifts;
+  };
+  /** The jump of δv across the events of one step (see `fill_tangent.ts`). */
+  const tangentJump = (
+    s0: Solved,
+    before: Float64Array,
+    after: Solved,
+    shifts: Map<number, Float64Array>,
+  ) => {
+    if (!tangentOn || shifts.size === 0) return;
+    const mean = new Float64Array(m);
+    for (const shift of shifts.values()) {
+      for (let j = 0; j < m; j++) mean[j] += shift[j] / shifts.size;
+    }
+    const previous = new Map<number, number>();
+    s0.assembly.branches.forEach((br, k) => {
+      if (br.side >= 0) previous.set(2 * br.element + br.side, before[k]);
+    });
+    after.assembly.branches.forEach((br, k) => {
+      if (br.side < 0) return;
+      const index = 2 * br.element + br.side;
+      const q1 = after.flows[k];
+      const q0 = previous.get(index);
+      if (q0 !== undefined) {
+        for (let j = 0; j < m; j++) dv[j][index] += (q0 - q1) * mean[j];
+        return;
+      }
+      // A branch that starts here: it starts when the element that wetted its node filled.
+      let shift: Float64Array = mean;
+      for (const [e, sh] of shifts) {
+        const el = elements[e];
+        if (el.to === br.a || el.from === br.a) shift = sh;
+      }
+      for (let j = 0; j < m; j++) dv[j][index] = -q1 * shift[j];
+    });
+  };
+  const tangentRecord = () => {
+    if (!tangentOn) return;
+    const cavity = new Float64Array(m * C);
+    for (let j = 0; j < m; j++) {
+      network.cavities.forEach((c, i) => {
+        cavity[j * C + i] = dv[j][2 * c.element];
+      });
+    }
+    tangentCavity.push(cavity);
+    tangentPressure.push(dInlet.slice());
+  };
+
   // --- time loop -------------------------------------------------------------
   let t = 0;
   wet(network.inlet, 0);
   let assembly = assemble();
   let state = solveAt(t, fill, assembly);
   if ("failure" in state) return failed(state.failure);
+  tangentAt(state, t);
   updateThermal(state);
   record(t, state);
   let steps = 0;
@@ -666,14 +834,24 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
       }
     }
     t += step - surplus / Q;
+    tangentAdvance(s0, step - surplus / Q);
     if (landingOnSwitchover) {
       // End of the velocity phase: the flows just before any element filling now closes.
       const end = solveAt(t, fill, s0.assembly, accepted.s1.flows);
       if ("failure" in end) return failed(end.failure);
+      tangentAt(end, t);
       atSwitchover = end;
       record(t, end);
       switchoverDone = true;
     }
+    const shifts = eventShifts(s0, accepted.s1.flows, newlyFull);
+    // The first cavity full ends the tangent: its last sample keeps the left limit (the
+    // state just before the flows jump), which is what lies between it and the sample before.
+    const lastTangentStep = newlyFull.some((e) => elements[e].kind === "cavity");
+    for (const [e, shift] of shifts) {
+      if (elements[e].kind === "cavity" && !firstFillShift) firstFillShift = shift;
+    }
+    if (lastTangentStep) tangentAt(accepted.s1, t);
     for (const e of newlyFull) {
       fullTime[e] = t;
       events++;
@@ -705,6 +883,7 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
       if (!atSwitchover) {
         const end = solveAt(t, fill, s0.assembly, accepted.s1.flows);
         if ("failure" in end) return failed(end.failure);
+        tangentAt(end, t);
         record(t, end);
         atSwitchover = end;
       }
@@ -713,8 +892,13 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
     assembly = assemble();
     state = solveAt(t, fill, assembly, newlyFull.length === 0 ? accepted.s1.flows : undefined);
     if ("failure" in state) return failed(state.failure);
+    if (!lastTangentStep) {
+      tangentJump(s0, accepted.s1.flows, state, shifts);
+      tangentAt(state, t);
+    }
     updateThermal(state);
     if (newlyFull.length > 0 || !landingOnSwitchover) record(t, state);
+    if (lastTangentStep) tangentOn = false;
     options.onProgress?.(Math.min(1, (Q * t) / shotVolume));
     if (newlyFull.length > 0) h = Math.max(h, nominalFillTime / 2000);
     h = eventStep ? h : Math.min(step * 1.5, nominalFillTime / 40);
@@ -789,6 +973,15 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
     elements: elementFigures,
     cavities: cavityFigures,
     paths: flowPaths(network, elementFigures),
+    tangent: m > 0
+      ? {
+        directions: m,
+        samples: tangentCavity.length,
+        cavityVolume: tangentCavity,
+        feedPressure: tangentPressure,
+        firstFill: firstFillShift,
+      }
+      : undefined,
     diagnostics: {
       steps,
       rejectedSteps: rejected,

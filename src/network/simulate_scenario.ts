@@ -15,6 +15,7 @@ import {
 import { buildNetwork } from "./build_network.ts";
 import type { FeedNetwork } from "./feed_network.ts";
 import type { FillResult } from "./fill_result.ts";
+import type { FillTangentRequest } from "./fill_tangent.ts";
 import { type FillProcess, type MeltModel, simulateFill } from "./simulate_fill.ts";
 
 /** Everything one simulation of a scenario produced. SI inside. */
@@ -45,6 +46,8 @@ export type RunOutcome =
 export interface RunScenarioOptions {
   /** Progress callback, injected fraction 0…1. */
   onProgress?: (fraction: number) => void;
+  /** Carry the fill's tangent along these directions (`fill_tangent.ts`). */
+  tangent?: FillTangentRequest;
 }
 
 /** The library's material ids, as the scenario parser wants them. */
@@ -107,6 +110,7 @@ export function runScenario(scenario: Scenario, options: RunScenarioOptions = {}
     melt: meltModelOf(material),
     process,
     onProgress: options.onProgress,
+    tangent: options.tangent,
   });
   if (fill.diagnostics.stoppedBecause === "solver_failure") {
     return { ok: false, code: "simulation_failed", message: fill.diagnostics.message };

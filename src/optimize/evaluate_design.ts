@@ -1,4 +1,6 @@
 import { buildNetwork } from "../network/build_network.ts";
+import type { NetworkElement } from "../network/feed_network.ts";
+import type { FillSample } from "../network/fill_result.ts";
 import { runScenario, type ScenarioRun } from "../network/simulate_scenario.ts";
 import { applyDesign, type DesignSpace } from "./design_space.ts";
 
@@ -56,7 +58,26 @@ export interface DesignEvaluation {
   runnerVolume: number;
   violations: Violation[];
   feasible: boolean;
+  /** Slopes from the fill's tangent, when asked for (`EvaluateOptions.slopes`). */
+  slopes?: DesignSlopes;
 }
+
+/** Slopes of the smooth responses carried by the simulation's tangent (`network/fill_tangent.ts`). */
+export interface DesignSlopes {
+  /** fillTime[i][j]: ∂(split fill time i)/∂x_j, s per m. */
+  fillTime: number[][];
+  /** pressure[j]: ∂(feed pressure at the split reference instant)/∂x_j, Pa per m. */
+  pressure: number[];
+}
+
+/** Options of {@link evaluateDesign}. */
+export interface EvaluateOptions {
+  /** Carry the tangent along every size and return `slopes` (one simulation, no finite differences). */
+  slopes?: boolean;
+}
+
+/** Relative size change each tangent direction stands for (its laws are differenced at this step). */
+export const TANGENT_RELATIVE_STEP = 1e-4;
 
 /** Failure to simulate a design (a value, never a throw). */
 export type EvaluationOutcome =
@@ -71,9 +92,14 @@ export function runnerVolumeOf(space: DesignSpace, x: ArrayLike<number>): number
 }
 
 /** Simulate design `x` and judge it against the scenario's goals. */
-export function evaluateDesign(space: DesignSpace, x: Float64Array): EvaluationOutcome {
+export function evaluateDesign(
+  space: DesignSpace,
+  x: Float64Array,
+  options: EvaluateOptions = {},
+): EvaluationOutcome {
   const scenario = applyDesign(space, x);
-  const outcome = runScenario(scenario);
+  const directions = options.slopes ? tangentDirections(space, x) : undefined;
+  const outcome = runScenario(scenario, directions ? { tangent: { directions } } : {});
   if (!outcome.ok) {
     return {
       ok: false,
@@ -155,33 +181,124 @@ export function evaluateDesign(space: DesignSpace, x: Float64Array): EvaluationO
       runnerVolume: run.network.coldRunnerVolume,
       violations,
       feasible: violations.length === 0,
+      slopes: directions ? slopesOf(run, split, x) : undefined,
     },
   };
+}
+
+/**
+ * For each size, the network elements it changes, rebuilt with that size raised by
+ * {@link TANGENT_RELATIVE_STEP} (the same scenario otherwise, so element indices agree).
+ */
+function tangentDirections(space: DesignSpace, x: Float64Array): NetworkElement[][] {
+  const base = buildNetwork(applyDesign(space, x));
+  if (!base.ok) return [];
+  return space.variables.map((_, j) => {
+    const y = Float64Array.from(x);
+    y[j] *= 1 + TANGENT_RELATIVE_STEP;
+    const built = buildNetwork(applyDesign(space, y));
+    if (!built.ok) return [];
+    return built.network.elements.filter((e, k) => {
+      const b = base.network.elements[k];
+      return e.volume !== b.volume || JSON.stringify(e.geometry) !== JSON.stringify(b.geometry);
+    });
+  });
+}
+
+/** Split fill-time and reference-pressure slopes from a run's tangent (undefined if it falls short). */
+function slopesOf(
+  run: ScenarioRun,
+  split: SplitFigures,
+  x: Float64Array,
+): DesignSlopes | undefined {
+  const tangent = run.fill.tangent;
+  const reach = Math.max(split.now?.k ?? Infinity, split.earlier?.k ?? Infinity);
+  if (!tangent || !split.now || !split.earlier || reach >= tangent.samples) return undefined;
+  const C = run.network.cavities.length;
+  const volumes = run.network.cavities.map((c) => c.volume);
+  const n = tangent.directions;
+  const interpolate = (at: { k: number; w: number }, pick: (sample: number) => number) =>
+    (1 - at.w) * pick(at.k - 1) + at.w * pick(at.k);
+  const now = split.now;
+  const earlier = split.earlier;
+  const fillTime = volumes.map(() => new Array<number>(n).fill(0));
+  const pressure = new Array<number>(n).fill(0);
+  // Time derivatives of the history at the two instants (of the interval they fall in).
+  const history = run.fill.history;
+  const rateIn = (k: number, pick: (sample: FillSample) => number) =>
+    (pick(history[k]) - pick(history[k - 1])) / (history[k].time - history[k - 1].time);
+  const fillRateNow = volumes.map((_, i) => rateIn(now.k, (h) => h.cavityFill[i]));
+  const fillRateEarlier = volumes.map((_, i) => rateIn(earlier.k, (h) => h.cavityFill[i]));
+  const pressureRate = rateIn(now.k, (h) => h.feedPressure);
+  const total = volumes.reduce((a, b) => a + b, 0);
+  const intake = volumes.reduce((sum, V, i) => sum + V * fillRateNow[i], 0);
+  for (let j = 0; j < n; j++) {
+    const h = x[j] * TANGENT_RELATIVE_STEP;
+    const dNow = volumes.map((V, i) =>
+      interpolate(now, (k) => tangent.cavityVolume[k][j * C + i]) / V
+    );
+    // The reference instant moves too: with the held volume (95 % of the cavities) or
+    // with the first cavity's fill (98 % of it).
+    const dRef = split.byShare
+      ? -dNow.reduce((sum, d, i) => sum + d * volumes[i], 0) / total / (intake / total)
+      : 0.98 * (tangent.firstFill?.[j] ?? 0);
+    volumes.forEach((V, i) => {
+      const rate = split.rates[i];
+      if (!(rate > 0)) return;
+      const fNow = dNow[i] + fillRateNow[i] * dRef;
+      const fEarlier = interpolate(earlier, (k) => tangent.cavityVolume[k][j * C + i]) / V +
+        fillRateEarlier[i] * SPLIT_WINDOW_START * dRef;
+      const dRate = (fNow - fEarlier) / split.window -
+        (rate * (1 - SPLIT_WINDOW_START) * dRef) / split.window;
+      fillTime[i][j] = (dRef - fNow / rate - ((1 - split.fillNow[i]) * dRate) / (rate * rate)) / h;
+    });
+    pressure[j] = (interpolate(now, (k) => tangent.feedPressure[k][j]) + pressureRate * dRef) / h;
+  }
+  return { fillTime, pressure };
 }
 
 /** Share of the total cavity volume filled at the split reference instant. */
 export const SPLIT_REFERENCE_SHARE = 0.95;
 
+/** Split fill times, the reference pressure, and where in the history they were read. */
+interface SplitFigures {
+  times: number[];
+  pressure: number;
+  /** History interval (samples k − 1, k) and weight of the reference instant, and of 0.9 of it. */
+  now?: { k: number; w: number };
+  earlier?: { k: number; w: number };
+  /** Each cavity's fill fraction at the reference instant and its intake rate (fraction per s). */
+  fillNow: number[];
+  rates: number[];
+  /** Length of the intake window, s. */
+  window: number;
+  /** True when the reference instant is set by the held share, false when by the first fill. */
+  byShare: boolean;
+}
+
 /**
  * Split fill times (see `DesignEvaluation.splitFillTimes`) and the feed pressure at
  * the same reference instant, from a run's fill history (linear between samples).
  */
-function splitFigures(run: ScenarioRun): { times: number[]; pressure: number } {
+function splitFigures(run: ScenarioRun): SplitFigures {
   const volumes = run.network.cavities.map((c) => c.volume);
   const total = volumes.reduce((a, b) => a + b, 0);
   const held = (f: readonly number[]) => f.reduce((sum, fi, i) => sum + fi * volumes[i], 0);
   const history = run.fill.history;
-  const fallback = { times: run.fill.cavities.map((c) => c.fillTime), pressure: NaN };
+  const trueTimes = run.fill.cavities.map((c) => c.fillTime);
   // Never past the first cavity's fill (its intake stops there): at most 98 % of that time.
-  const latest = 0.98 * Math.min(...fallback.times);
+  const latest = 0.98 * Math.min(...trueTimes);
   const target = SPLIT_REFERENCE_SHARE * total;
   let tRef = latest;
+  let byShare = false;
   for (let k = 1; k < history.length; k++) {
     const ha = held(history[k - 1].cavityFill);
     const hb = held(history[k].cavityFill);
     if (hb >= target && hb > ha) {
       const w = (target - ha) / (hb - ha);
-      tRef = Math.min(latest, history[k - 1].time + w * (history[k].time - history[k - 1].time));
+      const tShare = history[k - 1].time + w * (history[k].time - history[k - 1].time);
+      byShare = tShare < latest;
+      tRef = Math.min(latest, tShare);
       break;
     }
   }
@@ -192,6 +309,8 @@ function splitFigures(run: ScenarioRun): { times: number[]; pressure: number } {
       if (b.time < t || b.time <= a.time) continue;
       const w = Math.max(0, Math.min(1, (t - a.time) / (b.time - a.time)));
       return {
+        k,
+        w,
         fill: a.cavityFill.map((f, i) => f + w * (b.cavityFill[i] - f)),
         pressure: a.feedPressure + w * (b.feedPressure - a.feedPressure),
       };
@@ -200,14 +319,29 @@ function splitFigures(run: ScenarioRun): { times: number[]; pressure: number } {
   };
   const now = at(tRef);
   const earlier = at(SPLIT_WINDOW_START * tRef);
-  if (!now || !earlier) return { ...fallback, pressure: run.fill.feedPressurePeak };
   const window = (1 - SPLIT_WINDOW_START) * tRef;
+  if (!now || !earlier) {
+    return {
+      times: trueTimes,
+      pressure: run.fill.feedPressurePeak,
+      fillNow: volumes.map(() => NaN),
+      rates: volumes.map(() => NaN),
+      window,
+      byShare,
+    };
+  }
+  const rates = volumes.map((_, i) => (now.fill[i] - earlier.fill[i]) / window);
   return {
-    times: volumes.map((_, i) => {
-      const rate = (now.fill[i] - earlier.fill[i]) / window;
-      return rate > 0 && now.fill[i] > 0.05 ? tRef + (1 - now.fill[i]) / rate : fallback.times[i];
-    }),
+    times: volumes.map((_, i) =>
+      rates[i] > 0 && now.fill[i] > 0.05 ? tRef + (1 - now.fill[i]) / rates[i] : trueTimes[i]
+    ),
     pressure: now.pressure,
+    now: { k: now.k, w: now.w },
+    earlier: { k: earlier.k, w: earlier.w },
+    fillNow: now.fill,
+    rates,
+    window,
+    byShare,
   };
 }
 

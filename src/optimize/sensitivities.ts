@@ -80,6 +80,43 @@ export function finiteDifferenceSensitivities(
 }
 
 /**
+ * Sensitivities from the tangent the simulation of `e` carried (`evaluateDesign` with
+ * `slopes`): split fill times and reference pressure from the tangent-linear fill
+ * (`network/fill_tangent.ts`), gate shear by the mean-flow law above, runner volume
+ * from geometry. No extra simulation; undefined if `e` has no slopes.
+ */
+export function tangentSensitivities(
+  space: DesignSpace,
+  e: DesignEvaluation,
+): Sensitivities | undefined {
+  const slopes = e.slopes;
+  if (!slopes) return undefined;
+  const finite = (v: number) => (Number.isFinite(v) ? v : 0);
+  const fillTime = slopes.fillTime.map((row) => row.map(finite));
+  return {
+    fillTime,
+    gateShear: fillTime.map((row, i) => row.map((g, j) => meanFlowShearSlope(space, e, i, j, g))),
+    // The reference pressure's relative slope, applied to the peak (as for finite differences).
+    pressure: slopes.pressure.map((g) =>
+      finite(g) * (e.feedPressurePeak / e.feedPressureReference)
+    ),
+    runnerVolume: runnerVolumeSlopes(space, e.x),
+    simulations: 0,
+  };
+}
+
+/** ∂(cold runner volume)/∂x_j from geometry alone, m³ per m. */
+function runnerVolumeSlopes(space: DesignSpace, at: Float64Array): number[] {
+  const base = runnerVolumeOf(space, at);
+  return space.variables.map((_, j) => {
+    const h = FD_RELATIVE_STEP * at[j];
+    const x = Float64Array.from(at);
+    x[j] += h;
+    return (runnerVolumeOf(space, x) - base) / h;
+  });
+}
+
+/**
  * Carry sensitivities from design `from` to design `to` without simulating: a
  * Broyden rank-one update in log measure (Broyden (1965) Math. Comp. 19:577), so
  * that the updated slopes reproduce the change the two simulations showed,
@@ -117,13 +154,13 @@ export function broydenSensitivities(
     to.feedPressureReference,
     to.feedPressurePeak,
   );
-  const runnerVolume = space.variables.map((_, j) => {
-    const h = FD_RELATIVE_STEP * to.x[j];
-    const x = Float64Array.from(to.x);
-    x[j] += h;
-    return (runnerVolumeOf(space, x) - to.runnerVolume) / h;
-  });
-  return { fillTime, gateShear, pressure, runnerVolume, simulations: 0 };
+  return {
+    fillTime,
+    gateShear,
+    pressure,
+    runnerVolume: runnerVolumeSlopes(space, to.x),
+    simulations: 0,
+  };
 }
 
 /**

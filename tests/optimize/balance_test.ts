@@ -232,7 +232,10 @@ Deno.test("cancel is honoured between finite-difference simulations, not only be
     await Deno.readTextFile(new URL("../../scenarios/family_four_housing.json", import.meta.url)),
   );
   let polls = 0;
-  const result = await optimizeBalance(parse(wire), { cancelled: () => ++polls > 3 });
+  const result = await optimizeBalance(parse(wire), {
+    slopes: "finite_difference",
+    cancelled: () => ++polls > 3,
+  });
   assert.ok(result.ok, JSON.stringify(!result.ok && result));
   assert.equal(result.outcome.status, "cancelled");
   // Ten sizes would take eleven simulations for one set of slopes: it stopped inside it.
