@@ -36,6 +36,10 @@ export interface BaselineResult {
   reason: string;
   /** Message of a failed simulation. */
   failure?: string;
+  /** Simulations run when a design first met the imbalance target (absent: never). */
+  firstBalanced?: number;
+  /** Simulations run when a design first met every limit (absent: never). */
+  firstFeasible?: number;
 }
 
 /** Branching exponent: D_feed = D_branch · N^(1/3) (Lee & Stevenson, J. Reinf. Plast. Compos. 1998). */
@@ -590,6 +594,8 @@ export function nelderMead(space: DesignSpace, options: NelderMeadOptions = {}):
   const v0 = runnerVolumeOf(space, base);
   const cache = new Map<string, { value: number; evaluation?: DesignEvaluation }>();
   let simulations = 0;
+  let firstBalanced: number | undefined;
+  let firstFeasible: number | undefined;
   const objective = (u: Float64Array): number => {
     const x = toDesign(u);
     const key = Array.from(x, (s) => s.toExponential(12)).join(",");
@@ -601,6 +607,10 @@ export function nelderMead(space: DesignSpace, options: NelderMeadOptions = {}):
     if (!outcome.ok) entry = { value: FAILED_SIMULATION_PENALTY };
     else {
       const e = outcome.evaluation;
+      if (e.imbalancePercent <= space.scenario.goals.max_imbalance_percent) {
+        firstBalanced ??= simulations;
+      }
+      if (e.feasible) firstFeasible ??= simulations;
       const excess = e.violations.reduce((sum, v) => sum + v.excess, 0);
       entry = { value: e.runnerVolume / v0 + weight * excess, evaluation: e };
     }
@@ -632,5 +642,7 @@ export function nelderMead(space: DesignSpace, options: NelderMeadOptions = {}):
     simulations,
     wallTimeMs: performance.now() - start,
     reason: entry?.evaluation === undefined ? "simulation_failed" : result.reason,
+    firstBalanced,
+    firstFeasible,
   };
 }

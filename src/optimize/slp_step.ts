@@ -14,6 +14,8 @@ import type { Sensitivities } from "./sensitivities.ts";
 
 /** Penalty weight of a unit of (log) constraint violation against the relative volume. */
 export const PENALTY = 20;
+/** Share of the imbalance target the linear model aims for. */
+export const LP_BAND_SHARE = 0.7;
 /** Share of the gate-shear and pressure limits the LP aims for when it will snap to cutters. */
 export const LP_LIMIT_SHARE = 0.97;
 

@@ -9,7 +9,7 @@ import {
 import { applyDesign, type DesignSpace, designSpace } from "./design_space.ts";
 import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
 import type { LpSolver } from "./lp_solver.ts";
-import type { Sensitivities } from "./sensitivities.ts";
+import { type Sensitivities, tangentSensitivities } from "./sensitivities.ts";
 import { snapDesign, type SnapReport } from "./snap_design.ts";
 import { formulateStep, LP_LIMIT_SHARE, snappedMerit } from "./slp_step.ts";
 
@@ -229,9 +229,12 @@ export async function relaxAndFixRunners(
   // Gates last: the usual snapping on the space of the gates alone.
   const gateOnly = gateSpaceAt(work, sizes);
   if (!gateOnly) return undefined;
-  const gateSnap = snapDesign(gateOnly.space, gateOnly.evaluation, undefined, {
-    merit: judgeOf,
-  });
+  const gateSnap = snapDesign(
+    gateOnly.space,
+    gateOnly.evaluation,
+    tangentSensitivities(gateOnly.space, gateOnly.evaluation),
+    { merit: judgeOf },
+  );
   simulations += gateOnly.simulations + gateSnap.simulations + 1;
   // Judged again in the full space, where the feed-order rules between runners apply.
   const full = evaluateDesign(space, remap(space, gateOnly.space, gateSnap.evaluation).x);
@@ -264,6 +267,6 @@ function gateSpaceAt(
     space.variables,
     (v) => Math.min(v.upper, Math.max(v.lower, sizes.get(v.element) ?? v.current)),
   );
-  const outcome = evaluateDesign(space, x);
+  const outcome = evaluateDesign(space, x, { slopes: true });
   return outcome.ok ? { space, evaluation: outcome.evaluation, simulations: 1 } : undefined;
 }

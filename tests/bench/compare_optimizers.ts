@@ -1,12 +1,15 @@
 /**
  * Side-by-side run of the sizing baselines (handbook rules, toolroom loop,
- * Nelder–Mead) and, when present, the SLP optimizer `optimizeBalance` from
- * src/optimize/balance.ts, on the 4-cavity family demo and generated family
- * layouts. Prints one table per run. Not a test and not a `Deno.bench`.
+ * Nelder–Mead) and the SLP optimizer `optimizeBalance` (tangent slopes, finite
+ * differences, and tangent slopes with the handbook design's imbalance as the
+ * target, for the runner mass at equal balance), on the 4-cavity family demo and
+ * generated family layouts. Prints one table. Not a test and not a `Deno.bench`.
  *
- *   deno run -A tests/bench/compare_optimizers.ts [--large] [--nm-budget N] [--trials N] [--only 4|16|64]
+ *   deno run -A tests/bench/compare_optimizers.ts [--large] [--nm-budget N] [--trials N] [--only 4|16|64] [--no-fd]
  *
- * `--large` adds familyLayout(64). Defaults: Nelder–Mead 400 simulations, toolroom 60 trials.
+ * `--large` adds familyLayout(64). Defaults: Nelder–Mead 400 simulations (0 skips it),
+ * toolroom 60 trials. "sims to target" counts simulations until a design first met the
+ * imbalance target; for the SLP, at the end of the iteration that accepted it.
  *
  * @module
  */
@@ -22,6 +25,8 @@ import {
   toolroomLoop,
 } from "../../src/optimize/baselines.ts";
 import { designSpace } from "../../src/optimize/design_space.ts";
+import type { DesignEvaluation } from "../../src/optimize/evaluate_design.ts";
+import { optimizeBalance, type OptimizeBalanceOptions } from "../../src/optimize/balance.ts";
 
 interface Row {
   case: string;
@@ -31,6 +36,9 @@ interface Row {
   simulations: number;
   wallTimeS: number;
   feasible: string;
+  /** Simulations when the imbalance target was first met / when every limit was first met. */
+  toBalanced?: number;
+  toFeasible?: number;
   reason: string;
 }
 
@@ -56,6 +64,11 @@ function summarise(codes: readonly unknown[]): string {
   return [...counts].map(([c, k]) => (k > 1 ? `${k}×${c}` : c)).join(", ");
 }
 
+function feasibility(e: DesignEvaluation | undefined): string {
+  if (!e) return "no (failed)";
+  return e.feasible ? "yes" : `no (${summarise(e.violations.map((v) => v.code))})`;
+}
+
 function rowOf(label: string, method: string, r: BaselineResult): Row {
   const e = r.evaluation;
   return {
@@ -65,58 +78,60 @@ function rowOf(label: string, method: string, r: BaselineResult): Row {
     runnerMassG: e ? e.runnerVolume * e.run.material.solidDensity * 1e3 : NaN,
     simulations: r.simulations,
     wallTimeS: r.wallTimeMs / 1e3,
-    feasible: e
-      ? (e.feasible ? "yes" : `no (${summarise(e.violations.map((v) => v.code))})`)
-      : "no (failed)",
+    feasible: feasibility(e),
+    toBalanced: r.firstBalanced,
+    toFeasible: r.firstFeasible,
     reason: r.reason,
   };
 }
 
-/**
- * Read the SLP optimizer's result defensively (its shape may still change):
- * `{ ok: true, outcome: { status, after, simulations } }` or `{ ok: false, code, message }`.
- */
-function rowOfBalance(label: string, result: unknown, wallTimeS: number): Row {
-  const r = (result ?? {}) as Record<string, unknown>;
-  const outcome = (r.outcome ?? r) as Record<string, unknown>;
-  const e = (outcome.after ?? outcome.evaluation) as Record<string, unknown> | undefined;
-  const run = e?.run as { material?: { solidDensity?: number } } | undefined;
-  const volume = typeof e?.runnerVolume === "number" ? e.runnerVolume : NaN;
-  const stop = [outcome.status, r.code].filter((s) => typeof s === "string").join(" ");
+/** One SLP run; `toBalanced`/`toFeasible` from its iteration history (accepted designs). */
+async function slpRow(
+  label: string,
+  method: string,
+  scenario: Scenario,
+  options: OptimizeBalanceOptions,
+): Promise<Row> {
+  const t = performance.now();
+  let toBalanced: number | undefined;
+  let toFeasible: number | undefined;
+  const target = scenario.goals.max_imbalance_percent;
+  const result = await optimizeBalance(scenario, {
+    ...options,
+    onProgress: (i) => {
+      if (i.imbalancePercent <= target) toBalanced ??= i.simulations;
+      if (i.feasible) toFeasible ??= i.simulations;
+    },
+  });
+  const wallTimeS = (performance.now() - t) / 1e3;
+  if (!result.ok) {
+    return {
+      case: label,
+      method,
+      imbalancePercent: NaN,
+      runnerMassG: NaN,
+      simulations: NaN,
+      wallTimeS,
+      feasible: `no (${result.code})`,
+      reason: result.message,
+    };
+  }
+  const o = result.outcome;
+  const e = o.after;
   return {
     case: label,
-    method: "SLP (optimizeBalance)",
-    imbalancePercent: typeof e?.imbalancePercent === "number" ? e.imbalancePercent : NaN,
-    runnerMassG: volume * (run?.material?.solidDensity ?? NaN) * 1e3,
-    simulations: typeof outcome.simulations === "number" ? outcome.simulations : NaN,
+    method,
+    imbalancePercent: e.imbalancePercent,
+    runnerMassG: e.runnerVolume * e.run.material.solidDensity * 1e3,
+    simulations: o.simulations,
     wallTimeS,
-    feasible: e === undefined
-      ? `no (${String(r.message ?? "no result")})`
-      : e.feasible === true
-      ? "yes"
-      : `no (${
-        Array.isArray(e.violations)
-          ? summarise(e.violations.map((v: { code?: string }) => v.code))
-          : ""
-      })`,
-    reason: stop,
+    feasible: feasibility(e),
+    toBalanced,
+    toFeasible,
+    reason: `${o.status}; continuous ${o.continuous.imbalancePercent.toFixed(2)} %, ${
+      (o.continuous.runnerVolume * o.continuous.run.material.solidDensity * 1e3).toFixed(2)
+    } g, ${o.continuous.feasible ? "feasible" : "infeasible"}`,
   };
-}
-
-async function loadBalance(): Promise<
-  ((scenario: Scenario, options: Record<string, unknown>) => unknown) | undefined
-> {
-  try {
-    const path = new URL("../../src/optimize/balance.ts", import.meta.url).href;
-    const module = await import(path);
-    if (typeof module.optimizeBalance === "function") return module.optimizeBalance;
-    console.error("src/optimize/balance.ts has no optimizeBalance export: SLP skipped");
-  } catch (error) {
-    console.error(
-      `SLP optimizer not available (${(error as Error).message.split("\n")[0]}): skipped`,
-    );
-  }
-  return undefined;
 }
 
 function printTable(rows: Row[]): void {
@@ -127,9 +142,12 @@ function printTable(rows: Row[]): void {
     "runner g",
     "sims",
     "wall s",
+    "sims to target",
+    "sims to all limits",
     "feasible",
     "stop",
   ];
+  const count = (n: number | undefined) => (n === undefined ? "never" : String(n));
   const cells = rows.map((r) => [
     r.case,
     r.method,
@@ -137,12 +155,14 @@ function printTable(rows: Row[]): void {
     r.runnerMassG.toFixed(2),
     String(r.simulations),
     r.wallTimeS.toFixed(2),
+    count(r.toBalanced),
+    count(r.toFeasible),
     r.feasible,
     r.reason,
   ]);
   const widths = header.map((h, k) => Math.max(h.length, ...cells.map((c) => c[k].length)));
   const line = (c: string[]) =>
-    c.map((s, k) => (k < 2 || k > 5 ? s.padEnd(widths[k]) : s.padStart(widths[k]))).join("  ");
+    c.map((s, k) => (k < 2 || k > 7 ? s.padEnd(widths[k]) : s.padStart(widths[k]))).join("  ");
   console.log(line(header));
   console.log(widths.map((w) => "-".repeat(w)).join("  "));
   for (const c of cells) console.log(line(c));
@@ -151,6 +171,7 @@ function printTable(rows: Row[]): void {
 const nmBudget = Number(flag("--nm-budget") ?? 400);
 const maxTrials = Number(flag("--trials") ?? 60);
 const only = flag("--only");
+const skipFd = Deno.args.includes("--no-fd");
 const cases: [string, () => unknown][] = [
   [
     "demo 4-cavity",
@@ -167,7 +188,6 @@ if (Deno.args.includes("--large")) {
   cases.push(["family 64", () => familyLayout(64, { gate: "edge" })]);
 }
 
-const optimizeBalance = await loadBalance();
 const rows: Row[] = [];
 for (const [label, make] of cases) {
   if (only !== undefined && !label.includes(only)) continue;
@@ -179,11 +199,18 @@ for (const [label, make] of cases) {
   const runs: [string, () => BaselineResult][] = [
     ["handbook rules", () => handbookSizing(space)],
     [`toolroom loop (≤ ${maxTrials})`, () => toolroomLoop(space, { maxTrials })],
-    [`Nelder–Mead (≤ ${nmBudget})`, () => nelderMead(space, { maxSimulations: nmBudget })],
   ];
+  if (nmBudget > 0) {
+    runs.push([
+      `Nelder–Mead (≤ ${nmBudget})`,
+      () => nelderMead(space, { maxSimulations: nmBudget }),
+    ]);
+  }
+  let handbook: Row | undefined;
   for (const [method, run] of runs) {
     console.error(`${label}: ${method} …`);
     const row = rowOf(label, method, run());
+    handbook ??= row;
     console.error(
       `  ${row.imbalancePercent.toFixed(2)} %, ${row.simulations} sims, ${
         row.wallTimeS.toFixed(1)
@@ -191,15 +218,33 @@ for (const [label, make] of cases) {
     );
     rows.push(row);
   }
-  if (optimizeBalance !== undefined) {
-    console.error(`${label}: SLP …`);
-    const t = performance.now();
-    try {
-      const result = await optimizeBalance(scenario, {});
-      rows.push(rowOfBalance(label, result, (performance.now() - t) / 1e3));
-    } catch (error) {
-      console.error(`  SLP failed: ${(error as Error).message}`);
-    }
+  const slp: [string, Scenario, OptimizeBalanceOptions][] = [
+    ["SLP, tangent slopes", scenario, { slopes: "tangent" }],
+    ["SLP, finite differences", scenario, { slopes: "finite_difference" }],
+  ];
+  // Runner mass at the handbook design's balance: the same goals with its imbalance as target.
+  if (handbook && Number.isFinite(handbook.imbalancePercent)) {
+    const equal = structuredClone(scenario);
+    equal.goals.max_imbalance_percent = Math.max(
+      equal.goals.max_imbalance_percent,
+      Math.ceil(handbook.imbalancePercent * 100) / 100,
+    );
+    slp.push([
+      `SLP, tangent, target = handbook's ${equal.goals.max_imbalance_percent} %`,
+      equal,
+      { slopes: "tangent" },
+    ]);
+  }
+  for (const [method, s, options] of slp) {
+    if (skipFd && options.slopes === "finite_difference") continue;
+    console.error(`${label}: ${method} …`);
+    const row = await slpRow(label, method, s, options);
+    console.error(
+      `  ${row.imbalancePercent.toFixed(2)} %, ${row.simulations} sims, ${
+        row.wallTimeS.toFixed(1)
+      } s`,
+    );
+    rows.push(row);
   }
 }
 printTable(rows);
