@@ -23,6 +23,7 @@ const USAGE = `evenfill — runner balancing for multi-cavity and family molds
 usage:
   evenfill simulate <scenario.json> [--json] [--history] [--csv] [--units metric|dual]
   evenfill optimize <scenario.json> [--mode new_tool|trim|steel_safe] [--json] [--history] [--csv]
+                    [--slopes tangent|finite_difference]
   evenfill validate <scenario.json>
   evenfill materials
   evenfill schema [--write <path>]
@@ -37,7 +38,7 @@ interface Args {
 function parseArgs(argv: readonly string[]): Args {
   const positional: string[] = [];
   const flags = new Map<string, string | true>();
-  const valued = new Set(["units", "write", "mode"]);
+  const valued = new Set(["units", "write", "mode", "slopes"]);
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i];
     if (a.startsWith("--")) {
@@ -131,7 +132,13 @@ export async function main(argv: readonly string[]): Promise<number> {
         }
         read.scenario.goals.mode = mode;
       }
+      const slopes = args.flags.get("slopes") ?? "tangent";
+      if (slopes !== "tangent" && slopes !== "finite_difference") {
+        console.error(`--slopes must be tangent or finite_difference, got ${slopes}`);
+        return 1;
+      }
       const result = await optimizeBalance(read.scenario, {
+        slopes,
         onProgress: (i) =>
           console.error(
             `iteration ${i.iteration}: ${i.accepted ? "accepted" : "rejected"}, imbalance ${

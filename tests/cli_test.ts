@@ -93,3 +93,25 @@ Deno.test("optimize --csv on the steel-safe demo: catalogue cutters, every chang
     lines.slice(1).map((_, i) => i + 1),
   );
 });
+
+Deno.test("optimize --slopes: finite differences are accepted, an unknown source exits 1 and says why", async () => {
+  const bad = await run([
+    "optimize",
+    "scenarios/two_gate_frame_and_knob.json",
+    "--slopes",
+    "adjoint",
+  ]);
+  assert.equal(bad.code, 1);
+  assert.match(bad.stderr, /--slopes must be tangent or finite_difference, got adjoint/);
+  const fd = await run([
+    "optimize",
+    "scenarios/two_gate_frame_and_knob.json",
+    "--slopes",
+    "finite_difference",
+    "--json",
+  ]);
+  assert.equal(fd.code, 0, fd.stderr);
+  const json = JSON.parse(fd.stdout);
+  // Steel-safe demo: whatever the slopes, nothing may shrink.
+  for (const c of json.changes) assert.ok(c.to_mm >= c.from_mm, `${c.element} shrinks`);
+});

@@ -1,6 +1,13 @@
 /**
- * Tangent slopes against finite differences at today's sizes, per demo and generated family.
- *   deno run -A tests/bench/tangent_check.ts
+ * Tangent slopes (one simulation carrying the tangent) against the optimizer's forward
+ * finite differences (one simulation per size) at today's sizes, with the cost of each, for
+ * the demos and generated families. Not a test.
+ *
+ *   deno run -A tests/bench/tangent_check.ts [family_four_housing|hot_drop_eight_caps|two_gate_frame_and_knob|gen16|gen64 …]
+ *
+ * ISO=1 runs every case isothermal; CENTRAL=h also prints central differences with relative
+ * step h beside the tangent for the first case's first six sizes.
+ *
  * @module
  */
 import { familyLayout } from "../../src/model/family_layout.ts";
