@@ -23,7 +23,12 @@ import {
   snappedMerit,
   violation,
 } from "./slp_step.ts";
-import { diveRunnerCutters, relaxAndFixRunners, remap } from "./snap_runners.ts";
+import {
+  diveRunnerCutters,
+  mixedIntegerRunnerCutters,
+  relaxAndFixRunners,
+  remap,
+} from "./snap_runners.ts";
 
 export { imbalanceViolation, LP_BAND_SHARE, violation };
 
@@ -146,6 +151,8 @@ export type BalanceResult =
  * gate by 2.7 %; 0.5 is kept until the snapping is less sensitive to where the optimum lies.
  */
 const MAX_TRUST_RADIUS = 0.5;
+/** Rounds of choosing the runner cutters together, each linearised where the last one landed. */
+const CUTTER_ROUNDS = 3;
 /** Relax-and-fix of the runner cutters is tried up to this many adjustable runners. */
 export const RELAX_AND_FIX_MAX_RUNNERS = 8;
 
@@ -390,30 +397,42 @@ export async function optimizeBalance(
     simulations += snapped.simulations;
     after = snapped.evaluation;
     snap = snapped;
-    // Cutter steps are coarse for runners (1 mm above 4 mm), fine for gates. Choose each
-    // runner's cutter with the gates free (a dive on the linear model), then balance again on
-    // the gates alone with the runners fixed, and snap those; keep whichever snapped design
-    // has the better merit.
+    // Cutter steps are coarse for runners (1 mm above 4 mm), fine for gates. Choose every
+    // runner's cutter at once with the gates free (a mixed-integer program on the linear
+    // model: one binary per runner between its two neighbouring cutters; the sequential dive
+    // if that fails), then balance again on the gates alone with the runners fixed, and snap
+    // those. While the result breaks a limit, linearise again at it (one simulation with its
+    // tangent) and choose again, up to CUTTER_ROUNDS times. Keep the best snapped design.
     const gates = space.variables.flatMap((v, j) => (v.kind === "gate" ? [j] : []));
     if (
       !after.feasible && linear && gates.length > 0 && gates.length < space.variables.length &&
       runnerCatalogue.kind === "discrete"
     ) {
-      const dive = await diveRunnerCutters(space, current, linear, solver, {
-        epsilon: LP_BAND_SHARE * epsilon,
-        V0,
-        catalogue: runnerCatalogue,
-      });
-      const fixed = applyDesign(space, dive ?? after.x);
-      for (const v of space.variables) {
-        if (v.kind === "runner") fixed.runners[v.index].adjustable = false;
-      }
-      const second = await optimizeBalance(fixed, {
-        ...options,
-        onProgress: undefined,
-        maxIterations: 20,
-      });
-      if (second.ok) {
+      const tried = new Set<string>();
+      let base = current;
+      let slopes: Sensitivities | undefined = linear;
+      for (let round = 0; round < CUTTER_ROUNDS && slopes && !after.feasible; round++) {
+        const cut = { epsilon: LP_BAND_SHARE * epsilon, V0, catalogue: runnerCatalogue };
+        const chosen = (await mixedIntegerRunnerCutters(space, base, slopes, solver, {
+          ...cut,
+          around: current.x,
+        })) ??
+          (round === 0 ? await diveRunnerCutters(space, current, linear, solver, cut) : undefined);
+        if (!chosen) break;
+        const key = space.variables.flatMap((v, j) => (v.kind === "runner" ? [chosen[j]] : []))
+          .join(",");
+        if (tried.has(key)) break;
+        tried.add(key);
+        const fixed = applyDesign(space, chosen);
+        for (const v of space.variables) {
+          if (v.kind === "runner") fixed.runners[v.index].adjustable = false;
+        }
+        const second = await optimizeBalance(fixed, {
+          ...options,
+          onProgress: undefined,
+          maxIterations: 20,
+        });
+        if (!second.ok) break;
         simulations += second.outcome.simulations;
         const refined = remap(space, second.outcome.space, second.outcome.after);
         if (judge(refined) < judge(after)) {
@@ -432,11 +451,19 @@ export async function optimizeBalance(
             evaluation: refined,
             simulations: snapped.simulations + second.outcome.simulations,
             choices: [...runnerChoices, ...(second.outcome.snap?.choices ?? [])],
-            message: `runner cutters chosen with the gates free, gates re-balanced and snapped: ${
-              second.outcome.snap?.message ?? "no gate snapping"
-            }`,
+            message:
+              `runner cutters chosen together with the gates free, gates re-balanced and snapped: ${
+                second.outcome.snap?.message ?? "no gate snapping"
+              }`,
           };
         }
+        if (after.feasible || round + 1 >= CUTTER_ROUNDS) break;
+        // Linearise again where this round landed.
+        const again = evaluateDesign(space, refined.x, { slopes: true });
+        simulations++;
+        if (!again.ok) break;
+        base = again.evaluation;
+        slopes = tangentSensitivities(space, base);
       }
     }
   }

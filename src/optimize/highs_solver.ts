@@ -105,6 +105,13 @@ export function formatCplexLp(lp: LinearProgram): CplexLpText {
     else if (up) lines.push(` -inf <= ${name} <= ${String(v.upper)}`);
     else lines.push(` ${name} free`);
   });
+  const integers = lp.variables.flatMap((v, j) => (v.integer ? [`x${j}`] : []));
+  if (integers.length > 0) {
+    lines.push("General");
+    for (let k = 0; k < integers.length; k += 8) {
+      lines.push(` ${integers.slice(k, k + 8).join(" ")}`);
+    }
+  }
   lines.push("End", "");
   return { text: lines.join("\n"), rowOrigin: Int32Array.from(origin) };
 }
@@ -293,6 +300,7 @@ function accept(
     if (k < written.rowOrigin.length) piScaled[written.rowOrigin[k]] += row.Dual ?? 0;
   });
   const x = unscaleSolution(scaled, xScaled);
+  if (lp.variables.some((v) => v.integer)) return acceptInteger(lp, x, tolerance);
   const duals: LpDuals = unscaleDuals(scaled, { rows: piScaled, columns: dScaled });
   const check = checkSolution(lp, x);
   if (!(check.maxViolation <= tolerance)) {
@@ -322,4 +330,36 @@ function accept(
     maxViolation: check.maxViolation,
     duals: certificate.duals,
   };
+}
+
+/**
+ * A mixed-integer answer: integer columns rounded (after checking they are within 1e-6 of an
+ * integer), then feasibility checked on the unscaled model. There are no duals to certify
+ * optimality with; HiGHS's branch and bound closes its own gap (default 1e-4 relative).
+ */
+function acceptInteger(lp: LinearProgram, x: Float64Array, tolerance: number): LpResult {
+  for (let j = 0; j < x.length; j++) {
+    if (!lp.variables[j].integer) continue;
+    const r = Math.round(x[j]);
+    if (Math.abs(x[j] - r) > 1e-6) {
+      return {
+        status: "error",
+        code: "check_failed",
+        message: `HiGHS said optimal but integer variable ${j} (${lp.variables[j].name}) is ${
+          x[j]
+        }`,
+      };
+    }
+    x[j] = r === 0 ? 0 : r; // no −0
+  }
+  const check = checkSolution(lp, x);
+  if (!(check.maxViolation <= tolerance)) {
+    return {
+      status: "error",
+      code: "check_failed",
+      message: `HiGHS said optimal but ${check.worst} is violated by ${check.maxViolation} ` +
+        `(relative; tolerance ${tolerance})`,
+    };
+  }
+  return { status: "optimal", x, objective: check.objective, maxViolation: check.maxViolation };
 }

@@ -28,6 +28,12 @@ export interface LpVariable {
   upper: number;
   /** Objective coefficient (finite). */
   cost: number;
+  /**
+   * Integer-valued (a mixed-integer program). Only the HiGHS adapter solves these (branch
+   * and bound); its answer is then checked for feasibility and integrality, not certified
+   * optimal by duality.
+   */
+  integer?: boolean;
 }
 
 /** One sparse constraint row: lower ≤ Σ coefficient·x[variable] ≤ upper. */
@@ -286,7 +292,10 @@ export function scaleProgram(lp: LinearProgram, options: ScaleOptions = {}): Sca
     lp.rows.forEach((row, i) => {
       for (const [j, a] of row.terms) big[j] = Math.max(big[j], Math.abs(a * rowFactors[i]));
     });
-    for (let j = 0; j < n; j++) columnFactors[j] = powerOfTwoInverse(big[j]);
+    for (let j = 0; j < n; j++) {
+      // An integer column keeps its unit: scaling would change which values are integers.
+      columnFactors[j] = lp.variables[j].integer ? 1 : powerOfTwoInverse(big[j]);
+    }
   }
   let bigCost = 0;
   lp.variables.forEach((
@@ -301,6 +310,7 @@ export function scaleProgram(lp: LinearProgram, options: ScaleOptions = {}): Sca
       lower: v.lower / columnFactors[j],
       upper: v.upper / columnFactors[j],
       cost: v.cost * columnFactors[j] * objectiveFactor,
+      ...(v.integer ? { integer: true } : {}),
     })),
     rows: lp.rows.map((row, i) => ({
       name: row.name,

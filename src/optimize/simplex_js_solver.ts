@@ -85,6 +85,13 @@ export function createSimplexJsSolver(options: SimplexJsSolverOptions = {}): LpS
 
   const solve = (lp: LinearProgram, solveOptions: LpSolveOptions = {}): Promise<LpResult> => {
     validateProgram(lp);
+    if (lp.variables.some((v) => v.integer)) {
+      return Promise.resolve({
+        status: "error",
+        code: "solver_failure",
+        message: "the javascript-lp-solver adapter does not take integer variables: use HiGHS",
+      });
+    }
     const tolerance = solveOptions.feasibilityTolerance ?? SIMPLEX_JS_DEFAULT_FEASIBILITY_TOLERANCE;
     const crossed = trivialInfeasibility(lp);
     if (crossed !== undefined) return Promise.resolve({ status: "infeasible", message: crossed });

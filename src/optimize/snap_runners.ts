@@ -125,6 +125,90 @@ export async function diveRunnerCutters(
 }
 
 /**
+ * Runner cutters for every runner at once: a mixed-integer program on the linear model at
+ * `e` (the LP of `slp_step.ts` with exact bounds, no trust region) in which each runner's
+ * log size is tied to a binary choosing between the two permitted cutters that neighbour
+ * its size in `around` (the continuous optimum; one cutter when it sits on one or only one
+ * is permitted), gates free within their bounds. Returns the design (runners exactly on
+ * cutters, gates at the program's sizes), or undefined when the solver cannot (it needs
+ * integer variables: HiGHS).
+ */
+export async function mixedIntegerRunnerCutters(
+  space: DesignSpace,
+  e: DesignEvaluation,
+  s: Sensitivities,
+  solver: LpSolver,
+  o: { epsilon: number; V0: number; catalogue: CutterCatalogue; around: Float64Array },
+): Promise<Float64Array | undefined> {
+  const steelSafe = space.scenario.goals.mode === "steel_safe";
+  const lower = space.variables.map((v) => v.lower);
+  const upper = space.variables.map((v) => v.upper);
+  const sides = new Map<number, number[]>();
+  space.variables.forEach((v, j) => {
+    if (v.kind !== "runner") return;
+    const { below, above, exact } = neighbouringSizes(o.catalogue, o.around[j]);
+    let list = (exact ? [exact.size] : [below?.size, above?.size]).filter((x): x is number =>
+      x !== undefined && x >= v.cutterLower * (1 - 1e-9) && x <= v.upper * (1 + 1e-9) &&
+      (!steelSafe || x >= v.current * (1 - 1e-9))
+    );
+    if (list.length === 0) list = [above?.size ?? below?.size ?? o.around[j]];
+    list.sort((a, b) => a - b);
+    sides.set(j, list);
+    lower[j] = list[0];
+    upper[j] = list[list.length - 1];
+  });
+  // The rows start from the simulated fill times and peak shears, which are what the snapped
+  // design is judged on, not from their smooth stand-ins (which the continuous optimum
+  // may leave outside the LP's band while the simulated ones are inside it): each row is
+  // shifted by the gap between the two, and keeps the stand-in's slopes.
+  const tTrue = Math.max(...e.fillTimes);
+  const tSplit = Math.max(...e.splitFillTimes);
+  const gap = (a: number, b: number) => (a > 0 && b > 0 ? Math.log(a / b) : 0);
+  const program = formulateStep(space, e, s, {
+    radius: 1,
+    epsilon: o.epsilon,
+    limitShare: LP_LIMIT_SHARE,
+    V0: o.V0,
+    bounds: { lower, upper },
+    exactBounds: true,
+    shifts: {
+      times: e.fillTimes.map((t, i) => gap(t / tTrue, e.splitFillTimes[i] / tSplit)),
+      shear: e.gateShear.map((g, i) => gap(g, e.gateShearBalanced[i])),
+      pressure: 0,
+    },
+  });
+  // Meeting the limits comes first here: the slacks cost a hundred times the step LP's penalty,
+  // so the program never buys runner volume with imbalance.
+  const variables = program.lp.variables.map((v, k) =>
+    k >= space.variables.length && v.cost > 0 ? { ...v, cost: 100 * v.cost } : v
+  );
+  const rows = [...program.lp.rows];
+  const binary = new Map<number, number>();
+  for (const [j, list] of sides) {
+    if (list.length < 2) continue;
+    binary.set(j, variables.length);
+    const element = space.variables[j].element;
+    variables.push({ name: `${element} cutter`, lower: 0, upper: 1, cost: 0, integer: true });
+    // ln(x_j/e.x_j) = ln(below/e.x_j) + b·ln(above/below): on one cutter or the other.
+    const at = Math.log(list[0] / e.x[j]);
+    rows.push({
+      name: `${element} on a cutter`,
+      terms: [[j, 1], [binary.get(j)!, -Math.log(list[1] / list[0])]],
+      lower: at,
+      upper: at,
+    });
+  }
+  const lp = await solver.solve({ ...program.lp, variables, rows }, { timeLimitSeconds: 20 });
+  if (lp.status !== "optimal") return undefined;
+  const x = Float64Array.from(space.variables, (_, j) => e.x[j] * Math.exp(lp.x[j]));
+  for (const [j, list] of sides) {
+    const b = binary.get(j);
+    x[j] = b === undefined ? list[0] : list[lp.x[b] > 0.5 ? 1 : 0];
+  }
+  return x;
+}
+
+/**
  * Relax-and-fix for the runner cutters: among the runners whose fed runners are
  * all fixed, fix the one whose nearest permitted cutter is furthest from its size
  * (never smaller than a runner it feeds), re-balance every size still free (a short SLP from

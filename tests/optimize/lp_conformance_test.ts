@@ -527,3 +527,41 @@ Deno.test("javascript-lp-solver adapter refuses programs above maxVariables", as
   const r = await simplexJs.solve(lp);
   assert.ok(r.status === "error" && r.code === "solver_failure", JSON.stringify(r));
 });
+
+Deno.test("integer program: max 5x₁ + 8x₂, x₁ + x₂ ≤ 6, 5x₁ + 9x₂ ≤ 45 → 40 at (0, 5) on HiGHS", async () => {
+  // A branch-and-bound teaching example (from memory, of the kind in Hillier & Lieberman's
+  // integer programming chapter): the LP relaxation's optimum is 41.25 at (2.25, 3.75); the
+  // integer optimum is checked here by enumerating every integer point as well.
+  const program: LinearProgram = {
+    sense: "maximize",
+    variables: [
+      { ...v("x1", 0, 10, 5), integer: true },
+      { ...v("x2", 0, 10, 8), integer: true },
+    ],
+    rows: [row("c1", [1, 1], -INF, 6), row("c2", [5, 9], -INF, 45)],
+  };
+  let best = { z: -INF, x: [NaN, NaN] };
+  for (let x1 = 0; x1 <= 10; x1++) {
+    for (let x2 = 0; x2 <= 10; x2++) {
+      if (x1 + x2 <= 6 && 5 * x1 + 9 * x2 <= 45 && 5 * x1 + 8 * x2 > best.z) {
+        best = { z: 5 * x1 + 8 * x2, x: [x1, x2] };
+      }
+    }
+  }
+  assert.deepEqual(best, { z: 40, x: [0, 5] });
+  const relaxed = optimal(
+    await highs.solve({
+      ...program,
+      variables: program.variables.map(({ integer: _, ...rest }) => rest),
+    }),
+    "relaxation",
+  );
+  assertClose(relaxed.objective, 41.25, { rel: 1e-9, what: "LP relaxation" });
+  const r = optimal(await highs.solve(program), "integer program");
+  assert.equal(r.objective, 40);
+  assert.deepEqual(Array.from(r.x), [0, 5]);
+  assert.match(formatCplexLp(program).text, /\nGeneral\n x0 x1\n/);
+  // The JS adapter says plainly that it does not take integer variables.
+  const js = await simplexJs.solve(program);
+  assert.equal(js.status, "error");
+});
