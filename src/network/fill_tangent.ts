@@ -30,7 +30,7 @@
  */
 
 import type { NetworkElement } from "./feed_network.ts";
-import { analyse, type SymbolicCholesky } from "./sparse_cholesky.ts";
+import { analyse, type NumericCholesky, type SymbolicCholesky } from "./sparse_cholesky.ts";
 
 /** Directions along which {@link simulateFill} carries the tangent. */
 export interface FillTangentRequest {
@@ -63,18 +63,18 @@ export interface LinearBranch {
 }
 
 /**
- * Solve the linearised network for every direction: given each branch's conductance
- * g = 1/(dΔP/dQ) and its pressure-drop changes σ[j] at fixed flow, return the branch
- * flow changes δQ[j] and node pressure changes δp[j] with no change of the inflow.
- * `symbolic` is the cached analysis of this branch set (see {@link linearPattern}).
+ * Factor the linearised network's nodal matrix: the Laplacian weighted by each branch's
+ * conductance g = 1/(dΔP/dQ), fronts (b = −1) at 0 Pa, the inflow prescribed. A branch whose
+ * drop changes by σ at fixed flow then moves the nodes by the solution of A·δp = r with
+ * r_a += g·σ, r_b −= g·σ, and its flow by δQ = g·(δp_a − δp_b − σ). `symbolic` is the cached
+ * analysis of this branch set (see {@link linearPattern}). Undefined if not positive definite.
  */
-export function solveLinearised(
+export function factorLaplacian(
   nodeCount: number,
   branches: readonly LinearBranch[],
   conductance: Float64Array,
-  sources: readonly Float64Array[],
   symbolic: SymbolicCholesky,
-): { flows: Float64Array[]; pressures: Float64Array[] } | undefined {
+): NumericCholesky | undefined {
   const diagonal = new Float64Array(nodeCount);
   const off: number[] = [];
   branches.forEach((br, k) => {
@@ -85,25 +85,7 @@ export function solveLinearised(
     }
   });
   const factored = symbolic.factor({ diagonal, offDiagonal: off });
-  if (!factored.ok) return undefined;
-  const flows: Float64Array[] = [];
-  const pressures: Float64Array[] = [];
-  for (const sigma of sources) {
-    const rhs = new Float64Array(nodeCount);
-    branches.forEach((br, k) => {
-      const s = conductance[k] * sigma[k];
-      rhs[br.a] += s;
-      if (br.b >= 0) rhs[br.b] -= s;
-    });
-    const p = factored.factor.solve(rhs);
-    const q = new Float64Array(branches.length);
-    branches.forEach((br, k) => {
-      q[k] = conductance[k] * (p[br.a] - (br.b >= 0 ? p[br.b] : 0) - sigma[k]);
-    });
-    flows.push(q);
-    pressures.push(p);
-  }
-  return { flows, pressures };
+  return factored.ok ? factored.factor : undefined;
 }
 
 /** Symbolic analysis of the weighted Laplacian of a branch set (entries in branch order, internal branches only). */

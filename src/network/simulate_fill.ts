@@ -11,10 +11,10 @@ import { adiabaticHeating, frozenLayerThickness } from "../physics/thermal.ts";
 import { taperedFilledLength } from "./_fill_geometry.ts";
 import type { FeedNetwork, NetworkElement } from "./feed_network.ts";
 import {
+  factorLaplacian,
   type FillTangentRequest,
   type LinearBranch,
   linearPattern,
-  solveLinearised,
 } from "./fill_tangent.ts";
 import type {
   CavityFigures,
@@ -513,8 +513,14 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
     Assembly,
     { local: LinearBranch[]; symbolic: ReturnType<typeof linearPattern> }
   >();
-  /** δQ per direction for the branches of the state last evaluated, and δp at the inlet. */
-  let dFlows: Float64Array[] = [];
+  /**
+   * For the state last evaluated: its filling branches (indices into its branches) and their
+   * δQ per direction (`flows[j·P + q]`), and δp at the inlet per direction.
+   */
+  let tangentFlows: { partials: number[]; flows: Float64Array } = {
+    partials: [],
+    flows: new Float64Array(0),
+  };
   let dInlet = new Float64Array(m);
   const tangentCavity: Float64Array[] = [];
   let firstFillShift: Float64Array | undefined;
@@ -535,49 +541,87 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
       patterns.set(s.assembly, pattern);
     }
     const g = new Float64Array(K);
-    const sources = Array.from({ length: m }, () => new Float64Array(K));
+    for (let k = 0; k < K; k++) g[k] = 1 / s.channel[k].dPressureDropDFlow;
+    // Sparse sources: each direction changes its own element's law; every filling branch
+    // adds ∂ΔP/∂v·δv. Only the filling branches' δQ are kept (they drive δv).
+    const direct: { j: number; k: number; drop: number }[] = [];
+    const partials: number[] = [];
+    const slopeV: number[] = [];
     for (let k = 0; k < K; k++) {
       const br = branches[k];
       const c = s.channel[k];
-      g[k] = 1 / c.dPressureDropDFlow;
       for (const { j, element } of changedBy[br.element]) {
-        sources[j][k] += lawOf(br, t, fill, element)(s.flows[k]).pressureDrop - c.pressureDrop;
+        const drop = lawOf(br, t, fill, element)(s.flows[k]).pressureDrop - c.pressureDrop;
+        direct.push({ j, k, drop });
       }
       if (br.side < 0) continue;
+      partials.push(k);
       const index = 2 * br.element + br.side;
       let any = false;
       for (let j = 0; j < m && !any; j++) any = dv[j][index] !== 0;
-      if (!any) continue;
+      if (!any) {
+        slopeV.push(0);
+        continue;
+      }
       const e = elements[br.element];
       const v = fill[index];
       const dvol = Math.max(Math.abs(v) * 1e-4, e.volume * 1e-7);
       const probe = fill.slice();
       probe[index] = v + dvol;
-      const slope = (lawOf(br, t, probe)(s.flows[k]).pressureDrop - c.pressureDrop) / dvol;
-      for (let j = 0; j < m; j++) sources[j][k] += slope * dv[j][index];
+      slopeV.push((lawOf(br, t, probe)(s.flows[k]).pressureDrop - c.pressureDrop) / dvol);
     }
-    const solved = solveLinearised(
-      s.assembly.nodeCount,
-      pattern.local,
-      g,
-      sources,
-      pattern.symbolic,
-    );
-    if (!solved) {
+    const factor = factorLaplacian(s.assembly.nodeCount, pattern.local, g, pattern.symbolic);
+    if (!factor) {
       tangentOn = false;
       return;
     }
-    dFlows = solved.flows;
+    const P = partials.length;
     const inlet = s.assembly.local[network.inlet];
-    dInlet = Float64Array.from(solved.pressures, (p) => p[inlet]);
+    const rhs = new Float64Array(s.assembly.nodeCount);
+    const sigma = new Float64Array(P);
+    const byDirection: { k: number; drop: number }[][] = Array.from({ length: m }, () => []);
+    for (const d of direct) byDirection[d.j].push(d);
+    const partialOf = new Int32Array(K).fill(-1);
+    partials.forEach((k, q) => (partialOf[k] = q));
+    const flows = new Float64Array(m * P);
+    const inletChange = new Float64Array(m);
+    for (let j = 0; j < m; j++) {
+      rhs.fill(0);
+      for (let q = 0; q < P; q++) {
+        const k = partials[q];
+        const br = branches[k];
+        sigma[q] = slopeV[q] * dv[j][2 * br.element + br.side];
+      }
+      for (const { k, drop } of byDirection[j]) {
+        const q = partialOf[k];
+        if (q >= 0) sigma[q] += drop;
+        else {
+          const { a, b } = pattern.local[k];
+          rhs[a] += g[k] * drop;
+          if (b >= 0) rhs[b] -= g[k] * drop;
+        }
+      }
+      for (let q = 0; q < P; q++) rhs[pattern.local[partials[q]].a] += g[partials[q]] * sigma[q];
+      factor.solve(rhs, rhs);
+      // A filling branch ends at its front (0 Pa): δQ = g·(δp_a − σ).
+      for (let q = 0; q < P; q++) {
+        const k = partials[q];
+        flows[j * P + q] = g[k] * (rhs[pattern.local[k].a] - sigma[q]);
+      }
+      inletChange[j] = rhs[inlet];
+    }
+    tangentFlows = { partials, flows };
+    dInlet = inletChange;
   };
   /** Euler step of δv over `dt` with the δQ of the state the step started from. */
   const tangentAdvance = (s0: Solved, dt: number) => {
     if (!tangentOn) return;
-    s0.assembly.branches.forEach((br, k) => {
-      if (br.side < 0) return;
+    const { partials, flows } = tangentFlows;
+    const P = partials.length;
+    partials.forEach((k, q) => {
+      const br = s0.assembly.branches[k];
       const index = 2 * br.element + br.side;
-      for (let j = 0; j < m; j++) dv[j][index] += dt * dFlows[j][k];
+      for (let j = 0; j < m; j++) dv[j][index] += dt * flows[j * P + q];
     });
   };
   /** Shift of each newly full element's fill time along each direction, s. */

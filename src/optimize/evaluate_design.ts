@@ -68,6 +68,8 @@ export interface DesignSlopes {
   fillTime: number[][];
   /** pressure[j]: ∂(feed pressure at the split reference instant)/∂x_j, Pa per m. */
   pressure: number[];
+  /** runnerVolume[j]: ∂(cold runner volume)/∂x_j from the changed elements' volumes, m³ per m. */
+  runnerVolume: number[];
 }
 
 /** Options of {@link evaluateDesign}. */
@@ -181,7 +183,7 @@ export function evaluateDesign(
       runnerVolume: run.network.coldRunnerVolume,
       violations,
       feasible: violations.length === 0,
-      slopes: directions ? slopesOf(run, split, x) : undefined,
+      slopes: directions ? slopesOf(run, split, x, directions) : undefined,
     },
   };
 }
@@ -191,17 +193,13 @@ export function evaluateDesign(
  * {@link TANGENT_RELATIVE_STEP} (the same scenario otherwise, so element indices agree).
  */
 function tangentDirections(space: DesignSpace, x: Float64Array): NetworkElement[][] {
-  const base = buildNetwork(applyDesign(space, x));
-  if (!base.ok) return [];
-  return space.variables.map((_, j) => {
+  return space.variables.map((v, j) => {
     const y = Float64Array.from(x);
     y[j] *= 1 + TANGENT_RELATIVE_STEP;
     const built = buildNetwork(applyDesign(space, y));
     if (!built.ok) return [];
-    return built.network.elements.filter((e, k) => {
-      const b = base.network.elements[k];
-      return e.volume !== b.volume || JSON.stringify(e.geometry) !== JSON.stringify(b.geometry);
-    });
+    // A runner or gate is one element of the network, under its own id.
+    return built.network.elements.filter((e) => e.id === v.element && e.kind === v.kind);
   });
 }
 
@@ -210,6 +208,7 @@ function slopesOf(
   run: ScenarioRun,
   split: SplitFigures,
   x: Float64Array,
+  directions: readonly (readonly NetworkElement[])[],
 ): DesignSlopes | undefined {
   const tangent = run.fill.tangent;
   const reach = Math.max(split.now?.k ?? Infinity, split.earlier?.k ?? Infinity);
@@ -254,7 +253,14 @@ function slopesOf(
     });
     pressure[j] = (interpolate(now, (k) => tangent.feedPressure[k][j]) + pressureRate * dRef) / h;
   }
-  return { fillTime, pressure };
+  // Cold feed-system volume: every changed element that is not a hot drop.
+  const runnerVolume = directions.map((changed, j) =>
+    changed.reduce(
+      (sum, e) => (e.heated ? sum : sum + e.volume - run.network.elements[e.index].volume),
+      0,
+    ) / (x[j] * TANGENT_RELATIVE_STEP)
+  );
+  return { fillTime, pressure, runnerVolume };
 }
 
 /** Share of the total cavity volume filled at the split reference instant. */

@@ -83,7 +83,7 @@ export function finiteDifferenceSensitivities(
  * Sensitivities from the tangent the simulation of `e` carried (`evaluateDesign` with
  * `slopes`): split fill times and reference pressure from the tangent-linear fill
  * (`network/fill_tangent.ts`), gate shear by the mean-flow law above, runner volume
- * from geometry. No extra simulation; undefined if `e` has no slopes.
+ * from the volumes of the elements each size changes. No extra simulation; undefined if `e` has no slopes.
  */
 export function tangentSensitivities(
   space: DesignSpace,
@@ -100,7 +100,7 @@ export function tangentSensitivities(
     pressure: slopes.pressure.map((g) =>
       finite(g) * (e.feedPressurePeak / e.feedPressureReference)
     ),
-    runnerVolume: runnerVolumeSlopes(space, e.x),
+    runnerVolume: slopes.runnerVolume,
     simulations: 0,
   };
 }

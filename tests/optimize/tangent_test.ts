@@ -48,6 +48,11 @@ Deno.test("tangent: feed-pressure slope of a runner is −(3n+1)·ΔP_runner/D (
       rel: 0.01,
       what: `∂p/∂D at n = ${n}, Pa/m`,
     });
+    // A round runner's volume πD²L/4 grows by πDL/2 per metre of diameter.
+    assertClose(e.slopes.runnerVolume[0], (Math.PI * D * L) / 2, {
+      rel: 1e-3,
+      what: "∂V/∂D, m³/m",
+    });
   }
 });
 
