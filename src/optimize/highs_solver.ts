@@ -303,14 +303,8 @@ function accept(
   if (lp.variables.some((v) => v.integer)) return acceptInteger(lp, x, tolerance);
   const duals: LpDuals = unscaleDuals(scaled, { rows: piScaled, columns: dScaled });
   const check = checkSolution(lp, x);
-  if (!(check.maxViolation <= tolerance)) {
-    return {
-      status: "error",
-      code: "check_failed",
-      message: `HiGHS said optimal but ${check.worst} is violated by ${check.maxViolation} ` +
-        `(relative; tolerance ${tolerance})`,
-    };
-  }
+  const broken = violatedAnswer(check, tolerance);
+  if (broken) return broken;
   let certificate = certifyOptimality(lp, x, { duals });
   // HiGHS duals can be polluted by scaling round-off on nearly degenerate rows; an independent
   // estimate from the active set settles it before an answer is rejected.
@@ -353,13 +347,21 @@ function acceptInteger(lp: LinearProgram, x: Float64Array, tolerance: number): L
     x[j] = r === 0 ? 0 : r; // no −0
   }
   const check = checkSolution(lp, x);
-  if (!(check.maxViolation <= tolerance)) {
-    return {
-      status: "error",
-      code: "check_failed",
-      message: `HiGHS said optimal but ${check.worst} is violated by ${check.maxViolation} ` +
-        `(relative; tolerance ${tolerance})`,
-    };
-  }
+  const broken = violatedAnswer(check, tolerance);
+  if (broken) return broken;
   return { status: "optimal", x, objective: check.objective, maxViolation: check.maxViolation };
+}
+
+/** The `check_failed` result for an answer that breaks the program by more than `tolerance`. */
+function violatedAnswer(
+  check: ReturnType<typeof checkSolution>,
+  tolerance: number,
+): LpResult | undefined {
+  if (check.maxViolation <= tolerance) return undefined;
+  return {
+    status: "error",
+    code: "check_failed",
+    message: `HiGHS said optimal but ${check.worst} is violated by ${check.maxViolation} ` +
+      `(relative; tolerance ${tolerance})`,
+  };
 }

@@ -69,35 +69,18 @@ export async function diveRunnerCutters(
   solver: LpSolver,
   o: { epsilon: number; V0: number; catalogue: CutterCatalogue },
 ): Promise<Float64Array | undefined> {
-  const steelSafe = space.scenario.goals.mode === "steel_safe";
   const lower = space.variables.map((v) => v.lower);
   const upper = space.variables.map((v) => v.upper);
   const options: { j: number; sides: number[]; spread: number }[] = [];
-  space.variables.forEach((v, j) => {
-    if (v.kind !== "runner") return;
-    const { below, above, exact } = neighbouringSizes(o.catalogue, e.x[j]);
-    let sides = exact
-      ? [exact.size]
-      : [below?.size, above?.size].filter((x): x is number =>
-        x !== undefined && x >= v.cutterLower * (1 - 1e-9) && x <= v.upper * (1 + 1e-9)
-      );
-    if (steelSafe) sides = sides.filter((x) => x >= v.current * (1 - 1e-9));
-    if (sides.length === 0) sides = [above?.size ?? below?.size ?? e.x[j]];
-    lower[j] = Math.min(...sides);
-    upper[j] = Math.max(...sides);
+  for (const [j, sides] of runnerCutterSides(space, o.catalogue, e.x)) {
+    lower[j] = sides[0];
+    upper[j] = sides[sides.length - 1];
     options.push({ j, sides, spread: Math.log(upper[j] / lower[j]) });
-  });
+  }
   options.sort((a, b) => b.spread - a.spread);
   let last: Float64Array | undefined;
   const solveWith = async () => {
-    const program = formulateStep(space, e, s, {
-      radius: 1,
-      epsilon: o.epsilon,
-      limitShare: LP_LIMIT_SHARE,
-      V0: o.V0,
-      bounds: { lower, upper },
-      exactBounds: true,
-    });
+    const program = cutterProgram(space, e, s, o, { lower, upper });
     const lp = await solver.solve(program.lp, { timeLimitSeconds: 20 });
     if (lp.status !== "optimal") return undefined;
     return {
@@ -140,23 +123,13 @@ export async function mixedIntegerRunnerCutters(
   solver: LpSolver,
   o: { epsilon: number; V0: number; catalogue: CutterCatalogue; around: Float64Array },
 ): Promise<Float64Array | undefined> {
-  const steelSafe = space.scenario.goals.mode === "steel_safe";
   const lower = space.variables.map((v) => v.lower);
   const upper = space.variables.map((v) => v.upper);
-  const sides = new Map<number, number[]>();
-  space.variables.forEach((v, j) => {
-    if (v.kind !== "runner") return;
-    const { below, above, exact } = neighbouringSizes(o.catalogue, o.around[j]);
-    let list = (exact ? [exact.size] : [below?.size, above?.size]).filter((x): x is number =>
-      x !== undefined && x >= v.cutterLower * (1 - 1e-9) && x <= v.upper * (1 + 1e-9) &&
-      (!steelSafe || x >= v.current * (1 - 1e-9))
-    );
-    if (list.length === 0) list = [above?.size ?? below?.size ?? o.around[j]];
-    list.sort((a, b) => a - b);
-    sides.set(j, list);
+  const sides = runnerCutterSides(space, o.catalogue, o.around);
+  for (const [j, list] of sides) {
     lower[j] = list[0];
     upper[j] = list[list.length - 1];
-  });
+  }
   // The rows start from the simulated fill times and peak shears, which are what the snapped
   // design is judged on, not from their smooth stand-ins (which the continuous optimum
   // may leave outside the LP's band while the simulated ones are inside it): each row is
@@ -164,18 +137,10 @@ export async function mixedIntegerRunnerCutters(
   const tTrue = Math.max(...e.fillTimes);
   const tSplit = Math.max(...e.splitFillTimes);
   const gap = (a: number, b: number) => (a > 0 && b > 0 ? Math.log(a / b) : 0);
-  const program = formulateStep(space, e, s, {
-    radius: 1,
-    epsilon: o.epsilon,
-    limitShare: LP_LIMIT_SHARE,
-    V0: o.V0,
-    bounds: { lower, upper },
-    exactBounds: true,
-    shifts: {
-      times: e.fillTimes.map((t, i) => gap(t / tTrue, e.splitFillTimes[i] / tSplit)),
-      shear: e.gateShear.map((g, i) => gap(g, e.gateShearBalanced[i])),
-      pressure: 0,
-    },
+  const program = cutterProgram(space, e, s, o, { lower, upper }, {
+    times: e.fillTimes.map((t, i) => gap(t / tTrue, e.splitFillTimes[i] / tSplit)),
+    shear: e.gateShear.map((g, i) => gap(g, e.gateShearBalanced[i])),
+    pressure: 0,
   });
   // Meeting the limits comes first here: the slacks cost a hundred times the step LP's penalty,
   // so the program never buys runner volume with imbalance.
@@ -206,6 +171,51 @@ export async function mixedIntegerRunnerCutters(
     x[j] = b === undefined ? list[0] : list[lp.x[b] > 0.5 ? 1 : 0];
   }
   return x;
+}
+
+/**
+ * Each runner's permitted cutters around its size in `around`, ascending: the two
+ * neighbours (or the exact one) within its rule bounds, never below today's in
+ * steel-safe mode; the nearest available when none qualifies.
+ */
+function runnerCutterSides(
+  space: DesignSpace,
+  catalogue: CutterCatalogue,
+  around: ArrayLike<number>,
+): Map<number, number[]> {
+  const steelSafe = space.scenario.goals.mode === "steel_safe";
+  const sides = new Map<number, number[]>();
+  space.variables.forEach((v, j) => {
+    if (v.kind !== "runner") return;
+    const { below, above, exact } = neighbouringSizes(catalogue, around[j]);
+    let list = (exact ? [exact.size] : [below?.size, above?.size]).filter((x): x is number =>
+      x !== undefined && x >= v.cutterLower * (1 - 1e-9) && x <= v.upper * (1 + 1e-9) &&
+      (!steelSafe || x >= v.current * (1 - 1e-9))
+    );
+    if (list.length === 0) list = [above?.size ?? below?.size ?? around[j]];
+    sides.set(j, list.sort((a, b) => a - b));
+  });
+  return sides;
+}
+
+/** The step LP for choosing cutters: exact bounds, no trust region, aims as in the loop. */
+function cutterProgram(
+  space: DesignSpace,
+  e: DesignEvaluation,
+  s: Sensitivities,
+  o: { epsilon: number; V0: number },
+  bounds: { lower: number[]; upper: number[] },
+  shifts?: { times: number[]; shear: number[]; pressure: number },
+) {
+  return formulateStep(space, e, s, {
+    radius: 1,
+    epsilon: o.epsilon,
+    limitShare: LP_LIMIT_SHARE,
+    V0: o.V0,
+    bounds,
+    exactBounds: true,
+    shifts,
+  });
 }
 
 /**
