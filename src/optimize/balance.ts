@@ -416,7 +416,7 @@ export async function optimizeBalance(
         const chosen = (await mixedIntegerRunnerCutters(space, base, slopes, solver, {
           ...cut,
           around: current.x,
-        })) ??
+        }))?.x ??
           (round === 0 ? await diveRunnerCutters(space, current, linear, solver, cut) : undefined);
         if (!chosen) break;
         const key = space.variables.flatMap((v, j) => (v.kind === "runner" ? [chosen[j]] : []))

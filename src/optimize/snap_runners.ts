@@ -113,19 +113,27 @@ export async function diveRunnerCutters(
  * log size is tied to a binary choosing between the two permitted cutters that neighbour
  * its size in `around` (the continuous optimum; one cutter when it sits on one or only one
  * is permitted), gates free within their bounds. Returns the design (runners exactly on
- * cutters, gates at the program's sizes), or undefined when the solver cannot (it needs
- * integer variables: HiGHS).
+ * cutters, gates at the program's sizes) and the program's objective, or undefined when
+ * the solver cannot (it needs integer variables: HiGHS).
  */
 export async function mixedIntegerRunnerCutters(
   space: DesignSpace,
   e: DesignEvaluation,
   s: Sensitivities,
   solver: LpSolver,
-  o: { epsilon: number; V0: number; catalogue: CutterCatalogue; around: Float64Array },
-): Promise<Float64Array | undefined> {
+  o: {
+    epsilon: number;
+    V0: number;
+    catalogue: CutterCatalogue;
+    around: Float64Array;
+    /** Runners held at these sizes (m) instead of choosing: the same program, fewer binaries. */
+    pinned?: ReadonlyMap<number, number>;
+  },
+): Promise<{ x: Float64Array; objective: number } | undefined> {
   const lower = space.variables.map((v) => v.lower);
   const upper = space.variables.map((v) => v.upper);
   const sides = runnerCutterSides(space, o.catalogue, o.around);
+  for (const [j, size] of o.pinned ?? []) sides.set(j, [size]);
   for (const [j, list] of sides) {
     lower[j] = list[0];
     upper[j] = list[list.length - 1];
@@ -170,7 +178,7 @@ export async function mixedIntegerRunnerCutters(
     const b = binary.get(j);
     x[j] = b === undefined ? list[0] : list[lp.x[b] > 0.5 ? 1 : 0];
   }
-  return x;
+  return { x, objective: lp.objective };
 }
 
 /**

@@ -5,7 +5,7 @@ import type { Scenario, ScenarioWire } from "../../src/model/scenario_schema.ts"
 import { LIBRARY_MATERIAL_IDS } from "../../src/network/simulate_scenario.ts";
 import { currentDesign, designSpace } from "../../src/optimize/design_space.ts";
 import { type DesignEvaluation, evaluateDesign } from "../../src/optimize/evaluate_design.ts";
-import { powerLawFluid, singleLine } from "../network/_scenarios.ts";
+import { singleLine, unequalBranches } from "../network/_scenarios.ts";
 
 function parse(wire: unknown): Scenario {
   const parsed = parseScenario(wire, { materialIds: LIBRARY_MATERIAL_IDS });
@@ -55,63 +55,6 @@ Deno.test("tangent: feed-pressure slope of a runner is −(3n+1)·ΔP_runner/D (
     });
   }
 });
-
-/** Hot drop → J → runners R1 (40 mm) and R2 (120 mm) → pin gates → strip cavities of 20 and 30 cm³. */
-function unequalBranches(thermal: "isothermal" | "full"): ScenarioWire {
-  const cavity = (id: string, volume: number) => ({
-    id,
-    volume_cm3: volume,
-    projected_area_cm2: 100,
-    wall_mm: 2,
-    flow_length_mm: 100,
-    fill_pattern: "strip" as const,
-  });
-  const adjustable = { adjustable: true, min_diameter_mm: 1, max_diameter_mm: 12 };
-  return {
-    format: "evenfill.scenario/1",
-    name: "unequal branches for the derivative check",
-    material: thermal === "isothermal" ? powerLawFluid(7500, 0.38) : "abs-general",
-    process: {
-      melt_temperature_C: 240,
-      mold_temperature_C: 50,
-      injection: { flow_rate_cm3_s: 40 },
-      switchover_percent: 100,
-      thermal,
-    },
-    machine: { max_injection_pressure_MPa: 250, clamp_force_kN: 2000 },
-    feed: { kind: "hot_drop", node: "J", length_mm: 30, diameter_mm: 6 },
-    nodes: [
-      { id: "J", x_mm: 0, y_mm: 0 },
-      { id: "A", x_mm: -40, y_mm: 0 },
-      { id: "B", x_mm: 120, y_mm: 0 },
-    ],
-    runners: [
-      { id: "R1", from: "J", to: "A", diameter_mm: 5, ...adjustable },
-      { id: "R2", from: "J", to: "B", diameter_mm: 5, ...adjustable },
-    ],
-    gates: [
-      {
-        id: "G1",
-        from: "A",
-        cavity: "C1",
-        type: "pin",
-        diameter_mm: 1.4,
-        land_mm: 1,
-        ...adjustable,
-      },
-      {
-        id: "G2",
-        from: "B",
-        cavity: "C2",
-        type: "pin",
-        diameter_mm: 1.4,
-        land_mm: 1,
-        ...adjustable,
-      },
-    ],
-    cavities: [cavity("C1", 20), cavity("C2", 30)],
-  };
-}
 
 for (const thermal of ["isothermal", "full"] as const) {
   Deno.test(`tangent: split fill-time slopes agree with central differences of the simulation (${thermal})`, () => {
