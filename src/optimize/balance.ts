@@ -131,6 +131,8 @@ export interface BalanceOutcome {
   snap?: SnapReport;
   iterations: BalanceIteration[];
   simulations: number;
+  /** Where the slopes came from. */
+  slopes: "tangent" | "finite_difference";
   /** When infeasible: changes outside today's bounds that the linear model says would help. */
   wouldNeed: string[];
 }
@@ -504,6 +506,7 @@ export async function optimizeBalance(
       snap,
       iterations,
       simulations,
+      slopes: useTangent ? "tangent" : "finite_difference",
       wouldNeed,
     },
   };

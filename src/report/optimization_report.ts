@@ -37,6 +37,7 @@ export function optimizationJson(outcome: BalanceOutcome, options: OptimizationJ
     would_need: outcome.wouldNeed,
     snapping: outcome.snap?.message ?? null,
     simulations: outcome.simulations,
+    slopes: outcome.slopes,
     before: resultJson(outcome.before.run, { history }),
     after: resultJson(outcome.after.run, { history }),
     changes: changes.map((c) => ({

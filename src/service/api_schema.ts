@@ -90,6 +90,9 @@ export const JobSubmitSchema = z.object({
     "overrides goals.mode of the scenario",
   ),
   scenario_id: z.string().max(100).optional().describe("the saved scenario this job is about"),
+  slopes: z.enum(["tangent", "finite_difference"]).optional().describe(
+    "where the optimizer's slopes come from: the simulation's tangent (default) or one extra simulation per size",
+  ),
 });
 
 export const JobStatusSchema = z.enum(["queued", "running", "done", "failed", "cancelled"]);
@@ -129,6 +132,7 @@ export const JobListSchema = z.object({ jobs: z.array(JobSummarySchema) });
 
 export const JobSchema = JobSummarySchema.extend({
   mode: z.string().nullable(),
+  slopes: z.string().nullable(),
   scenario_id: z.string().nullable(),
   time_limit_s: z.number(),
   result: z.record(z.string(), z.unknown()).nullable().describe(

@@ -187,10 +187,11 @@ function jobSummary(job: JobSummary) {
 }
 
 function jobView(job: JobRecord) {
-  const input = (job.input ?? {}) as { mode?: string; scenario_id?: string };
+  const input = (job.input ?? {}) as { mode?: string; slopes?: string; scenario_id?: string };
   return {
     ...jobSummary(job),
     mode: input.mode ?? null,
+    slopes: input.slopes ?? null,
     scenario_id: input.scenario_id ?? null,
     time_limit_s: job.time_limit_ms / 1000,
     result: job.result ?? null,
@@ -268,6 +269,7 @@ export function createApp(options: AppOptions): Handler {
     }
     const input: Record<string, unknown> = { scenario: submit.scenario };
     if (submit.mode !== undefined) input.mode = submit.mode;
+    if (submit.slopes !== undefined) input.slopes = submit.slopes;
     if (submit.scenario_id !== undefined) input.scenario_id = submit.scenario_id;
     const job = store.submitJob({
       id: nanoid(),

@@ -81,7 +81,7 @@ export async function runJobAttempt(
     }
   }
 
-  const input = (job.input ?? {}) as { scenario?: unknown; mode?: string };
+  const input = (job.input ?? {}) as { scenario?: unknown; mode?: string; slopes?: string };
   const parsed = parseScenario(input.scenario, { materialIds: LIBRARY_MATERIAL_IDS });
   if (!parsed.ok) {
     return fail("invalid_scenario", parsed.issues.map((i) => `${i.at}: ${i.message}`).join("; "));
@@ -92,6 +92,7 @@ export async function runJobAttempt(
   }
   let lastWrite = -Infinity;
   const result = await optimizeBalance(scenario, {
+    slopes: input.slopes === "finite_difference" ? "finite_difference" : "tangent",
     onProgress: (i) => {
       const now = performance.now();
       if (now - lastWrite < PROGRESS_EVERY_MS) return;

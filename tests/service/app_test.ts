@@ -360,6 +360,23 @@ Deno.test("jobs: submit → 202 with a nanoid, read, list; invalid → 400; unkn
       404,
       "not_found",
     );
+    // The slope source is the user's choice, echoed on the job; anything else is refused.
+    const fd = await (await app.send("POST", "/api/jobs", {
+      kind: "optimize",
+      scenario: wire,
+      slopes: "finite_difference",
+    })).json();
+    assert.equal(
+      (await (await app.request(`/api/jobs/${fd.id}`)).json()).slopes,
+      "finite_difference",
+    );
+    assert.equal(job.slopes, null, "not given: the optimizer's default");
+    const badSlopes = await errorOf(
+      await app.send("POST", "/api/jobs", { kind: "optimize", scenario: wire, slopes: "adjoint" }),
+      400,
+      "invalid_request",
+    );
+    assert.ok(badSlopes.error.issues.some((i: Json) => i.at === "slopes"));
     await errorOf(await app.request("/api/jobs/unknown"), 404, "not_found");
     await errorOf(await app.request("/api/jobs/unknown/events"), 404, "not_found");
     await errorOf(

@@ -1,0 +1,45 @@
+import assert from "node:assert/strict";
+import { SqliteStore } from "../../src/store/sqlite_store.ts";
+import { runJobAttempt } from "../../src/worker/run_job.ts";
+
+const STEEL_SAFE_DEMO = new URL("../../scenarios/two_gate_frame_and_knob.json", import.meta.url);
+
+Deno.test("job attempt: the submitted slope source reaches the optimizer and is reported in the result", async () => {
+  const dir = await Deno.makeTempDir({ prefix: "evenfill-run-job-" });
+  const store = SqliteStore.open(`${dir}/store.db`);
+  try {
+    const scenario = JSON.parse(await Deno.readTextFile(STEEL_SAFE_DEMO));
+    const results: Record<string, { slopes: string; simulations: number; status: string }> = {};
+    for (const slopes of ["tangent", "finite_difference"]) {
+      const submitted = store.submitJob({
+        id: `job-${slopes}`,
+        kind: "optimize",
+        name: scenario.name,
+        input: { scenario, slopes },
+        time_limit_ms: 120_000,
+      }, { maxQueued: 10 });
+      assert.ok(submitted);
+      const claimed = store.claimJob("test-owner", 60_000);
+      assert.ok(claimed);
+      assert.equal(claimed.job.id, `job-${slopes}`);
+      const written = await runJobAttempt(store, claimed.job, {
+        owner: "test-owner",
+        attempt: claimed.attempt,
+      });
+      assert.ok(written);
+      const job = store.getJob(`job-${slopes}`);
+      assert.equal(job?.status, "done", JSON.stringify(job?.error));
+      results[slopes] = job!.result as { slopes: string; simulations: number; status: string };
+    }
+    assert.equal(results.tangent.slopes, "tangent");
+    assert.equal(results.finite_difference.slopes, "finite_difference");
+    // Seven adjustable sizes: finite differences spend at least one simulation per size.
+    assert.ok(
+      results.finite_difference.simulations >= results.tangent.simulations + 7,
+      `${results.finite_difference.simulations} vs ${results.tangent.simulations}`,
+    );
+  } finally {
+    store.close();
+    await Deno.remove(dir, { recursive: true });
+  }
+});
