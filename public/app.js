@@ -57,11 +57,14 @@
     revision: (id, revision) => call("GET", `/api/scenarios/${encodeURIComponent(id)}/revisions/${revision}`),
     validate: (scenario) => call("POST", "/api/validate", scenario),
     simulate: (scenario) => call("POST", "/api/simulate?history=1", scenario),
-    startJob: (scenario, mode) => call("POST", "/api/jobs", {
+    startJob: (scenario, options = {}) => call("POST", "/api/jobs", {
       kind: "optimize",
       scenario,
-      ...mode ? {
-        mode
+      ...options.mode ? {
+        mode: options.mode
+      } : {},
+      ...options.slopes ? {
+        slopes: options.slopes
       } : {}
     }),
     job: (id) => call("GET", `/api/jobs/${encodeURIComponent(id)}`),
@@ -1639,9 +1642,13 @@
     iteration_limit: "Stopped at the iteration limit",
     cancelled: "Cancelled"
   };
+  var SLOPE_WORDS = {
+    tangent: "carried by each simulation (tangent)",
+    finite_difference: "by finite differences (one simulation per size)"
+  };
   function verdictHtml(opt) {
     const label = STATUS_WORDS;
-    return `<div class="verdict" data-status="${escapeXml(opt.status)}"><p><strong>${escapeXml(label[opt.status] ?? opt.status)}</strong> \u2014 ${escapeXml(opt.reason)}</p>` + (opt.would_need.length ? `<p>What would make it reachable (a linear estimate, confirm by simulation):</p><ul>${opt.would_need.map((w) => `<li>${escapeXml(w)}</li>`).join("")}</ul>` : "") + (opt.snapping ? `<p class="muted">Cutters: ${escapeXml(opt.snapping)}</p>` : "") + `</div>`;
+    return `<div class="verdict" data-status="${escapeXml(opt.status)}"><p><strong>${escapeXml(label[opt.status] ?? opt.status)}</strong> \u2014 ${escapeXml(opt.reason)}</p>` + (opt.would_need.length ? `<p>What would make it reachable (a linear estimate, confirm by simulation):</p><ul>${opt.would_need.map((w) => `<li>${escapeXml(w)}</li>`).join("")}</ul>` : "") + (opt.snapping ? `<p class="muted">Cutters: ${escapeXml(opt.snapping)}</p>` : "") + (opt.simulations !== void 0 ? `<p class="muted">${opt.simulations} fill simulations${opt.slopes ? `; slopes ${SLOPE_WORDS[opt.slopes] ?? escapeXml(opt.slopes)}` : ""}.</p>` : "") + `</div>`;
   }
   function seriesKeyHtml(ids) {
     return `<ul class="series-key">${ids.map((id, k) => {
@@ -2217,6 +2224,7 @@
     $("simulate").disabled = busy;
     $("optimize").disabled = busy;
     $("cancel").disabled = !(busy && job);
+    $("run-slopes").disabled = busy;
   }
   async function simulate() {
     const scenario = checkEditor();
@@ -2262,7 +2270,10 @@
     $("run-state").textContent = "Optimization queued\u2026";
     $("run-panel").dataset.job = "queued";
     try {
-      const started = await api.startJob(scenario);
+      const slopes = $("run-slopes").value;
+      const started = await api.startJob(scenario, {
+        slopes
+      });
       state.jobId = started.id;
       $("run-panel").dataset.jobId = started.id;
       setBusy(true, true);

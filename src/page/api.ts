@@ -106,11 +106,12 @@ export const api = {
     call<{ ok: boolean; issues?: Issue[] }>("POST", "/api/validate", scenario),
   simulate: (scenario: unknown) =>
     call<SimulationResult>("POST", "/api/simulate?history=1", scenario),
-  startJob: (scenario: unknown, mode?: string) =>
+  startJob: (scenario: unknown, options: { mode?: string; slopes?: string } = {}) =>
     call<{ id: string; status: string }>("POST", "/api/jobs", {
       kind: "optimize",
       scenario,
-      ...(mode ? { mode } : {}),
+      ...(options.mode ? { mode: options.mode } : {}),
+      ...(options.slopes ? { slopes: options.slopes } : {}),
     }),
   job: (id: string) => call<Job>("GET", `/api/jobs/${encodeURIComponent(id)}`),
   cancelJob: (id: string) => call<unknown>("POST", `/api/jobs/${encodeURIComponent(id)}/cancel`),

@@ -561,6 +561,7 @@ function setBusy(busy: boolean, job = false) {
   $<HTMLButtonElement>("simulate").disabled = busy;
   $<HTMLButtonElement>("optimize").disabled = busy;
   $<HTMLButtonElement>("cancel").disabled = !(busy && job);
+  $<HTMLSelectElement>("run-slopes").disabled = busy;
 }
 
 async function simulate() {
@@ -605,7 +606,8 @@ async function optimize() {
   $("run-state").textContent = "Optimization queued…";
   $("run-panel").dataset.job = "queued";
   try {
-    const started = await api.startJob(scenario);
+    const slopes = $<HTMLSelectElement>("run-slopes").value;
+    const started = await api.startJob(scenario, { slopes });
     state.jobId = started.id;
     $("run-panel").dataset.jobId = started.id;
     setBusy(true, true);

@@ -456,7 +456,12 @@ export const STATUS_WORDS: Record<string, string> = {
   cancelled: "Cancelled",
 };
 
-/** The optimizer's verdict: status, why it stopped, what would be needed, snapping. */
+const SLOPE_WORDS: Record<string, string> = {
+  tangent: "carried by each simulation (tangent)",
+  finite_difference: "by finite differences (one simulation per size)",
+};
+
+/** The optimizer's verdict: status, why it stopped, what would be needed, snapping, cost. */
 export function verdictHtml(opt: OptimizationResult): string {
   const label = STATUS_WORDS;
   return `<div class="verdict" data-status="${esc(opt.status)}"><p><strong>${
@@ -468,6 +473,11 @@ export function verdictHtml(opt: OptimizationResult): string {
       }</ul>`
       : "") +
     (opt.snapping ? `<p class="muted">Cutters: ${esc(opt.snapping)}</p>` : "") +
+    (opt.simulations !== undefined
+      ? `<p class="muted">${opt.simulations} fill simulations${
+        opt.slopes ? `; slopes ${SLOPE_WORDS[opt.slopes] ?? esc(opt.slopes)}` : ""
+      }.</p>`
+      : "") +
     `</div>`;
 }
 

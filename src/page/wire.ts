@@ -120,6 +120,8 @@ export interface OptimizationResult {
   would_need: string[];
   snapping: string | null;
   simulations?: number;
+  /** Where the optimizer's slopes came from. */
+  slopes?: "tangent" | "finite_difference";
   before: SimulationResult;
   after: SimulationResult;
   changes: ChangeEntry[];

@@ -13,6 +13,7 @@ import {
   pathProfiles,
   pressChartsSvg,
   summaryHtml,
+  verdictHtml,
   warningsHtml,
 } from "../../src/page/results_view.ts";
 import type { ChangeEntry, OptimizationResult, SimulationResult } from "../../src/page/wire.ts";
@@ -138,4 +139,24 @@ Deno.test("change sheet: header, layout, changes, effect, cautions, sign-off", (
   }
   for (const caution of r.cautions) assert.ok(html.includes(caution.slice(0, 30)));
   assert.ok(html.includes('id="sheet-changes"'));
+});
+
+Deno.test("verdict: says how many simulations the optimizer ran and where its slopes came from", () => {
+  const r = simulated();
+  const opt: OptimizationResult = {
+    format: "evenfill.optimization/1",
+    status: "converged",
+    reason: "every limit met",
+    would_need: [],
+    snapping: null,
+    before: r,
+    after: r,
+    changes: [],
+    iterations: [],
+  };
+  assert.ok(!verdictHtml(opt).includes("fill simulations"), "nothing claimed when not reported");
+  const html = verdictHtml({ ...opt, simulations: 42, slopes: "finite_difference" });
+  assert.ok(html.includes("42 fill simulations"));
+  assert.ok(html.includes("finite differences (one simulation per size)"));
+  assert.ok(verdictHtml({ ...opt, simulations: 7, slopes: "tangent" }).includes("(tangent)"));
 });
