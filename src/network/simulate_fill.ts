@@ -460,7 +460,7 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
     const force = clampForce(s);
     let filledVolume = 0;
     for (let i = 0; i < 2 * E; i++) filledVolume += fill[i];
-    if (tangentOn) tangentRecord();
+    tangentRecord();
     history.push({
       time: t,
       injectedVolume: Q * t,
@@ -547,6 +547,7 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
     const direct: { j: number; k: number; drop: number }[] = [];
     const partials: number[] = [];
     const slopeV: number[] = [];
+    const probe = fill.slice(); // one volume at a time moved, then put back
     for (let k = 0; k < K; k++) {
       const br = branches[k];
       const c = s.channel[k];
@@ -566,9 +567,9 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
       const e = elements[br.element];
       const v = fill[index];
       const dvol = Math.max(Math.abs(v) * 1e-4, e.volume * 1e-7);
-      const probe = fill.slice();
       probe[index] = v + dvol;
       slopeV.push((lawOf(br, t, probe)(s.flows[k]).pressureDrop - c.pressureDrop) / dvol);
+      probe[index] = v;
     }
     const factor = factorLaplacian(s.assembly.nodeCount, pattern.local, g, pattern.symbolic);
     if (!factor) {

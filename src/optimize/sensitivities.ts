@@ -74,7 +74,7 @@ export function finiteDifferenceSensitivities(
     // The reference pressure's relative slope, applied to the peak (see below).
     pressure[j] = ((e.feedPressureReference - base.feedPressureReference) / h) *
       (base.feedPressurePeak / base.feedPressureReference);
-    runnerVolume[j] = (runnerVolumeOf(space, x) - base.runnerVolume) / h;
+    runnerVolume[j] = (e.runnerVolume - base.runnerVolume) / h;
   }
   return { fillTime, gateShear, pressure, runnerVolume, simulations };
 }
@@ -122,13 +122,15 @@ function runnerVolumeSlopes(space: DesignSpace, at: Float64Array): number[] {
  * that the updated slopes reproduce the change the two simulations showed,
  * ln r(to) − ln r(from) = L·(ln x(to) − ln x(from)), for the split fill times and
  * the reference pressure. Gate-shear slopes follow from the fill-time slopes by the
- * mean-flow law above; runner-volume slopes are geometry and are recomputed exactly.
+ * mean-flow law above; runner-volume slopes are geometry and are recomputed exactly
+ * at `to`, unless `known.runnerVolume` already holds them there.
  */
 export function broydenSensitivities(
   space: DesignSpace,
   s: Sensitivities,
   from: DesignEvaluation,
   to: DesignEvaluation,
+  known: { runnerVolume?: number[] } = {},
 ): Sensitivities {
   const n = space.variables.length;
   const dlx = Array.from({ length: n }, (_, j) => Math.log(to.x[j] / from.x[j]));
@@ -158,7 +160,7 @@ export function broydenSensitivities(
     fillTime,
     gateShear,
     pressure,
-    runnerVolume: runnerVolumeSlopes(space, to.x),
+    runnerVolume: known.runnerVolume ?? runnerVolumeSlopes(space, to.x),
     simulations: 0,
   };
 }
