@@ -29,15 +29,22 @@ export class SimulatePool {
   #closed = false;
 
   readonly maxWaiting: number;
+  readonly #workerUrl: string;
 
-  /** Start `size` workers (at least 1); at most `maxWaiting` requests wait for one (default 64). */
-  constructor(size: number, maxWaiting = 64) {
+  /**
+   * Start `size` workers (at least 1); at most `maxWaiting` requests wait for one (default 64).
+   * `workerUrl` replaces the worker module (tests only).
+   */
+  constructor(size: number, maxWaiting = 64, workerUrl = WORKER) {
     this.maxWaiting = maxWaiting;
+    this.#workerUrl = workerUrl;
     for (let i = 0; i < Math.max(1, size); i++) this.#slots.push(this.#start());
   }
 
-  #start(): Slot {
-    const slot: Slot = { worker: new Worker(WORKER, { type: "module" }), task: undefined };
+  /** A worker in `slot` (a new slot by default); its handlers always refer to that slot. */
+  #start(slot: Slot = { task: undefined } as Slot): Slot {
+    slot.worker = new Worker(this.#workerUrl, { type: "module" });
+    slot.task = undefined;
     slot.worker.onmessage = (
       event: MessageEvent<{ id: number; reply?: SimulateReply; crash?: string }>,
     ) => {
@@ -53,7 +60,7 @@ export class SimulatePool {
       const task = slot.task;
       slot.task = undefined;
       slot.worker.terminate();
-      if (!this.#closed) Object.assign(slot, this.#start());
+      if (!this.#closed) this.#start(slot);
       task?.reject(new Error(`simulation worker failed: ${event.message}`));
       this.#pump();
     };

@@ -622,3 +622,21 @@ Deno.test("an unexpected error is a 500 with no stack trace and is logged", asyn
     await app.close();
   }
 });
+
+Deno.test("simulation pool: a worker that dies is replaced, and its slot answers the next request", async () => {
+  const pool = new SimulatePool(1, 64, new URL("./_failing_worker.ts", import.meta.url).href);
+  const options = { history: false, limitMs: 1000, maxElements: 100 };
+  try {
+    await assert.rejects(pool.run("die", options), /simulation worker failed/);
+    // The replacement must take the next request on the same slot; a stuck slot never answers.
+    let timer: ReturnType<typeof setTimeout> | undefined;
+    const stuck = new Promise<"stuck">((resolve) => {
+      timer = setTimeout(() => resolve("stuck"), 10_000);
+    });
+    const next = await Promise.race([pool.run("next", options), stuck]);
+    clearTimeout(timer);
+    assert.deepEqual(next, { ok: true, result: "next" });
+  } finally {
+    pool.close();
+  }
+});
