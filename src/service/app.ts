@@ -427,7 +427,10 @@ export function createApp(options: AppOptions): Handler {
           if (!store.getJobSummary(id)) throw notFound(`No job "${id}"`);
           return jobEvents(store, id, {
             pollMs: options.eventPollMs ?? 200,
-            signal: request.signal,
+            // Event streams end on the client's disconnect or on service shutdown.
+            signal: options.shutdownSignal
+              ? AbortSignal.any([request.signal, options.shutdownSignal])
+              : request.signal,
           });
         }
         break;

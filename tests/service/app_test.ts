@@ -640,3 +640,35 @@ Deno.test("simulation pool: a worker that dies is replaced, and its slot answers
     pool.close();
   }
 });
+
+Deno.test("job events: service shutdown closes an open stream", async () => {
+  const app = await testApp();
+  const shutdown = new AbortController();
+  try {
+    const handler = createApp({
+      store: app.store,
+      config: app.config,
+      eventPollMs: 20,
+      shutdownSignal: shutdown.signal,
+    });
+    const scenario = await readJson(QUICK_PATH);
+    const { id } = await (await app.send("POST", "/api/jobs", { kind: "optimize", scenario }))
+      .json();
+    const res = await handler(new Request(`http://127.0.0.1/api/jobs/${id}/events`));
+    assert.equal(res.status, 200);
+    const reading = readEvents(res);
+    await new Promise((r) => setTimeout(r, 60));
+    shutdown.abort();
+    // The job is still queued: only the shutdown can end this stream.
+    let timer: ReturnType<typeof setTimeout> | undefined;
+    const open = new Promise<"open">((resolve) => {
+      timer = setTimeout(() => resolve("open"), 5_000);
+    });
+    const events = await Promise.race([reading, open]);
+    clearTimeout(timer);
+    assert.notEqual(events, "open", "the stream stayed open after shutdown");
+    assert.deepEqual((events as [string, Json][])[0], ["state", { status: "queued" }]);
+  } finally {
+    await app.close();
+  }
+});
