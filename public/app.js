@@ -1716,10 +1716,9 @@
         break;
       case "injectionKind": {
         const injection = obj(process.injection);
-        const current = numOrNull(injection.flow_rate_cm3_s) ?? numOrNull(injection.fill_time_s);
         if (value === "fill_time_s" || value === "flow_rate_cm3_s") {
           process.injection = {
-            [value]: current ?? (value === "fill_time_s" ? 1 : 30)
+            [value]: numOrNull(injection[value]) ?? (value === "fill_time_s" ? 1 : 30)
           };
         }
         s.process = process;
@@ -1870,11 +1869,11 @@
     }, 300);
   }
   async function validateOnService(text, value) {
-    if (validated.text === text) return;
+    if (validated.text === text) return validated.ok;
     const ticket = ++validation;
     try {
       const answer = await api.validate(value);
-      if (ticket !== validation || editor().value !== text) return;
+      if (ticket !== validation || editor().value !== text) return void 0;
       validated = {
         text,
         ok: answer.ok
@@ -1882,8 +1881,10 @@
       state.issues = answer.ok ? [] : placeIssues(text, answer.issues ?? []);
       renderIssues();
       showEditorState(answer.ok ? "ok" : "error", answer.ok ? "Scenario is valid." : `${state.issues.length} problem${state.issues.length === 1 ? "" : "s"} (checked by the service).`);
+      return answer.ok;
     } catch (error) {
       if (ticket === validation) report(error);
+      return void 0;
     }
   }
   function showEditorState(kind, text) {
@@ -1979,9 +1980,10 @@
         text: "",
         ok: false
       };
-      await validateOnService(editor().value, value);
-      say(validated.ok ? "The scenario is valid." : "The scenario has problems; see the editor.", validated.ok ? "ok" : "error");
-      if (!validated.ok) goToIssue(0);
+      const ok = await validateOnService(editor().value, value);
+      if (ok === void 0) return;
+      say(ok ? "The scenario is valid." : "The scenario has problems; see the editor.", ok ? "ok" : "error");
+      if (!ok) goToIssue(0);
     });
     $("format").addEventListener("click", () => {
       const value = checkEditor();

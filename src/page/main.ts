@@ -159,12 +159,17 @@ function onEditorChange() {
 }
 
 /** Ask the service to check the scenario (schema and cross-references); show its issues. */
-async function validateOnService(text: string, value: unknown) {
-  if (validated.text === text) return;
+/**
+ * Ask the service whether `text` (parsed: `value`) is a valid scenario and mark the editor.
+ * Returns its verdict, or undefined when there is none for this text: the request failed
+ * (reported) or the text changed meanwhile.
+ */
+async function validateOnService(text: string, value: unknown): Promise<boolean | undefined> {
+  if (validated.text === text) return validated.ok;
   const ticket = ++validation;
   try {
     const answer = await api.validate(value);
-    if (ticket !== validation || editor().value !== text) return;
+    if (ticket !== validation || editor().value !== text) return undefined;
     validated = { text, ok: answer.ok };
     state.issues = answer.ok ? [] : placeIssues(text, answer.issues ?? []);
     renderIssues();
@@ -176,8 +181,10 @@ async function validateOnService(text: string, value: unknown) {
           state.issues.length === 1 ? "" : "s"
         } (checked by the service).`,
     );
+    return answer.ok;
   } catch (error) {
     if (ticket === validation) report(error);
+    return undefined;
   }
 }
 
@@ -290,12 +297,14 @@ function setupEditor() {
       return;
     }
     validated = { text: "", ok: false };
-    await validateOnService(editor().value, value);
+    const ok = await validateOnService(editor().value, value);
+    // No verdict: the failure is already reported, or the text has changed since.
+    if (ok === undefined) return;
     say(
-      validated.ok ? "The scenario is valid." : "The scenario has problems; see the editor.",
-      validated.ok ? "ok" : "error",
+      ok ? "The scenario is valid." : "The scenario has problems; see the editor.",
+      ok ? "ok" : "error",
     );
-    if (!validated.ok) goToIssue(0);
+    if (!ok) goToIssue(0);
   });
   $("format").addEventListener("click", () => {
     const value = checkEditor();

@@ -84,10 +84,13 @@ export function applyFormField(
       s.process = process;
       break;
     case "injectionKind": {
+      // Same kind: the value stays. Another kind: its default, never the old number in the
+      // new unit (30 cm³/s is not a 30 s fill).
       const injection = obj(process.injection);
-      const current = numOrNull(injection.flow_rate_cm3_s) ?? numOrNull(injection.fill_time_s);
       if (value === "fill_time_s" || value === "flow_rate_cm3_s") {
-        process.injection = { [value]: current ?? (value === "fill_time_s" ? 1 : 30) };
+        process.injection = {
+          [value]: numOrNull(injection[value]) ?? (value === "fill_time_s" ? 1 : 30),
+        };
       }
       s.process = process;
       break;

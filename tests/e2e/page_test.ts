@@ -9,7 +9,7 @@
  * Without it this test fails with a message: it never skips silently.
  */
 import assert from "node:assert/strict";
-import puppeteer, { type Browser, type Page } from "puppeteer-core";
+import puppeteer, { type Browser, type HTTPRequest, type Page } from "puppeteer-core";
 import { formatNumber } from "../../src/page/display_units.ts";
 import type { Job } from "../../src/page/wire.ts";
 
@@ -212,6 +212,27 @@ Deno.test({
       // --- restore the demo and optimize it through the page
       await setEditor(page, good);
       await page.waitForSelector("#editor-state[data-kind='ok']", { timeout: 10_000 });
+
+      // --- Check: the service's verdict; a request that fails is reported as a failure,
+      // never as "problems in the scenario"
+      const status = () => page.$eval("#status", (el) => el.textContent ?? "");
+      await page.click("#check");
+      await page.waitForFunction(
+        () => document.querySelector("#status")?.textContent === "The scenario is valid.",
+        { timeout: 10_000 },
+      );
+      await page.setRequestInterception(true);
+      const failValidate = (r: HTTPRequest) =>
+        r.url().includes("/api/validate") ? r.abort() : r.continue();
+      page.on("request", failValidate);
+      await page.click("#check");
+      await page.waitForFunction(
+        () => (document.querySelector("#status") as HTMLElement | null)?.dataset.kind === "error",
+        { timeout: 10_000 },
+      );
+      assert.doesNotMatch(await status(), /has problems/);
+      page.off("request", failValidate);
+      await page.setRequestInterception(false);
       await page.click("#tab-run");
       await page.click("#optimize");
       await page.waitForFunction(

@@ -32,6 +32,15 @@ Deno.test("form edits write metric values back and leave the rest alone", () => 
     METRIC_UNITS,
   ) as typeof scenario;
   assert.deepEqual(Object.keys(timed.process.injection), ["fill_time_s"]);
+  // 30 cm³/s becomes the default 1 s fill, not a 30 s one; the same kind keeps its value.
+  assert.equal((timed.process.injection as { fill_time_s: number }).fill_time_s, 1);
+  const same = applyFormField(
+    scenario,
+    "injectionKind",
+    "flow_rate_cm3_s",
+    METRIC_UNITS,
+  ) as typeof scenario;
+  assert.equal((same.process.injection as { flow_rate_cm3_s: number }).flow_rate_cm3_s, 30);
   const mode = applyFormField(scenario, "mode", "steel_safe", METRIC_UNITS) as typeof scenario;
   assert.equal(mode.goals.mode, "steel_safe");
   const blank = applyFormField(
