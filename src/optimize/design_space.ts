@@ -119,7 +119,8 @@ export function designSpace(scenario: Scenario): DesignSpace {
     if (!r.adjustable) return;
     const d = r.diameter_mm;
     // Feed order against fixed neighbours: never smaller than a fixed runner it feeds, never
-    // larger than a fixed runner feeding it (between two adjustable runners: `ordering`).
+    // larger than a fixed runner feeding it (between two adjustable runners: `ordering`);
+    // like the ordering rows, never stricter than today's size, which may break the order.
     const fixedChildren = scenario.runners.filter((c) =>
       !c.adjustable && parentOf.get(c.id) === r.id
     );
@@ -141,10 +142,13 @@ export function designSpace(scenario: Scenario): DesignSpace {
     }
     if (steelSafe) lower.push([mmToM(d), "steel-safe: today's size"]);
     for (const c of fixedChildren) {
-      lower.push([mmToM(c.diameter_mm), `the fixed runner ${c.id} it feeds`]);
+      lower.push([mmToM(Math.min(c.diameter_mm, d)), `the fixed runner ${c.id} it feeds`]);
     }
     if (fixedParent) {
-      upper.push([mmToM(fixedParent.diameter_mm), `the fixed runner ${fixedParent.id} feeding it`]);
+      upper.push([
+        mmToM(Math.max(fixedParent.diameter_mm, d)),
+        `the fixed runner ${fixedParent.id} feeding it`,
+      ]);
     }
     push({ element: r.id, kind: "runner", dimension: "diameter", index, current: mmToM(d) }, {
       lower,
