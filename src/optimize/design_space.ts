@@ -70,15 +70,16 @@ export function designSpace(scenario: Scenario): DesignSpace {
   const rules = scenario.goals.size_rules;
   const steelSafe = scenario.goals.mode === "steel_safe";
   const wall = new Map(scenario.cavities.map((c) => [c.id, c.wall_mm]));
-  const downstreamWall = thickestDownstreamWall(scenario);
+  const tree = runnerTree(scenario);
+  const downstreamWall = thickestDownstreamWall(scenario, tree);
   const variables: DesignVariable[] = [];
   const conflicts: string[] = [];
 
   const push = (
     v: Omit<DesignVariable, "lower" | "upper" | "lowerReason" | "upperReason" | "cutterLower">,
     bounds: {
-      lower: [number, string][];
-      upper: [number, string][];
+      lower: Bound[];
+      upper: Bound[];
     },
   ) => {
     let lower = -Infinity;
@@ -106,14 +107,13 @@ export function designSpace(scenario: Scenario): DesignSpace {
     }
     // Rules of thumb are not sharp: a cutter a few percent under one is acceptable.
     let cutterLower = -Infinity;
-    for (const [value, why] of bounds.lower) {
-      const soft = why.endsWith(" rule") ? value * (1 - RULE_CUTTER_TOLERANCE) : value;
-      cutterLower = Math.max(cutterLower, soft);
+    for (const [value, , rule] of bounds.lower) {
+      cutterLower = Math.max(cutterLower, rule ? value * (1 - RULE_CUTTER_TOLERANCE) : value);
     }
     variables.push({ ...v, lower, upper, lowerReason, upperReason, cutterLower });
   };
 
-  const { parentOf } = runnerTree(scenario);
+  const { parentOf } = tree;
   const runnerById = new Map(scenario.runners.map((r) => [r.id, r]));
   scenario.runners.forEach((r, index) => {
     if (!r.adjustable) return;
@@ -128,17 +128,17 @@ export function designSpace(scenario: Scenario): DesignSpace {
     const fixedParent = parentId !== undefined && !runnerById.get(parentId)!.adjustable
       ? runnerById.get(parentId)
       : undefined;
-    const lower: [number, string][] = [[
+    const lower: Bound[] = [[
       mmToM(r.min_diameter_mm ?? Math.max(2, d / 2)),
       "min_diameter_mm",
     ]];
-    const upper: [number, string][] = [[
+    const upper: Bound[] = [[
       mmToM(r.max_diameter_mm ?? Math.min(20, 2 * d)),
       "max_diameter_mm",
     ]];
     const w = downstreamWall.get(r.id);
     if (rules && w !== undefined) {
-      lower.push([mmToM(w + RUNNER_OVER_WALL_MM), "runner ≥ wall + 1.5 mm rule"]);
+      lower.push([mmToM(w + RUNNER_OVER_WALL_MM), "runner ≥ wall + 1.5 mm rule", true]);
     }
     if (steelSafe) lower.push([mmToM(d), "steel-safe: today's size"]);
     for (const c of fixedChildren) {
@@ -164,14 +164,14 @@ export function designSpace(scenario: Scenario): DesignSpace {
     const min = edge ? g.min_thickness_mm : g.min_diameter_mm;
     const max = edge ? g.max_thickness_mm : g.max_diameter_mm;
     const field = edge ? "thickness" : "diameter";
-    const lower: [number, string][] = [[mmToM(min ?? size / 2), `min_${field}_mm`]];
-    const upper: [number, string][] = [
+    const lower: Bound[] = [[mmToM(min ?? size / 2), `min_${field}_mm`]];
+    const upper: Bound[] = [
       [mmToM(max ?? size * 2), `max_${field}_mm`],
       [mmToM(w), "the cavity wall"],
     ];
     if (rules) {
       const [lo, hi] = edge ? EDGE_GATE_WALL_FRACTION : ROUND_GATE_WALL_FRACTION;
-      lower.push([mmToM(lo * w), `gate ≥ ${lo * 100} % of wall rule`]);
+      lower.push([mmToM(lo * w), `gate ≥ ${lo * 100} % of wall rule`, true]);
       upper.push([mmToM(hi * w), `gate ≤ ${hi * 100} % of wall rule`]);
     }
     if (steelSafe) lower.push([mmToM(size), "steel-safe: today's size"]);
@@ -194,7 +194,7 @@ export function designSpace(scenario: Scenario): DesignSpace {
   return {
     scenario,
     variables,
-    ordering: runnerOrdering(scenario, variables),
+    ordering: runnerOrdering(tree, variables),
     gateCavity,
     conflicts,
   };
@@ -221,8 +221,8 @@ export function applyDesign(space: DesignSpace, x: ArrayLike<number>): Scenario 
 }
 
 /** For each runner id, the thickest wall of the cavities downstream of it (mm). */
-function thickestDownstreamWall(scenario: Scenario): Map<string, number> {
-  const { parentOf, downNode } = runnerTree(scenario);
+function thickestDownstreamWall(scenario: Scenario, tree: RunnerTree): Map<string, number> {
+  const { parentOf, downNode } = tree;
   const wall = new Map(scenario.cavities.map((c) => [c.id, c.wall_mm]));
   const runnerInto = new Map<string, string>();
   for (const [runner, node] of downNode) runnerInto.set(node, runner);
@@ -238,10 +238,19 @@ function thickestDownstreamWall(scenario: Scenario): Map<string, number> {
   return result;
 }
 
-/** The runner tree by breadth-first search from the feed node: each runner's upstream runner. */
-function runnerTree(
-  scenario: Scenario,
-): { parentOf: Map<string, string | undefined>; downNode: Map<string, string> } {
+/** The runner tree seen from the feed node. */
+interface RunnerTree {
+  /** Each runner's upstream runner (undefined at the feed). */
+  parentOf: Map<string, string | undefined>;
+  /** Each runner's downstream node. */
+  downNode: Map<string, string>;
+}
+
+/** A size bound: value (m), the reason shown, and whether it is a rule of thumb (soft for cutters). */
+type Bound = [value: number, why: string, rule?: boolean];
+
+/** The runner tree by breadth-first search from the feed node. */
+function runnerTree(scenario: Scenario): RunnerTree {
   const parentOf = new Map<string, string | undefined>();
   const downNode = new Map<string, string>();
   const reachedBy = new Map<string, string | undefined>([[scenario.feed.node, undefined]]);
@@ -263,8 +272,8 @@ function runnerTree(
   return { parentOf, downNode };
 }
 
-function runnerOrdering(scenario: Scenario, variables: readonly DesignVariable[]): OrderingRule[] {
-  const { parentOf } = runnerTree(scenario);
+function runnerOrdering(tree: RunnerTree, variables: readonly DesignVariable[]): OrderingRule[] {
+  const { parentOf } = tree;
   const index = new Map<string, number>();
   variables.forEach((v, j) => {
     if (v.kind === "runner") index.set(v.element, j);
