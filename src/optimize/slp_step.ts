@@ -26,18 +26,23 @@ export const LP_LIMIT_SHARE = 0.97;
  * With `split` (default true) the fill-time term is the larger of the simulated and
  * the split fill times' distances, matching the LP's model (the optimizer's merit);
  * with `split: false` only the simulated times count. Gate shear is the balanced
- * split's (before the first cavity is full; default) or the peak up to switchover,
- * which also carries the over-packing that any imbalance causes.
+ * split's (before the first cavity is full; default), the peak up to switchover,
+ * which also carries the over-packing that any imbalance causes, or both, each counted.
  */
 export function violation(
   e: DesignEvaluation,
   epsilon: number,
-  options: { split?: boolean; shear?: "balanced" | "peak" } = {},
+  options: { split?: boolean; shear?: "balanced" | "peak" | "both" } = {},
 ): number {
   let v = imbalanceViolation(e.fillTimes, epsilon);
   if (options.split ?? true) v = Math.max(v, imbalanceViolation(e.splitFillTimes, epsilon));
-  const shear = (options.shear ?? "balanced") === "balanced" ? e.gateShearBalanced : e.gateShear;
-  for (const s of shear) v += Math.max(0, Math.log(s / e.gateShearLimit));
+  const which = options.shear ?? "balanced";
+  const shears = which === "both"
+    ? [...e.gateShearBalanced, ...e.gateShear]
+    : which === "balanced"
+    ? e.gateShearBalanced
+    : e.gateShear;
+  for (const s of shears) v += Math.max(0, Math.log(s / e.gateShearLimit));
   v += Math.max(0, Math.log(e.feedPressurePeak / e.pressureLimit));
   for (const x of e.violations) {
     if (x.code === "not_filled") v += 1;
@@ -52,8 +57,7 @@ export function violation(
  * gate shear (a snapped design is not steered further, so both count).
  */
 export function snappedMerit(e: DesignEvaluation, epsilon: number, V0: number): number {
-  return e.runnerVolume / V0 + PENALTY * (violation(e, epsilon, { split: false }) +
-        violation(e, epsilon, { split: false, shear: "peak" }));
+  return e.runnerVolume / V0 + PENALTY * violation(e, epsilon, { split: false, shear: "both" });
 }
 
 /**
