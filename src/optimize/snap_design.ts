@@ -8,6 +8,7 @@ import {
 import type { DesignSpace } from "./design_space.ts";
 import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
 import type { Sensitivities } from "./sensitivities.ts";
+import { modelResponses } from "./slp_step.ts";
 
 /**
  * Snap a continuous optimum to sizes a toolroom can cut: runners to the
@@ -146,7 +147,7 @@ export function snapDesign(
     };
   }
   const linearMerit = (x: Float64Array) =>
-    predictMerit(continuous, sensitivities, x, options.merit);
+    predictMerit(space, continuous, sensitivities, x, options.merit);
   // Repair / improve by flips of one group, best predicted first, each confirmed by simulation.
   const flipped = (p: readonly number[], group: readonly number[], k: number) => {
     const q = [...p];
@@ -196,23 +197,30 @@ export function snapDesign(
   return { evaluation: best, choices, simulations, message };
 }
 
-/** The merit of `x` predicted by the linear model around `base` (falls back to the base merit). */
+/**
+ * The merit of `x` predicted by the step LP's own log-linear model around `base`
+ * (`modelResponses`), the peak gate shear moved by the same factor as the balanced-split
+ * one; the base merit when there are no slopes.
+ */
 function predictMerit(
+  space: DesignSpace,
   base: DesignEvaluation,
   s: Sensitivities | undefined,
   x: Float64Array,
   merit: (e: DesignEvaluation) => number,
 ): number {
   if (!s) return merit(base);
-  const dx = Array.from(x, (v, j) => v - base.x[j]);
-  const dot = (row: readonly number[]) => row.reduce((sum, g, j) => sum + g * dx[j], 0);
+  const model = modelResponses(space, base, s, x);
   const predicted: DesignEvaluation = {
     ...base,
     x,
-    fillTimes: base.splitFillTimes.map((t, i) => t + dot(s.fillTime[i])),
-    gateShearBalanced: base.gateShearBalanced.map((g, i) => g + dot(s.gateShear[i])),
-    feedPressurePeak: base.feedPressurePeak + dot(s.pressure),
-    runnerVolume: base.runnerVolume + dot(s.runnerVolume),
+    fillTimes: model.times,
+    gateShearBalanced: model.shear,
+    gateShear: base.gateShear.map((g, i) =>
+      base.gateShearBalanced[i] > 0 ? g * (model.shear[i] / base.gateShearBalanced[i]) : g
+    ),
+    feedPressurePeak: model.pressure,
+    runnerVolume: model.volume,
     violations: [],
   };
   return merit(predicted);
