@@ -6,7 +6,7 @@ import {
   cutterCatalogue,
   neighbouringSizes,
 } from "./cutters.ts";
-import { applyDesign, type DesignSpace, designSpace } from "./design_space.ts";
+import { applyDesign, type DesignSpace, designSpace, type DesignVariable } from "./design_space.ts";
 import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
 import type { LpSolver } from "./lp_solver.ts";
 import { type Sensitivities, tangentSensitivities } from "./sensitivities.ts";
@@ -197,13 +197,21 @@ function runnerCutterSides(
     if (v.kind !== "runner") return;
     const { below, above, exact } = neighbouringSizes(catalogue, around[j]);
     let list = (exact ? [exact.size] : [below?.size, above?.size]).filter((x): x is number =>
-      x !== undefined && x >= v.cutterLower * (1 - 1e-9) && x <= v.upper * (1 + 1e-9) &&
-      (!steelSafe || x >= v.current * (1 - 1e-9))
+      x !== undefined && cutterPermitted(v, x, steelSafe)
     );
     if (list.length === 0) list = [above?.size ?? below?.size ?? around[j]];
     sides.set(j, list.sort((a, b) => a - b));
   });
   return sides;
+}
+
+/**
+ * Whether a cutter of `size` (m) may cut `v`: within its bounds for cutters (rules of
+ * thumb a few percent soft) and, in steel-safe mode, not below today's size.
+ */
+function cutterPermitted(v: DesignVariable, size: number, steelSafe: boolean): boolean {
+  return size >= v.cutterLower * (1 - 1e-9) && size <= v.upper * (1 + 1e-9) &&
+    (!steelSafe || size >= v.current * (1 - 1e-9));
 }
 
 /** The step LP for choosing cutters: exact bounds, no trust region, aims as in the loop. */
@@ -266,8 +274,7 @@ export async function relaxAndFixRunners(
       const x = sizes.get(v.element)!;
       const { below, above, exact } = neighbouringSizes(catalogue, x);
       const allowed = (exact ? [exact] : [below, above]).filter((c): c is Cutter =>
-        c !== undefined && c.size >= v.cutterLower * (1 - 1e-9) && c.size <= v.upper * (1 + 1e-9) &&
-        (!steelSafe || c.size >= v.current * (1 - 1e-9))
+        c !== undefined && cutterPermitted(v, c.size, steelSafe)
       );
       // Never against the feed order with a runner already on its cutter.
       const fedSize = Math.max(
