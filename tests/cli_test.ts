@@ -112,6 +112,7 @@ Deno.test("optimize --slopes: finite differences are accepted, an unknown source
   ]);
   assert.equal(fd.code, 0, fd.stderr);
   const json = JSON.parse(fd.stdout);
+  assert.equal(json.slopes, "finite_difference", "the flag reached the optimizer");
   // Steel-safe demo: whatever the slopes, nothing may shrink.
   for (const c of json.changes) assert.ok(c.to_mm >= c.from_mm, `${c.element} shrinks`);
 });

@@ -30,8 +30,6 @@ import {
   remap,
 } from "./snap_runners.ts";
 
-export { imbalanceViolation, LP_BAND_SHARE, violation };
-
 /**
  * Balancing by sequential linear programming (SLP) with a trust region.
  *

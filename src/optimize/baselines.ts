@@ -210,13 +210,18 @@ export function handbookSizing(
     return { x, simulations: 0, wallTimeMs: performance.now() - start, reason: "rules_applied" };
   }
   const outcome = evaluateDesign(space, x);
+  const e = outcome.ok ? outcome.evaluation : undefined;
   return {
     x,
-    evaluation: outcome.ok ? outcome.evaluation : undefined,
+    evaluation: e,
     simulations: 1,
     wallTimeMs: performance.now() - start,
     reason: outcome.ok ? "rules_applied" : "simulation_failed",
     failure: outcome.ok ? undefined : outcome.message,
+    firstBalanced: e && e.imbalancePercent <= space.scenario.goals.max_imbalance_percent
+      ? 1
+      : undefined,
+    firstFeasible: e?.feasible ? 1 : undefined,
   };
 }
 
@@ -286,6 +291,8 @@ export function toolroomLoop(
   const x = currentDesign(space);
   const steps: ToolroomStep[] = [];
   let evaluation: DesignEvaluation | undefined;
+  let firstBalanced: number | undefined;
+  let firstFeasible: number | undefined;
   let trials = 0;
   let reason = "max_trials";
   let failure: string | undefined;
@@ -334,7 +341,9 @@ export function toolroomLoop(
       break;
     }
     evaluation = outcome.evaluation;
+    if (evaluation.feasible) firstFeasible ??= trials;
     if (evaluation.imbalancePercent <= target) {
+      firstBalanced = trials;
       reason = "balanced";
       break;
     }
@@ -360,6 +369,8 @@ export function toolroomLoop(
     evaluation,
     simulations: trials,
     trials,
+    firstBalanced,
+    firstFeasible,
     steps,
     wallTimeMs: performance.now() - start,
     reason,
