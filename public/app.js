@@ -1387,7 +1387,7 @@
     ] : [
       "result"
     ];
-    const head2 = (label) => before ? `<th scope="colgroup" colspan="2">${label}</th>` : `<th scope="col" rowspan="${before ? 2 : 1}">${label}</th>`;
+    const head2 = (label) => before ? `<th scope="colgroup" colspan="2">${label}</th>` : `<th scope="col">${label}</th>`;
     const sub = before ? `<tr class="sub">${[
       "fill time",
       "fill %",
@@ -1647,8 +1647,7 @@
     finite_difference: "by finite differences (one simulation per size)"
   };
   function verdictHtml(opt) {
-    const label = STATUS_WORDS;
-    return `<div class="verdict" data-status="${escapeXml(opt.status)}"><p><strong>${escapeXml(label[opt.status] ?? opt.status)}</strong> \u2014 ${escapeXml(opt.reason)}</p>` + (opt.would_need.length ? `<p>What would make it reachable (a linear estimate, confirm by simulation):</p><ul>${opt.would_need.map((w) => `<li>${escapeXml(w)}</li>`).join("")}</ul>` : "") + (opt.snapping ? `<p class="muted">Cutters: ${escapeXml(opt.snapping)}</p>` : "") + (opt.simulations !== void 0 ? `<p class="muted">${opt.simulations} fill simulations${opt.slopes ? `; slopes ${SLOPE_WORDS[opt.slopes] ?? escapeXml(opt.slopes)}` : ""}.</p>` : "") + `</div>`;
+    return `<div class="verdict" data-status="${escapeXml(opt.status)}"><p><strong>${escapeXml(STATUS_WORDS[opt.status] ?? opt.status)}</strong> \u2014 ${escapeXml(opt.reason)}</p>` + (opt.would_need.length ? `<p>What would make it reachable (a linear estimate, confirm by simulation):</p><ul>${opt.would_need.map((w) => `<li>${escapeXml(w)}</li>`).join("")}</ul>` : "") + (opt.snapping ? `<p class="muted">Cutters: ${escapeXml(opt.snapping)}</p>` : "") + (opt.simulations !== void 0 ? `<p class="muted">${opt.simulations} fill simulations${opt.slopes ? `; slopes ${SLOPE_WORDS[opt.slopes] ?? escapeXml(opt.slopes)}` : ""}.</p>` : "") + `</div>`;
   }
   function seriesKeyHtml(ids) {
     return `<ul class="series-key">${ids.map((id, k) => {
@@ -1771,8 +1770,7 @@
     jobId: null,
     progress: [],
     /** Imbalance target of the job being run, %. */
-    runTarget: null,
-    busy: false
+    runTarget: null
   };
   function loadUnits() {
     try {
@@ -1891,6 +1889,15 @@
     $("editor-state").textContent = text;
     $("editor-state").dataset.kind = kind;
   }
+  function editorScenarioOr(message) {
+    const value = checkEditor();
+    if (value === null) {
+      say(message, "error");
+      showTab("scenario");
+      goToIssue(0);
+    }
+    return value;
+  }
   function checkEditor() {
     if (checkTimer !== void 0) clearTimeout(checkTimer);
     const text = editor().value;
@@ -1970,12 +1977,8 @@
       if (b) goToIssue(Number(b.dataset.index));
     });
     $("check").addEventListener("click", async () => {
-      const value = checkEditor();
-      if (value === null) {
-        say("Not valid JSON; see the editor.", "error");
-        goToIssue(0);
-        return;
-      }
+      const value = editorScenarioOr("Not valid JSON; see the editor.");
+      if (value === null) return;
       validated = {
         text: "",
         ok: false
@@ -1987,11 +1990,8 @@
     });
     $("format").addEventListener("click", () => {
       const value = checkEditor();
-      try {
-        setEditorText(JSON.stringify(value ?? JSON.parse(editor().value), null, 2) + "\n");
-      } catch {
-        say("Fix the JSON syntax first.", "error");
-      }
+      if (value === null) say("Fix the JSON syntax first.", "error");
+      else setEditorText(JSON.stringify(value, null, 2) + "\n");
     });
   }
   var FORM_FIELDS = [
@@ -2169,12 +2169,8 @@
     });
   }
   async function save(asNew) {
-    const scenario = checkEditor();
-    if (scenario === null) {
-      say("Not saved: the JSON is not valid (see the editor).", "error");
-      goToIssue(0);
-      return;
-    }
+    const scenario = editorScenarioOr("Not saved: the JSON is not valid (see the editor).");
+    if (scenario === null) return;
     try {
       if (state.source.kind === "saved" && !asNew) {
         const r = await api.updateScenario(state.source.id, scenario);
@@ -2222,20 +2218,14 @@
     say(String(error), "error");
   }
   function setBusy(busy, job = false) {
-    state.busy = busy;
     $("simulate").disabled = busy;
     $("optimize").disabled = busy;
     $("cancel").disabled = !(busy && job);
     $("run-slopes").disabled = busy;
   }
   async function simulate() {
-    const scenario = checkEditor();
-    if (scenario === null) {
-      say("Nothing sent: the JSON is not valid (see the editor).", "error");
-      showTab("scenario");
-      goToIssue(0);
-      return;
-    }
+    const scenario = editorScenarioOr("Nothing sent: the JSON is not valid (see the editor).");
+    if (scenario === null) return;
     setBusy(true);
     $("run-state").textContent = "Simulating\u2026";
     try {
@@ -2257,13 +2247,8 @@
     }
   }
   async function optimize() {
-    const scenario = checkEditor();
-    if (scenario === null) {
-      say("Nothing sent: the JSON is not valid (see the editor).", "error");
-      showTab("scenario");
-      goToIssue(0);
-      return;
-    }
+    const scenario = editorScenarioOr("Nothing sent: the JSON is not valid (see the editor).");
+    if (scenario === null) return;
     setBusy(true);
     state.progress = [];
     const goals = scenario.goals;

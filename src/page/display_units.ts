@@ -116,11 +116,6 @@ export function formatLength(mm: number | null | undefined, unit: LengthUnit): s
   return unit === "mm" ? trimZeros(v.toFixed(2)) : v.toFixed(4);
 }
 
-/** A length with its unit, e.g. `6 mm`, `0.2362 in`. */
-export function formatLengthWithUnit(mm: number | null | undefined, unit: LengthUnit): string {
-  return `${formatLength(mm, unit)} ${unit === "mm" ? "mm" : "in"}`;
-}
-
 /** A pressure with its unit, three significant figures (psi to whole numbers). */
 export function formatPressure(mpa: number | null | undefined, units: DisplayUnits): string {
   if (mpa === null || mpa === undefined || !Number.isFinite(mpa)) return "–";
@@ -133,14 +128,6 @@ export function formatPressure(mpa: number | null | undefined, units: DisplayUni
 export function formatForce(kn: number | null | undefined, units: DisplayUnits): string {
   if (kn === null || kn === undefined || !Number.isFinite(kn)) return "–";
   return `${formatNumber(forceFromKn(kn, units.force), 3)} ${unitSymbol(units, "force")}`;
-}
-
-/** A temperature with its unit, to one decimal at most. */
-export function formatTemperature(c: number | null | undefined, units: DisplayUnits): string {
-  if (c === null || c === undefined || !Number.isFinite(c)) return "–";
-  return `${trimZeros(temperatureFromC(c, units.temperature).toFixed(1))} ${
-    unitSymbol(units, "temperature")
-  }`;
 }
 
 function trimZeros(text: string): string {

@@ -1,4 +1,4 @@
-import { locateJson, pathKey, spanForPath, type TextSpan } from "./json_locate.ts";
+import { locateJson, spanForPath, type TextSpan } from "./json_locate.ts";
 import type { Issue } from "./wire.ts";
 
 /**
@@ -46,16 +46,3 @@ export function checkJsonSyntax(text: string): EditorCheck {
     }],
   };
 }
-
-/** Issues grouped by the 1-based line they point at (for the editor's gutter). */
-export function issuesByLine(issues: readonly PlacedIssue[]): Map<number, PlacedIssue[]> {
-  const out = new Map<number, PlacedIssue[]>();
-  for (const i of issues) {
-    const list = out.get(i.span.line) ?? [];
-    list.push(i);
-    out.set(i.span.line, list);
-  }
-  return out;
-}
-
-export { pathKey };

@@ -62,7 +62,6 @@ const state = {
   progress: [] as JobProgress[],
   /** Imbalance target of the job being run, %. */
   runTarget: null as number | null,
-  busy: false,
 };
 
 function loadUnits(): DisplayUnits {
@@ -194,6 +193,20 @@ function showEditorState(kind: "ok" | "error" | "info", text: string) {
 }
 
 /**
+ * The editor's scenario for an action, or null after saying `message` and pointing at the
+ * first syntax problem (the Scenario tab shown).
+ */
+function editorScenarioOr(message: string): unknown | null {
+  const value = checkEditor();
+  if (value === null) {
+    say(message, "error");
+    showTab("scenario");
+    goToIssue(0);
+  }
+  return value;
+}
+
+/**
  * Check the editor's JSON syntax now. Returns the scenario object when the
  * text is JSON (the service checks the rest), else null: nothing is sent.
  */
@@ -290,12 +303,8 @@ function setupEditor() {
     if (b) goToIssue(Number(b.dataset.index));
   });
   $("check").addEventListener("click", async () => {
-    const value = checkEditor();
-    if (value === null) {
-      say("Not valid JSON; see the editor.", "error");
-      goToIssue(0);
-      return;
-    }
+    const value = editorScenarioOr("Not valid JSON; see the editor.");
+    if (value === null) return;
     validated = { text: "", ok: false };
     const ok = await validateOnService(editor().value, value);
     // No verdict: the failure is already reported, or the text has changed since.
@@ -308,11 +317,8 @@ function setupEditor() {
   });
   $("format").addEventListener("click", () => {
     const value = checkEditor();
-    try {
-      setEditorText(JSON.stringify(value ?? JSON.parse(editor().value), null, 2) + "\n");
-    } catch {
-      say("Fix the JSON syntax first.", "error");
-    }
+    if (value === null) say("Fix the JSON syntax first.", "error");
+    else setEditorText(JSON.stringify(value, null, 2) + "\n");
   });
 }
 
@@ -516,12 +522,8 @@ function setupSources() {
 }
 
 async function save(asNew: boolean) {
-  const scenario = checkEditor();
-  if (scenario === null) {
-    say("Not saved: the JSON is not valid (see the editor).", "error");
-    goToIssue(0);
-    return;
-  }
+  const scenario = editorScenarioOr("Not saved: the JSON is not valid (see the editor).");
+  if (scenario === null) return;
   try {
     if (state.source.kind === "saved" && !asNew) {
       const r = await api.updateScenario(state.source.id, scenario);
@@ -566,7 +568,6 @@ function report(error: unknown) {
 
 // ---------- run ----------
 function setBusy(busy: boolean, job = false) {
-  state.busy = busy;
   $<HTMLButtonElement>("simulate").disabled = busy;
   $<HTMLButtonElement>("optimize").disabled = busy;
   $<HTMLButtonElement>("cancel").disabled = !(busy && job);
@@ -574,13 +575,8 @@ function setBusy(busy: boolean, job = false) {
 }
 
 async function simulate() {
-  const scenario = checkEditor();
-  if (scenario === null) {
-    say("Nothing sent: the JSON is not valid (see the editor).", "error");
-    showTab("scenario");
-    goToIssue(0);
-    return;
-  }
+  const scenario = editorScenarioOr("Nothing sent: the JSON is not valid (see the editor).");
+  if (scenario === null) return;
   setBusy(true);
   $("run-state").textContent = "Simulating…";
   try {
@@ -600,13 +596,8 @@ async function simulate() {
 }
 
 async function optimize() {
-  const scenario = checkEditor();
-  if (scenario === null) {
-    say("Nothing sent: the JSON is not valid (see the editor).", "error");
-    showTab("scenario");
-    goToIssue(0);
-    return;
-  }
+  const scenario = editorScenarioOr("Nothing sent: the JSON is not valid (see the editor).");
+  if (scenario === null) return;
   setBusy(true);
   state.progress = [];
   const goals = (scenario as { goals?: { max_imbalance_percent?: number } }).goals;

@@ -139,9 +139,7 @@ export function cavityTableHtml(shown: Shown): string {
   const beforeById = new Map((before?.cavities ?? []).map((c) => [c.id, c]));
   const which = before ? ["before", "after"] as const : ["result"] as const;
   const head2 = (label: string) =>
-    before
-      ? `<th scope="colgroup" colspan="2">${label}</th>`
-      : `<th scope="col" rowspan="${before ? 2 : 1}">${label}</th>`;
+    before ? `<th scope="colgroup" colspan="2">${label}</th>` : `<th scope="col">${label}</th>`;
   const sub = before
     ? `<tr class="sub">${
       ["fill time", "fill %", "gate shear", "mass"].map(() =>
@@ -463,9 +461,8 @@ const SLOPE_WORDS: Record<string, string> = {
 
 /** The optimizer's verdict: status, why it stopped, what would be needed, snapping, cost. */
 export function verdictHtml(opt: OptimizationResult): string {
-  const label = STATUS_WORDS;
   return `<div class="verdict" data-status="${esc(opt.status)}"><p><strong>${
-    esc(label[opt.status] ?? opt.status)
+    esc(STATUS_WORDS[opt.status] ?? opt.status)
   }</strong> — ${esc(opt.reason)}</p>` +
     (opt.would_need.length
       ? `<p>What would make it reachable (a linear estimate, confirm by simulation):</p><ul>${

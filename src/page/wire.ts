@@ -2,7 +2,8 @@
  * The parts of the service's JSON the page reads (`evenfill.result/1`,
  * `evenfill.optimization/1`, jobs, store listings). Declared here, not
  * imported from `report/`, so the page's bundle depends on the wire format
- * only; `tests/page/wire_test.ts` checks the report's output fits these types.
+ * only; `tests/page/results_view_test.ts` checks, when it type-checks, that the report's
+ * output fits these types.
  *
  * @module
  */

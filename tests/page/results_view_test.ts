@@ -19,9 +19,10 @@ import {
 import type { ChangeEntry, OptimizationResult, SimulationResult } from "../../src/page/wire.ts";
 import { assertClose } from "../assert_close.ts";
 
-// The page's wire types must accept what the report module produces (compile-time check).
+// The page's wire types must accept what the report module produces: checked when this file
+// type-checks (the result JSON by the typed assignment in `simulated` below).
 type Fits<A, B> = A extends B ? true : false;
-const optimizationFits: Fits<ReturnType<typeof optimizationJson>, OptimizationResult> = true;
+const _optimizationFits: Fits<ReturnType<typeof optimizationJson>, OptimizationResult> = true;
 
 const scenario = JSON.parse(
   await Deno.readTextFile(new URL("../../scenarios/family_four_housing.json", import.meta.url)),
@@ -37,7 +38,6 @@ function simulated(input: unknown = scenario): SimulationResult {
 const units = METRIC_UNITS;
 
 Deno.test("the report's JSON fits the page's wire types", () => {
-  assert.equal(optimizationFits, true);
   const r = simulated();
   assert.equal(r.cavities.length, 4);
   assert.ok((r.history ?? []).length > 2);
