@@ -20,11 +20,6 @@ export function checkExposure(config: ServiceConfig): string | undefined {
   return undefined;
 }
 
-async function ensureParent(path: string): Promise<void> {
-  const slash = path.lastIndexOf("/");
-  if (slash > 0) await Deno.mkdir(path.slice(0, slash), { recursive: true });
-}
-
 /** Run the service until SIGTERM/SIGINT; returns the exit code. */
 export async function main(args: readonly string[]): Promise<number> {
   let config: ServiceConfig;
@@ -42,7 +37,6 @@ export async function main(args: readonly string[]): Promise<number> {
     console.error(`evenfill service: ${refusal}`);
     return 1;
   }
-  await ensureParent(config.dbPath);
   const store = SqliteStore.open(config.dbPath);
   const shutdown = new AbortController();
   const simulatePool = new SimulatePool(config.simulateWorkers);

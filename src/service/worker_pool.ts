@@ -19,11 +19,6 @@ export class WorkerPool {
     this.config = config;
   }
 
-  /** Process ids of the running workers. */
-  get pids(): number[] {
-    return [...this.#children].map((c) => c.pid);
-  }
-
   /** Start `count` workers. */
   start(count: number): void {
     for (let i = 0; i < count; i++) this.#spawn();

@@ -120,6 +120,9 @@ export class SqliteStore implements Store {
 
   /** Open (creating if needed) the database file and bring its schema up to date. */
   static open(path: string, options: SqliteStoreOptions = {}): SqliteStore {
+    // The database's folder is made if missing (a fresh checkout has no data/).
+    const slash = path.lastIndexOf("/");
+    if (slash > 0) Deno.mkdirSync(path.slice(0, slash), { recursive: true });
     const db = new DatabaseSync(path);
     db.exec(`PRAGMA busy_timeout = ${Math.trunc(options.busyTimeoutMs ?? 5000)}`);
     db.exec("PRAGMA journal_mode = WAL");
@@ -254,10 +257,8 @@ export class SqliteStore implements Store {
   }
 
   deleteScenario(id: string): boolean {
-    return this.#transaction(() => {
-      this.#db.prepare("DELETE FROM scenario_revisions WHERE scenario_id = ?").run(id);
-      return Number(this.#db.prepare("DELETE FROM scenarios WHERE id = ?").run(id).changes) > 0;
-    });
+    // Its revisions go with it (ON DELETE CASCADE, foreign keys on).
+    return Number(this.#db.prepare("DELETE FROM scenarios WHERE id = ?").run(id).changes) > 0;
   }
 
   // Jobs

@@ -1,5 +1,6 @@
 import type { ClaimedJob, Store } from "../store/store.ts";
 import type { RunReply } from "./run_job.ts";
+import { lines } from "./lines.ts";
 
 /** Options of {@link JobWorker}. */
 export interface JobWorkerOptions {
@@ -55,26 +56,18 @@ class JobProcess {
   alive = true;
 
   async #read(): Promise<void> {
-    const decoder = new TextDecoder();
-    let rest = "";
     try {
-      for await (const bytes of this.#child.stdout) {
-        rest += decoder.decode(bytes, { stream: true });
-        let nl;
-        while ((nl = rest.indexOf("\n")) >= 0) {
-          const line = rest.slice(0, nl);
-          rest = rest.slice(nl + 1);
-          let reply: RunReply | undefined;
-          try {
-            reply = JSON.parse(line);
-          } catch {
-            console.error(line); // not a reply: stray output, keep it visible
-          }
-          if (reply && this.#waiting) {
-            const resolve = this.#waiting;
-            this.#waiting = undefined;
-            resolve(reply);
-          }
+      for await (const line of lines(this.#child.stdout)) {
+        let reply: RunReply | undefined;
+        try {
+          reply = JSON.parse(line);
+        } catch {
+          console.error(line); // not a reply: stray output, keep it visible
+        }
+        if (reply && this.#waiting) {
+          const resolve = this.#waiting;
+          this.#waiting = undefined;
+          resolve(reply);
         }
       }
     } catch {

@@ -28,8 +28,6 @@ export async function main(args: readonly string[]): Promise<number> {
     }
     throw error;
   }
-  const slash = config.dbPath.lastIndexOf("/");
-  if (slash > 0) await Deno.mkdir(config.dbPath.slice(0, slash), { recursive: true });
   const store = SqliteStore.open(config.dbPath);
   const parent = Deno.ppid;
   const worker = new JobWorker(store, {

@@ -18,6 +18,7 @@ import { LIBRARY_MATERIAL_IDS } from "../network/simulate_scenario.ts";
 import { optimizeBalance } from "../optimize/balance.ts";
 import { iterationJson, optimizationJson } from "../report/optimization_report.ts";
 import { SqliteStore } from "../store/sqlite_store.ts";
+import { lines } from "./lines.ts";
 import type { JobError, JobOutcome, JobProgress, JobRecord, Store } from "../store/store.ts";
 
 /** Exit codes of this process. */
@@ -131,19 +132,6 @@ export interface RunReply {
   attempt: number;
   /** Whether this process wrote the attempt's outcome (false: the lease was gone). */
   written: boolean;
-}
-
-async function* lines(stream: ReadableStream<Uint8Array>): AsyncGenerator<string> {
-  const decoder = new TextDecoder();
-  let rest = "";
-  for await (const bytes of stream) {
-    rest += decoder.decode(bytes, { stream: true });
-    let nl;
-    while ((nl = rest.indexOf("\n")) >= 0) {
-      yield rest.slice(0, nl);
-      rest = rest.slice(nl + 1);
-    }
-  }
 }
 
 async function main(args: readonly string[]): Promise<number> {

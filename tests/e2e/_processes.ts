@@ -1,5 +1,7 @@
 // Real service and worker processes on 127.0.0.1 for the end-to-end tests.
 
+import { lines } from "../../src/worker/lines.ts";
+
 const ROOT = new URL("../../", import.meta.url);
 const CONFIG = new URL("deno.json", ROOT).pathname;
 const SERVICE = new URL("src/service/main.ts", ROOT).pathname;
@@ -33,22 +35,14 @@ export class Proc {
   }
 
   async #read(stream: ReadableStream<Uint8Array>): Promise<void> {
-    let rest = "";
-    const decoder = new TextDecoder();
-    for await (const bytes of stream) {
-      rest += decoder.decode(bytes, { stream: true });
-      let nl;
-      while ((nl = rest.indexOf("\n")) >= 0) {
-        const line = rest.slice(0, nl);
-        rest = rest.slice(nl + 1);
-        this.lines.push(line);
-        if (Deno.env.get("EVENFILL_E2E_VERBOSE")) console.error(`[${this.pid}] ${line}`);
-        this.#waiters = this.#waiters.filter((w) => {
-          if (!w.test(line)) return true;
-          w.resolve(line);
-          return false;
-        });
-      }
+    for await (const line of lines(stream)) {
+      this.lines.push(line);
+      if (Deno.env.get("EVENFILL_E2E_VERBOSE")) console.error(`[${this.pid}] ${line}`);
+      this.#waiters = this.#waiters.filter((w) => {
+        if (!w.test(line)) return true;
+        w.resolve(line);
+        return false;
+      });
     }
   }
 
