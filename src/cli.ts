@@ -35,6 +35,11 @@ interface Args {
   flags: Map<string, string | true>;
 }
 
+/** Write every byte: one writeSync may write fewer than it is given (a pipe, a large sheet). */
+function writeAllSync(out: { writeSync(p: Uint8Array): number }, bytes: Uint8Array): void {
+  for (let done = 0; done < bytes.length;) done += out.writeSync(bytes.subarray(done));
+}
+
 function parseArgs(argv: readonly string[]): Args {
   const positional: string[] = [];
   const flags = new Map<string, string | true>();
@@ -154,7 +159,7 @@ export async function main(argv: readonly string[]): Promise<number> {
       }
       const changes = changeList(result.outcome);
       if (args.flags.has("csv")) {
-        Deno.stdout.writeSync(new TextEncoder().encode(changeSheetCsv(changes)));
+        writeAllSync(Deno.stdout, new TextEncoder().encode(changeSheetCsv(changes)));
       } else if (args.flags.has("json")) {
         const json = optimizationJson(result.outcome, {
           history: args.flags.has("history"),

@@ -3,6 +3,7 @@
 import assert from "node:assert/strict";
 import { assertClose } from "../assert_close.ts";
 import { cliOptimize, Proc, startService, startWorker, waitForJob } from "./_processes.ts";
+import { readEvents } from "../service/_app.ts";
 
 // deno-lint-ignore no-explicit-any
 type Json = any;
@@ -278,14 +279,9 @@ Deno.test({
       const res = await fetch(`${service.base}/api/jobs/${id}/events`);
       assert.equal(res.status, 200);
       assert.match(res.headers.get("content-type") ?? "", /^text\/event-stream/);
-      const text = res.text();
+      const reading = readEvents(res);
       worker = await startWorker(db);
-      const events: [string, Json][] = [];
-      for (const block of (await text).split("\n\n")) {
-        const event = /^event: (.*)$/m.exec(block)?.[1];
-        const data = /^data: (.*)$/m.exec(block)?.[1];
-        if (event && data) events.push([event, JSON.parse(data)]);
-      }
+      const events = await reading;
       const names = events.map(([e]) => e);
       assert.deepEqual(events[0], ["state", { status: "queued" }]);
       assert.deepEqual(events[1], ["state", { status: "running" }]);

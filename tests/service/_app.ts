@@ -61,3 +61,17 @@ export const QUICK_PATH = new URL("../testdata/quick_two_cavity.json", import.me
 export async function readJson(url: URL): Promise<Record<string, unknown>> {
   return JSON.parse(await Deno.readTextFile(url));
 }
+
+/** Read an SSE response to its end as [event, parsed data] pairs. */
+// deno-lint-ignore no-explicit-any
+export async function readEvents(res: Response): Promise<[string, any][]> {
+  const text = await res.text();
+  // deno-lint-ignore no-explicit-any
+  const events: [string, any][] = [];
+  for (const block of text.split("\n\n")) {
+    const event = /^event: (.*)$/m.exec(block)?.[1];
+    const data = /^data: (.*)$/m.exec(block)?.[1];
+    if (event && data) events.push([event, JSON.parse(data)]);
+  }
+  return events;
+}

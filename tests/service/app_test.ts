@@ -4,7 +4,7 @@ import { MATERIALS } from "../../src/materials/library.ts";
 import { createApp } from "../../src/service/app.ts";
 import { SimulatePool } from "../../src/service/simulate_pool.ts";
 import type { Store } from "../../src/store/store.ts";
-import { DEMO_PATH, QUICK_PATH, readJson, testApp } from "./_app.ts";
+import { DEMO_PATH, QUICK_PATH, readEvents, readJson, testApp } from "./_app.ts";
 
 // deno-lint-ignore no-explicit-any
 type Json = any;
@@ -433,18 +433,6 @@ Deno.test("jobs: cancel of a queued job cancels it at once; of a running job fla
     await app.close();
   }
 });
-
-/** Read an SSE response to its end as [event, data] pairs. */
-async function readEvents(res: Response): Promise<[string, Json][]> {
-  const text = await res.text();
-  const events: [string, Json][] = [];
-  for (const block of text.split("\n\n")) {
-    const event = /^event: (.*)$/m.exec(block)?.[1];
-    const data = /^data: (.*)$/m.exec(block)?.[1];
-    if (event && data) events.push([event, JSON.parse(data)]);
-  }
-  return events;
-}
 
 Deno.test("job events: state, progress in order, and end, then the stream closes", async () => {
   const app = await testApp();
