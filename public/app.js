@@ -1476,20 +1476,7 @@
       } : {}
     });
   }
-  function pathProfiles(result, scenario) {
-    const nodes = new Map(scenario.nodes.map((n) => [
-      n.id,
-      n
-    ]));
-    const length = /* @__PURE__ */ new Map();
-    length.set("sprue", scenario.feed.length_mm);
-    length.set("hot_drop", scenario.feed.length_mm);
-    for (const r of scenario.runners ?? []) {
-      const a = nodes.get(r.from), b = nodes.get(r.to);
-      length.set(r.id, r.length_mm ?? (a && b ? Math.hypot(a.x_mm - b.x_mm, a.y_mm - b.y_mm) : 10));
-    }
-    for (const g of scenario.gates) length.set(g.id, g.length_mm ?? g.land_mm ?? 1);
-    for (const c of scenario.cavities) length.set(c.id, c.flow_length_mm ?? 50);
+  function pathProfiles(result) {
     return (result.paths ?? []).map((p) => {
       let x = 0;
       const firstFull = p.elements.every((e) => typeof e.pressure_drop_first_full_MPa === "number");
@@ -1502,7 +1489,7 @@
         ]
       ];
       for (const e of p.elements) {
-        x += length.get(e.id) ?? 10;
+        x += e.length_mm ?? 0;
         pressure -= drop(e);
         points.push([
           x,
@@ -1529,7 +1516,7 @@
     ]);
     const series = [];
     if (shown.kind === "optimization") {
-      for (const p of pathProfiles(shown.result.before, ctx.scenario)) {
+      for (const p of pathProfiles(shown.result.before)) {
         series.push({
           label: `${p.cavity} before`,
           style: order.get(p.cavity) ?? 0,
@@ -1538,7 +1525,7 @@
         });
       }
     }
-    for (const p of pathProfiles(after, ctx.scenario)) {
+    for (const p of pathProfiles(after)) {
       series.push({
         label: p.cavity,
         style: order.get(p.cavity) ?? 0,

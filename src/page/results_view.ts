@@ -297,21 +297,7 @@ export function fillChartSvg(
  */
 export function pathProfiles(
   result: SimulationResult,
-  scenario: ScenarioForViews,
 ): { cavity: string; points: [number, number][]; ids: string[] }[] {
-  const nodes = new Map(scenario.nodes.map((n) => [n.id, n]));
-  const length = new Map<string, number>();
-  length.set("sprue", scenario.feed.length_mm);
-  length.set("hot_drop", scenario.feed.length_mm);
-  for (const r of scenario.runners ?? []) {
-    const a = nodes.get(r.from), b = nodes.get(r.to);
-    length.set(
-      r.id,
-      r.length_mm ?? (a && b ? Math.hypot(a.x_mm - b.x_mm, a.y_mm - b.y_mm) : 10),
-    );
-  }
-  for (const g of scenario.gates) length.set(g.id, g.length_mm ?? g.land_mm ?? 1);
-  for (const c of scenario.cavities) length.set(c.id, c.flow_length_mm ?? 50);
   return (result.paths ?? []).map((p) => {
     let x = 0;
     const firstFull = p.elements.every((e) => typeof e.pressure_drop_first_full_MPa === "number");
@@ -320,7 +306,7 @@ export function pathProfiles(
     let pressure = p.elements.reduce((s, e) => s + drop(e), 0);
     const points: [number, number][] = [[0, pressure]];
     for (const e of p.elements) {
-      x += length.get(e.id) ?? 10;
+      x += e.length_mm ?? 0;
       pressure -= drop(e);
       points.push([x, Math.max(0, pressure)]);
     }
@@ -339,7 +325,7 @@ export function pathPressureSvg(shown: Shown, ctx: RunContext): string {
     pts.map(([x, p]) => [lengthFromMm(x, u.length), pressureFromMpa(p, u.pressure)]);
   const series: ChartSeries[] = [];
   if (shown.kind === "optimization") {
-    for (const p of pathProfiles(shown.result.before, ctx.scenario)) {
+    for (const p of pathProfiles(shown.result.before)) {
       series.push({
         label: `${p.cavity} before`,
         style: order.get(p.cavity) ?? 0,
@@ -348,7 +334,7 @@ export function pathPressureSvg(shown: Shown, ctx: RunContext): string {
       });
     }
   }
-  for (const p of pathProfiles(after, ctx.scenario)) {
+  for (const p of pathProfiles(after)) {
     series.push({ label: p.cavity, style: order.get(p.cavity) ?? 0, points: conv(p.points) });
   }
   return lineChart(series, {

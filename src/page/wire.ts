@@ -69,6 +69,8 @@ export interface SimulationResult {
     cavity: string;
     elements: {
       id: string;
+      /** How far melt travels through the element, mm. */
+      length_mm?: number | null;
       pressure_drop_MPa: number | null;
       pressure_drop_first_full_MPa?: number | null;
     }[];

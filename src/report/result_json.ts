@@ -1,3 +1,4 @@
+import type { ElementGeometry } from "../network/feed_network.ts";
 import type { ScenarioRun } from "../network/simulate_scenario.ts";
 import { kgToG, kToC, m3ToCm3, mToMm, nToKn, paToMpa } from "../model/units.ts";
 
@@ -15,6 +16,7 @@ export function resultJson(run: ScenarioRun, options: { history?: boolean } = {}
   const shearLimit = scenario.goals.gate_shear_limit_1_s ?? material.maxShearRate;
   const machinePressure = scenario.machine.max_injection_pressure_MPa;
   const cavityVolume = network.cavityVolume;
+  const byId = new Map(network.elements.map((e) => [e.id, e]));
   return {
     format: RESULT_FORMAT,
     scenario: scenario.name,
@@ -75,6 +77,7 @@ export function resultJson(run: ScenarioRun, options: { history?: boolean } = {}
       cavity: p.cavity,
       elements: p.elements.map((id, k) => ({
         id,
+        length_mm: round(mToMm(flowDistance(byId.get(id)!.geometry)), 6),
         pressure_drop_MPa: round(paToMpa(p.pressureDrops[k])),
         pressure_drop_first_full_MPa: round(paToMpa(p.pressureDropsAtFirstFull[k])),
       })),
@@ -128,3 +131,19 @@ export function resultJson(run: ScenarioRun, options: { history?: boolean } = {}
 
 /** The type of {@link resultJson}'s output. */
 export type ResultJson = ReturnType<typeof resultJson>;
+
+/**
+ * How far melt travels through an element along its flow path, m: a channel's length, a
+ * strip cavity's flow length, a radial cavity's gate-to-rim distance.
+ */
+function flowDistance(g: ElementGeometry): number {
+  switch (g.type) {
+    case "uniform":
+    case "tapered":
+      return g.length;
+    case "strip":
+      return g.flowLength;
+    case "radial":
+      return g.maxRadius - g.gateRadius;
+  }
+}

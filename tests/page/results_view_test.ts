@@ -18,6 +18,7 @@ import {
 } from "../../src/page/results_view.ts";
 import type { ChangeEntry, OptimizationResult, SimulationResult } from "../../src/page/wire.ts";
 import { assertClose } from "../assert_close.ts";
+import { singleLine } from "../network/_scenarios.ts";
 
 // The page's wire types must accept what the report module produces: checked when this file
 // type-checks (the result JSON by the typed assignment in `simulated` below).
@@ -60,7 +61,7 @@ Deno.test("per-cavity table: one row per cavity with the API's raw values", () =
 
 Deno.test("pressure along a path starts at the path's total and ends at zero", () => {
   const r = simulated();
-  const profiles = pathProfiles(r, scenario);
+  const profiles = pathProfiles(r);
   assert.equal(profiles.length, 4);
   for (const p of profiles) {
     const path = r.paths!.find((x) => x.cavity === p.cavity)!;
@@ -159,4 +160,21 @@ Deno.test("verdict: says how many simulations the optimizer ran and where its sl
   assert.ok(html.includes("42 fill simulations"));
   assert.ok(html.includes("finite differences (one simulation per size)"));
   assert.ok(verdictHtml({ ...opt, simulations: 7, slopes: "tangent" }).includes("(tangent)"));
+});
+
+Deno.test("path distances come with the result: a radial cavity adds its gate-to-rim radius", () => {
+  // A centre-gated disk of volume V and wall H holding r_g² + V/(πH) = R² (disk geometry):
+  // 20 cm³ at 2 mm with a 1 mm gate radius reaches R = √(1 + 20000/(2π)) mm = 56.43 mm.
+  const outcome = simulateScenario(
+    singleLine({ feed: "hot_drop", gate: "pin", cavity: "radial" }),
+  );
+  assert.ok(outcome.ok);
+  const r = resultJson(outcome.run) as SimulationResult;
+  const [profile] = pathProfiles(r);
+  const rim = Math.sqrt(1 + 20000 / (2 * Math.PI));
+  const hot = 40, runner = 50, land = 1; // hot drop, runner and gate lengths of the scenario
+  assertClose(profile.points.at(-1)![0], hot + runner + land + (rim - 1), {
+    rel: 1e-6,
+    what: "distance to the rim, mm",
+  });
 });
