@@ -544,19 +544,24 @@
     }
     return text;
   }
-  function lineColumn(text, offset) {
-    let line = 1;
-    let lineStart = 0;
-    const end = Math.min(offset, text.length);
-    for (let i = 0; i < end; i++) {
-      if (text.charCodeAt(i) === 10) {
-        line++;
-        lineStart = i + 1;
+  function lineLocator(text) {
+    const starts = [
+      0
+    ];
+    for (let i = 0; i < text.length; i++) if (text.charCodeAt(i) === 10) starts.push(i + 1);
+    return (offset) => {
+      const end = Math.min(offset, text.length);
+      let lo = 0;
+      let hi = starts.length - 1;
+      while (lo < hi) {
+        const mid = lo + hi + 1 >> 1;
+        if (starts[mid] <= end) lo = mid;
+        else hi = mid - 1;
       }
-    }
-    return {
-      line,
-      column: end - lineStart + 1
+      return {
+        line: lo + 1,
+        column: end - starts[lo] + 1
+      };
     };
   }
   var JsonSyntaxError = class extends Error {
@@ -568,10 +573,11 @@
   function locateJson(text) {
     const spans = /* @__PURE__ */ new Map();
     let i = 0;
+    const locate = lineLocator(text);
     const span = (start2, end) => ({
       start: start2,
       end,
-      ...lineColumn(text, start2)
+      ...locate(start2)
     });
     const fail = (message, at = i) => {
       throw new JsonSyntaxError(message, at);

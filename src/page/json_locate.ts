@@ -39,16 +39,27 @@ export function pathKey(path: readonly (string | number)[]): string {
 
 /** Line and column (1-based) of an offset. */
 export function lineColumn(text: string, offset: number): { line: number; column: number } {
-  let line = 1;
-  let lineStart = 0;
-  const end = Math.min(offset, text.length);
-  for (let i = 0; i < end; i++) {
-    if (text.charCodeAt(i) === 10) {
-      line++;
-      lineStart = i + 1;
+  return lineLocator(text)(offset);
+}
+
+/**
+ * Line and column (1-based) of offsets in `text`: the line starts are found once, then
+ * each offset is a binary search (a span per value would otherwise rescan the text).
+ */
+function lineLocator(text: string): (offset: number) => { line: number; column: number } {
+  const starts = [0];
+  for (let i = 0; i < text.length; i++) if (text.charCodeAt(i) === 10) starts.push(i + 1);
+  return (offset) => {
+    const end = Math.min(offset, text.length);
+    let lo = 0;
+    let hi = starts.length - 1;
+    while (lo < hi) {
+      const mid = (lo + hi + 1) >> 1;
+      if (starts[mid] <= end) lo = mid;
+      else hi = mid - 1;
     }
-  }
-  return { line, column: end - lineStart + 1 };
+    return { line: lo + 1, column: end - starts[lo] + 1 };
+  };
 }
 
 class JsonSyntaxError extends Error {
@@ -61,11 +72,8 @@ class JsonSyntaxError extends Error {
 export function locateJson(text: string): LocatedJson {
   const spans = new Map<string, PathSpan>();
   let i = 0;
-  const span = (start: number, end: number): TextSpan => ({
-    start,
-    end,
-    ...lineColumn(text, start),
-  });
+  const locate = lineLocator(text);
+  const span = (start: number, end: number): TextSpan => ({ start, end, ...locate(start) });
   const fail = (message: string, at = i): never => {
     throw new JsonSyntaxError(message, at);
   };

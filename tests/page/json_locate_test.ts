@@ -93,4 +93,13 @@ Deno.test("pathKey and lineColumn", () => {
   assert.equal(pathKey(["gates", 2, "thickness_mm"]), "gates[2].thickness_mm");
   assert.equal(pathKey([]), "$");
   assert.deepEqual(lineColumn("ab\ncd", 4), { line: 2, column: 2 });
+  // Every offset of a text with empty lines and a trailing newline, against counting by hand:
+  // the line is 1 + the newlines before the offset, the column 1 + the distance past the last.
+  const text = '{\n\n  "a": 1,\n"b": [2,\n3]\n}\n';
+  for (let offset = 0; offset <= text.length + 2; offset++) {
+    const before = text.slice(0, offset);
+    const line = before.split("\n").length;
+    const column = before.length - (before.lastIndexOf("\n") + 1) + 1;
+    assert.deepEqual(lineColumn(text, offset), { line, column }, `offset ${offset}`);
+  }
 });
