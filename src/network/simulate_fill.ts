@@ -1,6 +1,7 @@
 import type { FlowCurve } from "../materials/flow_curve.ts";
 import {
   type ChannelFlow,
+  closingThickness,
   radialDiskFlow,
   type Section,
   shrinkSection,
@@ -24,11 +25,7 @@ import type {
   FillSample,
   FlowPath,
 } from "./fill_result.ts";
-import {
-  type HydraulicElement,
-  type HydraulicSolution,
-  solveHydraulics,
-} from "./hydraulic_solve.ts";
+import { type HydraulicElement, solveHydraulics } from "./hydraulic_solve.ts";
 
 /** The melt as the fill simulation needs it. All SI. */
 export interface MeltModel {
@@ -76,6 +73,9 @@ export interface SimulateFillOptions {
 const MIN_FILLED_FRACTION = 1e-4;
 /** A frozen layer this close to closing a section (fraction of the thinnest half-dimension) shuts it. */
 const CLOSURE_FRACTION = 0.95;
+/** Most heating–flow passes at an event, and the feed-pressure change (relative) that ends them. */
+const THERMAL_PASSES = 12;
+const THERMAL_TOLERANCE = 1e-4;
 /** Relative tolerance for landing a step on an element's or cavity's full volume. */
 const EVENT_TOLERANCE = 1e-10;
 
@@ -102,7 +102,6 @@ interface Solved {
   /** Pressure per graph node (NaN where dry or pruned). */
   pressure: Float64Array;
   channel: ChannelFlow[];
-  solution: Extract<HydraulicSolution, { ok: true }>;
 }
 
 /**
@@ -121,7 +120,12 @@ interface Solved {
  * own adiabatic heating ΔP/(ρ·cp), and the frozen layer of the no-flow conduction
  * solution δ = 2·erf⁻¹(θ)·√(α·t_c) with t_c the shorter of the wall's mean contact
  * time and half the melt's residence time in the element (the thermal boundary layer
- * of a flowing channel grows with residence, not contact, time: Lévêque scaling).
+ * of a flowing channel grows with residence, not contact, time: Lévêque scaling);
+ * a layer never thins once formed (no re-melting: when a cavity fills and the flow
+ * through the others jumps, their residence time falls but the solid stays).
+ * At an event the heating and the flows are iterated to agree instead of lagging.
+ * Dead ends (a full cavity and what leads only to it) hold the pressure of the node
+ * they hang from; a node sealed by a frozen-shut element keeps its last pressure.
  * Stops when every cavity is full, when no path reaches an unfilled cavity (short
  * shot), or at the step limit.
  */
@@ -151,10 +155,14 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
   const fullTime = new Float64Array(E).fill(NaN);
   const wetTime = new Float64Array(nodeCount).fill(NaN);
   const closed = new Uint8Array(E);
+  const closedAt = new Float64Array(E).fill(NaN);
   const lastFlow = new Float64Array(E);
   const temperature = new Float64Array(E).fill(process.feedTemperature);
   const heating = new Float64Array(E);
   const meanPressure = new Float64Array(E);
+  /** Frozen layer reached by each element at the last accepted instant, m (it never re-melts). */
+  const frozenHeld = new Float64Array(E);
+  const closing = Float64Array.from(elements, closingLayer);
 
   const isFull = (e: number) => !Number.isNaN(fullTime[e]);
   const filledVolume = (e: number) => fill[2 * e] + fill[2 * e + 1];
@@ -188,7 +196,7 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
       noFlowTemperature: melt.noFlowTemperature,
       diffusivity: melt.diffusivity,
     });
-    return Math.min(delta, CLOSURE_FRACTION * thinnestHalf(e));
+    return Math.max(frozenHeld[e.index], Math.min(delta, CLOSURE_FRACTION * closing[e.index]));
   };
 
   const curveFor = (e: NetworkElement): FlowCurve =>
@@ -292,7 +300,19 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
         }
       });
     }
-    const kept = branches.filter((_, k) => alive[k]);
+    // Keep what the inlet reaches: melt behind a frozen-shut element is cut off from the pump.
+    const reached = new Uint8Array(nodeCount);
+    reached[network.inlet] = 1;
+    let grew = true;
+    while (grew) {
+      grew = false;
+      branches.forEach((br, k) => {
+        if (!alive[k] || br.b < 0 || reached[br.a] === reached[br.b]) return;
+        reached[br.a] = reached[br.b] = 1;
+        grew = true;
+      });
+    }
+    const kept = branches.filter((br, k) => alive[k] && reached[br.a] === 1);
     const local = new Int32Array(nodeCount).fill(-1);
     let count = 0;
     local[network.inlet] = count++;
@@ -301,6 +321,34 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
       if (br.b >= 0 && local[br.b] < 0) local[br.b] = count++;
     }
     return { branches: kept, local, nodeCount: count };
+  };
+
+  /** Pressure each wet node had at the last recorded instant, Pa (NaN: never had one). */
+  const heldPressure = new Float64Array(nodeCount).fill(NaN);
+  /**
+   * Pressures of the wet nodes the assembly pruned. A dead end (a full cavity and the full
+   * gates and runners that lead only to it) carries no flow, so every node of it sits at the
+   * pressure of the live node it hangs from: the full cavity holds its feed pressure over its
+   * whole area. A node sealed off by a frozen-shut element keeps the pressure it last had
+   * (an upper bound: the sealed melt's shrinkage lowers it, which a fill model does not see).
+   */
+  const fillDeadEnds = (pressure: Float64Array) => {
+    const queue: number[] = [];
+    for (let n = 0; n < nodeCount; n++) if (!Number.isNaN(pressure[n])) queue.push(n);
+    while (queue.length > 0) {
+      const n = queue.pop()!;
+      for (const { element, side } of adjacency[n]) {
+        const e = elements[element];
+        if (e.kind === "cavity" || e.to < 0 || closed[element] || !isFull(element)) continue;
+        const other = side === 0 ? e.to : e.from;
+        if (!Number.isNaN(pressure[other])) continue;
+        pressure[other] = pressure[n];
+        queue.push(other);
+      }
+    }
+    for (let n = 0; n < nodeCount; n++) {
+      if (Number.isNaN(pressure[n]) && !Number.isNaN(wetTime[n])) pressure[n] = heldPressure[n];
+    }
   };
 
   let hydraulicSolves = 0;
@@ -314,6 +362,12 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
     assembly: Assembly,
     warm?: Float64Array,
   ): Solved | { failure: string } => {
+    if (assembly.branches.length === 0) {
+      // Frozen shut at the feed: nothing flows, every wet node keeps its last pressure.
+      const pressure = new Float64Array(nodeCount).fill(NaN);
+      fillDeadEnds(pressure);
+      return { assembly, flows: new Float64Array(0), pressure, channel: [] };
+    }
     const laws = assembly.branches.map((br) => lawOf(br, t, volumes));
     const fixedPressure = new Map<number, number>();
     let next = assembly.nodeCount;
@@ -354,8 +408,9 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
     for (let n = 0; n < nodeCount; n++) {
       if (assembly.local[n] >= 0) pressure[n] = solution.pressures[assembly.local[n]];
     }
+    fillDeadEnds(pressure);
     const channel = laws.map((law, k) => law(solution.flows[k]));
-    return { assembly, flows: solution.flows, pressure, channel, solution };
+    return { assembly, flows: solution.flows, pressure, channel };
   };
 
   // --- thermal state update (lagged by one step) ------------------------------
@@ -416,6 +471,7 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
   /** Each element's pressure drop just as the first cavity fills (every path flowing), Pa. */
   let dropsAtFirstFull: Float64Array | undefined;
   let atSwitchover: Solved | undefined;
+  let frozenAtSwitchover: Float64Array | undefined;
   let feedPressurePeak = 0;
   let clampForcePeak = 0;
 
@@ -456,6 +512,9 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
   };
 
   const record = (t: number, s: Solved) => {
+    for (let n = 0; n < nodeCount; n++) {
+      if (!Number.isNaN(s.pressure[n])) heldPressure[n] = s.pressure[n];
+    }
     const feedPressure = s.pressure[network.inlet];
     const force = clampForce(s);
     let filledVolume = 0;
@@ -713,6 +772,18 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
   let message = "every cavity filled";
   let switchoverDone = switchoverTime <= 0;
 
+  const shortShotMessage = () => {
+    const unfilled = network.cavities.filter((_, i) => Number.isNaN(cavityFullTime[i]));
+    const shut = elements.filter((e) => closed[e.index])
+      .sort((a, b) => closedAt[a.index] - closedAt[b.index])
+      .map((e) => `${e.kind} ${e.id} froze shut at ${closedAt[e.index].toFixed(3)} s`);
+    const cavities = unfilled.map((c) =>
+      `${c.id} stops at ${(100 * fill[2 * c.element] / c.volume).toFixed(1)} %`
+    );
+    return `${shut.length > 0 ? shut.join(", ") : "no open path is left"}: ` +
+      `cavit${unfilled.length === 1 ? "y" : "ies"} ${cavities.join(", ")} (short shot)`;
+  };
+
   const capacity = (br: Branch) => {
     const e = elements[br.element];
     return e.volume - fill[2 * e.index + (1 - br.side)] * (e.kind === "cavity" ? 0 : 1);
@@ -730,7 +801,7 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
     );
     if (partial.length === 0) {
       stoppedBecause = "short_shot";
-      message = "no open path leads to an unfilled cavity (frozen or blocked)";
+      message = shortShotMessage();
       break;
     }
     // Earliest predicted event (Euler estimate) bounds the step.
@@ -918,12 +989,13 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
     // Frozen-shut elements leave the network.
     for (const e of elements) {
       if (closed[e.index] || e.heated || process.isothermal) continue;
-      if (
-        frozenAt(e, t, isFull(e.index) ? -1 : 0) >= CLOSURE_FRACTION * thinnestHalf(e) * (1 - 1e-9)
-      ) {
+      frozenHeld[e.index] = frozenAt(e, t, isFull(e.index) ? -1 : 0);
+      if (frozenHeld[e.index] >= CLOSURE_FRACTION * closing[e.index] * (1 - 1e-9)) {
         closed[e.index] = 1;
+        closedAt[e.index] = t;
       }
     }
+    if (landingOnSwitchover) frozenAtSwitchover = frozenHeld.slice();
     if (cavityFullTime.every((x) => !Number.isNaN(x))) {
       if (!atSwitchover) {
         const end = solveAt(t, fill, s0.assembly, accepted.s1.flows);
@@ -935,13 +1007,28 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
       break;
     }
     assembly = assemble();
-    state = solveAt(t, fill, assembly, newlyFull.length === 0 ? accepted.s1.flows : undefined);
+    const unchanged = newlyFull.length === 0 && sameBranches(assembly, s0.assembly);
+    state = solveAt(t, fill, assembly, unchanged ? accepted.s1.flows : undefined);
     if ("failure" in state) return failed(state.failure);
     if (!lastTangentStep) {
       tangentJump(s0, accepted.s1.flows, state, shifts);
       tangentAt(state, t);
     }
     updateThermal(state);
+    // The flows jump at an event; the one-step thermal lag would then take viscous heating
+    // from the flows before it. Iterate heating and flows to a consistent state instead.
+    for (
+      let pass = 0;
+      pass < THERMAL_PASSES && newlyFull.length > 0 && !process.isothermal;
+      pass++
+    ) {
+      const again = solveAt(t, fill, assembly, state.flows);
+      if ("failure" in again) return failed(again.failure);
+      const before = state.pressure[network.inlet];
+      state = again;
+      updateThermal(state);
+      if (Math.abs(state.pressure[network.inlet] - before) <= THERMAL_TOLERANCE * before) break;
+    }
     if (newlyFull.length > 0 || !landingOnSwitchover) record(t, state);
     if (lastTangentStep) tangentOn = false;
     options.onProgress?.(Math.min(1, (Q * t) / shotVolume));
@@ -966,7 +1053,7 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
       volume: e.volume,
       fullTime: fullTime[e.index],
       temperatureAtSwitchover: temperature[e.index],
-      frozenLayerAtSwitchover: frozenAt(e, Math.min(t, switchoverTime), isFull(e.index) ? -1 : 0),
+      frozenLayerAtSwitchover: (frozenAtSwitchover ?? frozenHeld)[e.index],
       frozenShut: closed[e.index] === 1,
     };
   });
@@ -1070,6 +1157,15 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
   }
 }
 
+/** Whether two assemblies hold the same branches in the same order (a warm start fits both). */
+function sameBranches(a: Assembly, b: Assembly): boolean {
+  if (a.branches.length !== b.branches.length) return false;
+  return a.branches.every((br, k) => {
+    const other = b.branches[k];
+    return br.element === other.element && br.side === other.side;
+  });
+}
+
 function historyFillAt(history: readonly FillSample[], time: number, cavity: number): number {
   for (let i = history.length - 1; i >= 0; i--) {
     if (history[i].time <= time * (1 + 1e-12)) return history[i].cavityFill[cavity];
@@ -1109,38 +1205,18 @@ function localIndex(channel: ChannelFlow, flow: number): number {
   return Math.min(1, Math.max(0.05, (flow * channel.dPressureDropDFlow) / channel.pressureDrop));
 }
 
-function thinnestHalf(e: NetworkElement): number {
+/** Frozen-layer thickness that closes an element (its thinnest section), m. */
+function closingLayer(e: NetworkElement): number {
   const g = e.geometry;
   switch (g.type) {
     case "uniform":
-      return sectionHalfThickness(g.section);
+      return closingThickness(g.section);
     case "tapered":
-      return Math.min(sectionHalfThickness(g.entry), sectionHalfThickness(g.exit));
+      return Math.min(closingThickness(g.entry), closingThickness(g.exit));
     case "strip":
       return g.gap / 2;
     case "radial":
       return g.gap / 2;
-  }
-}
-
-function sectionHalfThickness(s: Section): number {
-  switch (s.kind) {
-    case "circle":
-      return s.radius;
-    case "half_round":
-      return s.radius / 2;
-    case "trapezoid":
-      return Math.min(s.depth, s.bottomWidth) / 2;
-    case "parabolic":
-      return Math.min(s.depth, s.width) / 2;
-    case "rectangle":
-      return Math.min(s.width, s.height) / 2;
-    case "slit":
-      return s.gap / 2;
-    case "ellipse":
-      return s.minorAxis / 2;
-    case "d_shape":
-      return (s.radius + s.flatOffset) / 2;
   }
 }
 

@@ -99,8 +99,27 @@ export function meltModelOf(material: Material): MeltModel {
   };
 }
 
-/** Simulate a validated scenario: network, fill, freeze times, warnings, masses. */
+/**
+ * Simulate a validated scenario: network, fill, freeze times, warnings, masses.
+ *
+ * A physics routine that meets numbers outside its domain (a RangeError: a section the
+ * frozen layer closes, a flow curve that overflows) ends the run as `simulation_failed`
+ * with its message, never as an exception: valid input must get an answer.
+ */
 export function runScenario(scenario: Scenario, options: RunScenarioOptions = {}): RunOutcome {
+  try {
+    return runValidated(scenario, options);
+  } catch (error) {
+    if (!(error instanceof RangeError)) throw error;
+    return {
+      ok: false,
+      code: "simulation_failed",
+      message: `The simulation cannot go on with these values: ${error.message}`,
+    };
+  }
+}
+
+function runValidated(scenario: Scenario, options: RunScenarioOptions): RunOutcome {
   const built = buildNetwork(scenario);
   if (!built.ok) return { ok: false, code: "invalid_scenario", issues: built.issues };
   const network = built.network;

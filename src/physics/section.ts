@@ -317,6 +317,50 @@ export function shrinkSection(s: Section, frozenThickness: number): Section {
 }
 
 /**
+ * The frozen-skin thickness (m) at which {@link shrinkSection} closes a section: the
+ * radius of its largest inscribed circle for round, rectangular and slit sections
+ * (half the smaller side), found by bisection on the inward offset for the others
+ * (a narrow parabolic or trapezoid channel closes across its width before its depth).
+ *
+ * @example
+ * ```ts
+ * closingThickness({ kind: "circle", radius: 0.003 }); // 0.003
+ * ```
+ */
+export function closingThickness(s: Section): number {
+  validateSection(s);
+  switch (s.kind) {
+    case "circle":
+      return s.radius;
+    case "rectangle":
+      return Math.min(s.width, s.height) / 2;
+    case "slit":
+      return s.gap / 2;
+    case "ellipse":
+      return s.minorAxis / 2;
+    default: {
+      const opens = (d: number) => {
+        try {
+          shrinkSection(s, d);
+          return true;
+        } catch {
+          return false;
+        }
+      };
+      let lo = 0;
+      let hi = Math.sqrt(sectionArea(s));
+      while (opens(hi)) hi *= 2;
+      for (let i = 0; i < 60; i++) {
+        const mid = 0.5 * (lo + hi);
+        if (opens(mid)) lo = mid;
+        else hi = mid;
+      }
+      return lo;
+    }
+  }
+}
+
+/**
  * The section a fraction t ∈ [0, 1] of the way from `a` to `b`, every dimension linear
  * in t (a linear taper). Both must be the same kind (TypeError otherwise).
  */

@@ -1,6 +1,7 @@
 import assert from "node:assert/strict";
 import { assertClose } from "../assert_close.ts";
 import {
+  closingThickness,
   hydraulicDiameter,
   interpolateSection,
   partingPlaneWidth,
@@ -212,4 +213,31 @@ Deno.test("invalid sections throw RangeError", () => {
   );
   assert.throws(() => sectionArea({ kind: "d_shape", radius: 1, flatOffset: 1 }), RangeError);
   assert.throws(() => sectionArea({ kind: "ellipse", majorAxis: 1, minorAxis: 2 }), RangeError);
+});
+
+Deno.test("closingThickness: the frozen skin that closes a section (inscribed circle)", () => {
+  // Elementary geometry: the largest circle inside a half disk of radius r has radius r/2;
+  // inside a rectangle, half its smaller side; inside a circle, the radius.
+  assertClose(closingThickness({ kind: "half_round", radius: 4e-3 }), 2e-3, {
+    rel: 1e-9,
+    what: "half-round",
+  });
+  assert.equal(closingThickness({ kind: "rectangle", width: 3e-3, height: 1e-3 }), 0.5e-3);
+  assert.equal(closingThickness({ kind: "circle", radius: 2e-3 }), 2e-3);
+  // Narrow and wide parabolic, and a trapezoid: just below the thickness the section stays
+  // open, just above it shrinkSection reports it closed.
+  for (
+    const s of [
+      { kind: "parabolic", width: 0.5e-3, depth: 0.5e-3 },
+      { kind: "parabolic", width: 8e-3, depth: 2e-3 },
+      { kind: "trapezoid", topWidth: 6e-3, bottomWidth: 1e-3, depth: 5e-3 },
+    ] as const
+  ) {
+    const d = closingThickness(s);
+    assert.ok(d > 0);
+    shrinkSection(s, d * (1 - 1e-6));
+    assert.throws(() => shrinkSection(s, d * (1 + 1e-6)), RangeError, s.kind);
+  }
+  // A narrow parabola closes across its width well before half its depth.
+  assert.ok(closingThickness({ kind: "parabolic", width: 0.5e-3, depth: 0.5e-3 }) < 0.25e-3);
 });
