@@ -102,7 +102,13 @@ export interface FillDiagnostics {
   worstMassResidualAt: string;
   /** |Σ filled volumes − injected volume| / injected volume at the end. */
   massBalanceError: number;
-  stoppedBecause: "all_full" | "short_shot" | "step_limit" | "solver_failure";
+  stoppedBecause:
+    | "all_full"
+    | "short_shot"
+    | "step_limit"
+    | "solver_failure"
+    | "cancelled"
+    | "deadline";
   message: string;
 }
 

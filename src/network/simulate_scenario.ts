@@ -40,7 +40,8 @@ export interface ScenarioRun {
 export type RunOutcome =
   | { ok: true; run: ScenarioRun }
   | { ok: false; code: "invalid_scenario"; issues: ScenarioIssue[] }
-  | { ok: false; code: "simulation_failed"; message: string };
+  | { ok: false; code: "simulation_failed"; message: string }
+  | { ok: false; code: "stopped"; reason: "cancelled" | "deadline"; message: string };
 
 /** Options of {@link runScenario}. */
 export interface RunScenarioOptions {
@@ -48,6 +49,10 @@ export interface RunScenarioOptions {
   onProgress?: (fraction: number) => void;
   /** Carry the fill's tangent along these directions (`fill_tangent.ts`). */
   tangent?: FillTangentRequest;
+  /** Once aborted, the fill stops after its current step and the outcome is `stopped`. */
+  signal?: AbortSignal;
+  /** Wall-clock instant (ms since the epoch) past which the fill stops (`stopped`, deadline). */
+  deadline?: number;
 }
 
 /** The library's material ids, as the scenario parser wants them. */
@@ -130,9 +135,15 @@ function runValidated(scenario: Scenario, options: RunScenarioOptions): RunOutco
     process,
     onProgress: options.onProgress,
     tangent: options.tangent,
+    signal: options.signal,
+    deadline: options.deadline,
   });
-  if (fill.diagnostics.stoppedBecause === "solver_failure") {
+  const stop = fill.diagnostics.stoppedBecause;
+  if (stop === "solver_failure") {
     return { ok: false, code: "simulation_failed", message: fill.diagnostics.message };
+  }
+  if (stop === "cancelled" || stop === "deadline") {
+    return { ok: false, code: "stopped", reason: stop, message: fill.diagnostics.message };
   }
   const thermal: ThermalData = {
     diffusivity: material.thermalDiffusivity,

@@ -1,0 +1,96 @@
+import type { FillContext } from "./context.ts";
+import { type FillState, isFull } from "./fill_state.ts";
+
+/** A branch of the instantaneous network: a full element, or one filling side of a partial one. */
+export interface Branch {
+  element: number;
+  /** 0: fed from the element's `from` node; 1: fed from its `to` node; -1: full, through-flow. */
+  side: -1 | 0 | 1;
+  /** Graph nodes: upstream node and downstream node (-1 = a flow front at 0 Pa). */
+  a: number;
+  b: number;
+}
+
+/** The network the melt sees at one instant. */
+export interface Assembly {
+  branches: Branch[];
+  /** graph node → index in the hydraulic problem (-1: not in it). */
+  local: Int32Array;
+  nodeCount: number;
+}
+
+/**
+ * The instantaneous network of a state: every full, open element joining two wet nodes and
+ * every filling side ending at its front; dead ends (free nodes joined by one branch: a full
+ * cavity's gate and what leads only to it) carry no flow and are pruned; what the inlet cannot
+ * reach (melt behind a frozen-shut element) is cut off from the pump and left out.
+ */
+export function assemble(ctx: FillContext, state: FillState): Assembly {
+  const { network, elements, nodeCount } = ctx;
+  const branches: Branch[] = [];
+  for (const e of elements) {
+    if (state.closed[e.index]) continue;
+    if (isFull(state, e.index)) {
+      if (e.kind === "cavity") continue;
+      if (!Number.isNaN(state.wetTime[e.from]) && !Number.isNaN(state.wetTime[e.to])) {
+        branches.push({ element: e.index, side: -1, a: e.from, b: e.to });
+      }
+      continue;
+    }
+    for (const side of [0, 1] as const) {
+      if (Number.isNaN(state.sideStart[2 * e.index + side])) continue;
+      branches.push({ element: e.index, side, a: side === 0 ? e.from : e.to, b: -1 });
+    }
+  }
+  const degree = new Int32Array(nodeCount);
+  for (const br of branches) {
+    degree[br.a]++;
+    if (br.b >= 0) degree[br.b]++;
+  }
+  const alive = branches.map(() => true);
+  let changed = true;
+  while (changed) {
+    changed = false;
+    branches.forEach((br, k) => {
+      if (!alive[k] || br.b < 0) return;
+      for (const n of [br.a, br.b]) {
+        if (n !== network.inlet && degree[n] === 1) {
+          alive[k] = false;
+          degree[br.a]--;
+          degree[br.b]--;
+          changed = true;
+          return;
+        }
+      }
+    });
+  }
+  const reached = new Uint8Array(nodeCount);
+  reached[network.inlet] = 1;
+  let grew = true;
+  while (grew) {
+    grew = false;
+    branches.forEach((br, k) => {
+      if (!alive[k] || br.b < 0 || reached[br.a] === reached[br.b]) return;
+      reached[br.a] = reached[br.b] = 1;
+      grew = true;
+    });
+  }
+  const kept = branches.filter((br, k) => alive[k] && reached[br.a] === 1);
+  const local = new Int32Array(nodeCount).fill(-1);
+  let count = 0;
+  local[network.inlet] = count++;
+  for (const br of kept) {
+    if (local[br.a] < 0) local[br.a] = count++;
+    if (br.b >= 0 && local[br.b] < 0) local[br.b] = count++;
+  }
+  return { branches: kept, local, nodeCount: count };
+}
+
+/** Whether two assemblies hold the same branches in the same order (a warm start fits both). */
+export function sameBranches(a: Assembly, b: Assembly): boolean {
+  if (a.branches.length !== b.branches.length) return false;
+  return a.branches.every((br, k) => {
+    const other = b.branches[k];
+    return br.element === other.element && br.side === other.side;
+  });
+}

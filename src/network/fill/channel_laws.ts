@@ -1,0 +1,126 @@
+import type { FlowCurve } from "../../materials/flow_curve.ts";
+import {
+  type ChannelFlow,
+  radialDiskFlow,
+  type Section,
+  shrinkSection,
+  taperedChannelFlow,
+  uniformChannelFlow,
+} from "../../physics/mod.ts";
+import { frozenLayerThickness } from "../../physics/thermal.ts";
+import { taperedFilledLength } from "../_fill_geometry.ts";
+import type { NetworkElement } from "../feed_network.ts";
+import type { Branch } from "./assemble.ts";
+import type { FillContext } from "./context.ts";
+import { filledVolume, type FillState } from "./fill_state.ts";
+
+/** Shortest resisting length of a partly filled element, as a fraction of its length. */
+const MIN_FILLED_FRACTION = 1e-4;
+/** A frozen layer this close to closing a section (fraction of the layer that closes its thinnest section) shuts it. */
+export const CLOSURE_FRACTION = 0.95;
+
+/**
+ * Frozen-layer thickness of element `e` at `t`, m: the no-flow conduction solution
+ * δ = 2·erf⁻¹(θ)·√(α·t_c) (physics.md §3) with t_c the shorter of the wall's mean contact time
+ * and half the melt's residence time in the element (a flowing channel's thermal boundary layer
+ * grows with residence time: Lévêque scaling), never thinner than it already was, and short of
+ * closing the section. 0 for heated elements and isothermal runs.
+ */
+export function frozenAt(
+  ctx: FillContext,
+  state: FillState,
+  e: NetworkElement,
+  t: number,
+  side: -1 | 0 | 1,
+): number {
+  const { process, melt } = ctx;
+  if (process.isothermal || e.heated) return 0;
+  const starts = [state.sideStart[2 * e.index], state.sideStart[2 * e.index + 1]].filter((s) =>
+    !Number.isNaN(s)
+  );
+  if (starts.length === 0) return 0;
+  const start = Math.min(...starts);
+  const contact = side === -1 ? t - (start + state.fullTime[e.index]) / 2 : (t - start) / 2;
+  const flow = state.lastFlow[e.index];
+  const residence = flow > 0 ? filledVolume(state, e.index) / flow : Infinity;
+  const tc = Math.max(0, Math.min(contact, residence / 2));
+  if (tc === 0) return 0;
+  const delta = frozenLayerThickness(tc, {
+    meltTemperature: state.temperature[e.index],
+    wallTemperature: process.moldTemperature,
+    noFlowTemperature: melt.noFlowTemperature,
+    diffusivity: melt.diffusivity,
+  });
+  return Math.max(
+    state.frozenHeld[e.index],
+    Math.min(delta, CLOSURE_FRACTION * ctx.closing[e.index]),
+  );
+}
+
+function curveFor(ctx: FillContext, state: FillState, e: NetworkElement): FlowCurve {
+  return ctx.process.isothermal
+    ? ctx.isothermalCurve
+    : ctx.melt.curveAt(state.temperature[e.index], Math.max(0, state.meanPressure[e.index]));
+}
+
+/**
+ * The flow law (flow → pressure drop, wall shear, dΔP/dQ) of one branch at `t`, with its filled
+ * volume from `volumes` (`fill` layout of {@link FillState}) and its open section shrunk by the
+ * frozen layer. `element` replaces the network's element (a tangent direction's rebuilt size).
+ */
+export function branchLaw(
+  ctx: FillContext,
+  state: FillState,
+  branch: Branch,
+  t: number,
+  volumes: Float64Array,
+  element?: NetworkElement,
+): (flow: number) => ChannelFlow {
+  const e = element ?? ctx.elements[branch.element];
+  const curve = curveFor(ctx, state, e);
+  const delta = frozenAt(ctx, state, e, t, branch.side);
+  const g = e.geometry;
+  const v = branch.side === -1
+    ? e.volume
+    : Math.min(Math.max(volumes[2 * e.index + branch.side], 0), e.volume);
+  const fraction = v / e.volume;
+  switch (g.type) {
+    case "uniform": {
+      const section = delta > 0 ? shrinkSection(g.section, delta) : g.section;
+      const length = Math.max(fraction, MIN_FILLED_FRACTION) * g.length;
+      return (flow) => uniformChannelFlow(flow, { section, length, curve });
+    }
+    case "tapered": {
+      const [entry, exit] = branch.side === 1 ? [g.exit, g.entry] : [g.entry, g.exit];
+      const filledLength = branch.side === -1
+        ? g.length
+        : Math.max(taperedFilledLength(entry, exit, g.length, v), MIN_FILLED_FRACTION * g.length);
+      const open = (s: Section) => (delta > 0 ? shrinkSection(s, delta) : s);
+      const shrunkEntry = open(entry);
+      const shrunkExit = open(exit);
+      return (flow) =>
+        taperedChannelFlow(flow, {
+          entry: shrunkEntry,
+          exit: shrunkExit,
+          length: g.length,
+          filledLength,
+          curve,
+        });
+    }
+    case "strip": {
+      // physics.md §4: the front advances along the flow length in a slit of the strip's width.
+      const section: Section = { kind: "slit", width: g.width, gap: g.gap - 2 * delta };
+      const length = Math.max(fraction, MIN_FILLED_FRACTION) * g.flowLength;
+      return (flow) => uniformChannelFlow(flow, { section, length, curve });
+    }
+    case "radial": {
+      const r0 = g.gateRadius;
+      const frontRadius = Math.max(
+        Math.sqrt(r0 * r0 + v / (Math.PI * g.gap)),
+        r0 + MIN_FILLED_FRACTION * (g.maxRadius - r0),
+      );
+      const gap = g.gap - 2 * delta;
+      return (flow) => radialDiskFlow(flow, { gap, gateRadius: r0, frontRadius, curve });
+    }
+  }
+}

@@ -1,0 +1,234 @@
+import type { Branch } from "./assemble.ts";
+import type { FillContext } from "./context.ts";
+import type { FillState } from "./fill_state.ts";
+import { type Solved, solveInstant, type SolveStats } from "./solve_instant.ts";
+
+/** Relative tolerance for landing a step on an element's or cavity's full volume. */
+export const EVENT_TOLERANCE = 1e-10;
+
+/** Where one step may go. */
+export interface EventStepOptions {
+  /** Proposed step length, s. */
+  h: number;
+  /** Whether switchover has been passed already (else a step ends on it). */
+  switchoverDone: boolean;
+  /** Largest change of any branch flow within a step, as a fraction of the injection rate. */
+  flowChangeTolerance: number;
+}
+
+/** What one step did. */
+export type EventStepOutcome =
+  | { kind: "failure"; failure: string }
+  | { kind: "no_open_branch" }
+  | {
+    kind: "step";
+    /** Length integrated, s (before the landing correction). */
+    length: number;
+    /** Time advanced, s: the length less the surplus volume over the injection rate. */
+    advanced: number;
+    /** The state solved at the end of the step, on the assembly it started from. */
+    end: Solved;
+    /** The step ends on switchover. */
+    onSwitchover: boolean;
+    /** The step was aimed at a predicted event from the start. */
+    aimedAtEvent: boolean;
+    /** Steps halved by the flow-change control. */
+    rejected: number;
+    /** Elements that became full, in the order found. */
+    newlyFull: number[];
+  };
+
+/**
+ * One accepted step of the fill from the solved state `s0`: Heun's method (explicit trapezoid)
+ * on the filled volumes of every filling branch, the length bounded by the earliest predicted
+ * event, by switchover, and by the change of the branch flows (halved while any changes by
+ * more than twice the tolerance). It lands exactly on the first branch to reach its capacity:
+ * a short step is extended by secant until the event is bracketed, then closed in with the
+ * Illinois variant of regula falsi on v_b(length) − capacity (Dowell & Jarratt (1971) BIT
+ * 11:168), switching to any branch that fills earlier inside the shorter step. The accepted
+ * volumes snap to capacity, and the event time moves so that Σ filled = Q·t exactly.
+ *
+ * Mutates `state.fill` and `state.time`; everything else is the caller's to update.
+ */
+export function eventStep(
+  ctx: FillContext,
+  state: FillState,
+  stats: SolveStats,
+  s0: Solved,
+  options: EventStepOptions,
+): EventStepOutcome {
+  const { elements, nominalFillTime, switchoverTime } = ctx;
+  const Q = ctx.injectionRate;
+  const fill = state.fill;
+  const t = state.time;
+  const { switchoverDone } = options;
+  const partial = s0.assembly.branches.map((br, k) => ({ br, k })).filter(({ br }) => br.side >= 0);
+  if (partial.length === 0) return { kind: "no_open_branch" };
+  const capacity = (br: Branch) => {
+    const e = elements[br.element];
+    return e.volume - fill[2 * e.index + (1 - br.side)] * (e.kind === "cavity" ? 0 : 1);
+  };
+
+  // Earliest predicted event (Euler estimate) bounds the step.
+  let target = -1;
+  let hEvent = Infinity;
+  for (const { br, k } of partial) {
+    const q = s0.flows[k];
+    if (q <= 0) continue;
+    const remaining = capacity(br) - fill[2 * br.element + br.side];
+    const tau = remaining / q;
+    if (tau < hEvent) {
+      hEvent = tau;
+      target = k;
+    }
+  }
+  let step = Math.min(options.h, hEvent, nominalFillTime / 40);
+  let onSwitchover = false;
+  if (!switchoverDone && t + step >= switchoverTime) {
+    step = switchoverTime - t;
+    onSwitchover = true;
+  }
+  const aimedAtEvent = !onSwitchover && step === hEvent;
+  let rejected = 0;
+
+  // One Heun step of length `length` from the current state.
+  const trial = (
+    length: number,
+  ): { next: Float64Array; s1: Solved; change: number } | { failure: string } => {
+    const predicted = fill.slice();
+    for (const { br, k } of partial) predicted[2 * br.element + br.side] += length * s0.flows[k];
+    const s1 = solveInstant(ctx, state, stats, {
+      t: t + length,
+      volumes: predicted,
+      assembly: s0.assembly,
+      warm: s0.flows,
+    });
+    if ("failure" in s1) return s1;
+    let change = 0;
+    const next = fill.slice();
+    for (const { br, k } of partial) {
+      change = Math.max(change, Math.abs(s1.flows[k] - s0.flows[k]) / Q);
+      next[2 * br.element + br.side] += (length * (s0.flows[k] + s1.flows[k])) / 2;
+    }
+    return { next, s1, change };
+  };
+  // Fraction of the step at which a branch would reach capacity (linear in the step), or Infinity.
+  const crossing = (next: Float64Array): { k: number; fraction: number } => {
+    let best = { k: -1, fraction: Infinity };
+    for (const { br, k } of partial) {
+      const index = 2 * br.element + br.side;
+      const cap = capacity(br);
+      if ((next[index] - cap) / cap <= EVENT_TOLERANCE) continue;
+      const fraction = (cap - fill[index]) / (next[index] - fill[index]);
+      if (fraction < best.fraction) best = { k, fraction };
+    }
+    return best;
+  };
+  const missOf = (next: Float64Array, k: number) => {
+    const br = s0.assembly.branches[k];
+    const cap = capacity(br);
+    return (next[2 * br.element + br.side] - cap) / cap;
+  };
+
+  let result = trial(step);
+  if ("failure" in result) return { kind: "failure", failure: result.failure };
+  // Flow-change control (not on a step aimed at an event: those are short by nature).
+  while (
+    result.change > 2 * options.flowChangeTolerance && !aimedAtEvent &&
+    step > nominalFillTime * 1e-9
+  ) {
+    step /= 2;
+    onSwitchover = false;
+    rejected++;
+    result = trial(step);
+    if ("failure" in result) return { kind: "failure", failure: result.failure };
+  }
+  let landing = crossing(result.next).k;
+  if (landing < 0 && aimedAtEvent && missOf(result.next, target) < -EVENT_TOLERANCE) {
+    // Fell short of the predicted event: extend by secant until it is bracketed.
+    for (let extend = 0; extend < 6 && landing < 0; extend++) {
+      const miss = missOf(result.next, target);
+      if (miss >= -EVENT_TOLERANCE) break;
+      const br = s0.assembly.branches[target];
+      const v0 = fill[2 * br.element + br.side];
+      const gained = result.next[2 * br.element + br.side] - v0;
+      const longer = step * Math.min(4, ((capacity(br) - v0) / Math.max(gained, 1e-300)) * 1.02);
+      if (!switchoverDone && t + longer >= switchoverTime) break;
+      const attempt = trial(longer);
+      if ("failure" in attempt) return { kind: "failure", failure: attempt.failure };
+      step = longer;
+      result = attempt;
+      landing = crossing(result.next).k;
+      if (landing < 0 && missOf(result.next, target) >= -EVENT_TOLERANCE) landing = target;
+    }
+  }
+  if (landing >= 0 && Math.abs(missOf(result.next, landing)) > EVENT_TOLERANCE) {
+    onSwitchover = false;
+    const gZero = () => {
+      const br = s0.assembly.branches[landing];
+      const cap = capacity(br);
+      return (fill[2 * br.element + br.side] - cap) / cap;
+    };
+    let lo = 0;
+    let gLo = gZero();
+    let hi = step;
+    let gHi = missOf(result.next, landing);
+    let side = 0;
+    for (let iteration = 0; iteration < 60; iteration++) {
+      const h1 = (lo * gHi - hi * gLo) / (gHi - gLo);
+      const attempt = trial(h1);
+      if ("failure" in attempt) return { kind: "failure", failure: attempt.failure };
+      const earlier = crossing(attempt.next);
+      if (earlier.k >= 0 && earlier.k !== landing) {
+        // Another branch fills first inside this shorter step: chase that one instead.
+        landing = earlier.k;
+        hi = h1;
+        gHi = missOf(attempt.next, landing);
+        lo = 0;
+        gLo = gZero();
+        side = 0;
+        continue;
+      }
+      const g = missOf(attempt.next, landing);
+      step = h1;
+      result = attempt;
+      if (Math.abs(g) <= EVENT_TOLERANCE) break;
+      if (g > 0) {
+        hi = h1;
+        gHi = g;
+        if (side === -1) gLo /= 2;
+        side = -1;
+      } else {
+        lo = h1;
+        gLo = g;
+        if (side === 1) gHi /= 2;
+        side = 1;
+      }
+    }
+  }
+  // Accept, snap the branches at capacity, keep Σ filled = Q·t by moving the event time.
+  fill.set(result.next);
+  let surplus = 0;
+  const newlyFull: number[] = [];
+  for (const { br } of partial) {
+    const index = 2 * br.element + br.side;
+    const cap = capacity(br);
+    if (fill[index] >= cap * (1 - 1e3 * EVENT_TOLERANCE)) {
+      surplus += fill[index] - cap;
+      fill[index] = cap;
+      if (!newlyFull.includes(br.element)) newlyFull.push(br.element);
+    }
+  }
+  const advanced = step - surplus / Q;
+  state.time = t + advanced;
+  return {
+    kind: "step",
+    length: step,
+    advanced,
+    end: result.s1,
+    onSwitchover,
+    aimedAtEvent,
+    rejected,
+    newlyFull,
+  };
+}

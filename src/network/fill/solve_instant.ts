@@ -1,0 +1,138 @@
+import type { ChannelFlow } from "../../physics/mod.ts";
+import { type HydraulicElement, solveHydraulics } from "../hydraulic_solve.ts";
+import type { Assembly } from "./assemble.ts";
+import { branchLaw } from "./channel_laws.ts";
+import type { FillContext } from "./context.ts";
+import { type FillState, isFull } from "./fill_state.ts";
+
+/** The network solved at one instant. */
+export interface Solved {
+  assembly: Assembly;
+  /** Flow through each branch, m³/s (assembly order). */
+  flows: Float64Array;
+  /** Pressure per graph node, Pa (NaN where dry). */
+  pressure: Float64Array;
+  /** Each branch's law at its flow. */
+  channel: ChannelFlow[];
+}
+
+/** How the hydraulic solves of one fill went, accumulated. */
+export interface SolveStats {
+  hydraulicSolves: number;
+  newtonIterationsMax: number;
+  worstMassResidual: number;
+  worstMassResidualAt: string;
+}
+
+/** Fresh counters. */
+export function solveStats(): SolveStats {
+  return {
+    hydraulicSolves: 0,
+    newtonIterationsMax: 0,
+    worstMassResidual: 0,
+    worstMassResidualAt: "",
+  };
+}
+
+/**
+ * Assemble the flow laws of `assembly` at `t` with filled volumes `volumes` and solve the
+ * nodal network (`solveHydraulics`: injection rate in at the inlet, 0 Pa at every front).
+ * `warm` (flows of the same assembly) starts Newton. Pruned and sealed nodes get their
+ * pressures by {@link fillDeadEnds}.
+ */
+export function solveInstant(
+  ctx: FillContext,
+  state: FillState,
+  stats: SolveStats,
+  at: { t: number; volumes: Float64Array; assembly: Assembly; warm?: Float64Array },
+): Solved | { failure: string } {
+  const { t, volumes, assembly, warm } = at;
+  const { network, nodeCount } = ctx;
+  if (assembly.branches.length === 0) {
+    // Frozen shut at the feed: nothing flows, every wet node keeps its last pressure.
+    const pressure = new Float64Array(nodeCount).fill(NaN);
+    fillDeadEnds(ctx, state, pressure);
+    return { assembly, flows: new Float64Array(0), pressure, channel: [] };
+  }
+  const laws = assembly.branches.map((br) => branchLaw(ctx, state, br, t, volumes));
+  const fixedPressure = new Map<number, number>();
+  let next = assembly.nodeCount;
+  const hydraulic: HydraulicElement[] = assembly.branches.map((br, k) => {
+    let to: number;
+    if (br.b < 0) {
+      to = next++;
+      fixedPressure.set(to, 0);
+    } else to = assembly.local[br.b];
+    const law = laws[k];
+    return {
+      from: assembly.local[br.a],
+      to,
+      law: (flow: number) => {
+        const c = law(flow);
+        return { pressureDrop: c.pressureDrop, dPressureDropDFlow: c.dPressureDropDFlow };
+      },
+    };
+  });
+  const solution = solveHydraulics(
+    {
+      nodeCount: next,
+      elements: hydraulic,
+      fixedPressure,
+      inflow: new Map([[assembly.local[network.inlet], ctx.injectionRate]]),
+    },
+    { initialFlows: warm },
+  );
+  stats.hydraulicSolves++;
+  if (!solution.ok) return { failure: `${solution.code}: ${solution.message}` };
+  const d = solution.diagnostics;
+  stats.newtonIterationsMax = Math.max(stats.newtonIterationsMax, d.iterations);
+  if (d.worstMassResidual > stats.worstMassResidual) {
+    stats.worstMassResidual = d.worstMassResidual;
+    stats.worstMassResidualAt = `t = ${t.toExponential(4)} s`;
+  }
+  const pressure = new Float64Array(nodeCount).fill(NaN);
+  for (let n = 0; n < nodeCount; n++) {
+    if (assembly.local[n] >= 0) pressure[n] = solution.pressures[assembly.local[n]];
+  }
+  fillDeadEnds(ctx, state, pressure);
+  const channel = laws.map((law, k) => law(solution.flows[k]));
+  return { assembly, flows: solution.flows, pressure, channel };
+}
+
+/**
+ * Pressures of the wet nodes the assembly pruned. A dead end (a full cavity and the full
+ * gates and runners that lead only to it) carries no flow, so every node of it sits at the
+ * pressure of the live node it hangs from: the full cavity holds its feed pressure over its
+ * whole area. A node sealed off by a frozen-shut element keeps the pressure it last had
+ * (an upper bound: the sealed melt's shrinkage lowers it, which a fill model does not see).
+ */
+export function fillDeadEnds(ctx: FillContext, state: FillState, pressure: Float64Array): void {
+  const { nodeCount, elements } = ctx;
+  const queue: number[] = [];
+  for (let n = 0; n < nodeCount; n++) if (!Number.isNaN(pressure[n])) queue.push(n);
+  while (queue.length > 0) {
+    const n = queue.pop()!;
+    for (const { element, side } of ctx.adjacency[n]) {
+      const e = elements[element];
+      if (e.kind === "cavity" || e.to < 0 || state.closed[element] || !isFull(state, element)) {
+        continue;
+      }
+      const other = side === 0 ? e.to : e.from;
+      if (!Number.isNaN(pressure[other])) continue;
+      pressure[other] = pressure[n];
+      queue.push(other);
+    }
+  }
+  for (let n = 0; n < nodeCount; n++) {
+    if (Number.isNaN(pressure[n]) && !Number.isNaN(state.wetTime[n])) {
+      pressure[n] = state.heldPressure[n];
+    }
+  }
+}
+
+/** Remember every node's pressure of a recorded instant (what a sealed node keeps). */
+export function holdPressures(state: FillState, s: Solved): void {
+  for (let n = 0; n < s.pressure.length; n++) {
+    if (!Number.isNaN(s.pressure[n])) state.heldPressure[n] = s.pressure[n];
+  }
+}

@@ -1,0 +1,127 @@
+import assert from "node:assert/strict";
+import { assertClose } from "../../assert_close.ts";
+import { assemble } from "../../../src/network/fill/assemble.ts";
+import { clampForce, meanPressureShare } from "../../../src/network/fill/fill_records.ts";
+import { updateMeltTemperature } from "../../../src/network/fill/melt_temperature.ts";
+import { solveInstant, solveStats } from "../../../src/network/fill/solve_instant.ts";
+import type { NetworkElement } from "../../../src/network/feed_network.ts";
+import { simulateFill } from "../../../src/network/simulate_fill.ts";
+import { unequalBranches } from "../_scenarios.ts";
+import { fixture, markFull } from "./_fixture.ts";
+
+Deno.test("clampForce: pressure × projected area, element by element, by hand", () => {
+  const f = fixture();
+  markFull(f, ["hot_drop", "R1", "R2", "G1", "G2", "C1"]);
+  const c2 = f.element("C2");
+  f.state.sideStart[2 * c2] = 0;
+  f.state.fill[2 * c2] = 0.25 * f.network.elements[c2].volume;
+  const s = solveInstant(f.ctx, f.state, solveStats(), {
+    t: 1,
+    volumes: f.state.fill,
+    assembly: assemble(f.ctx, f.state),
+  });
+  assert.ok(!("failure" in s));
+  const p = (id: string) => s.pressure[f.node(id)];
+  const pC2 = p("C2");
+  // Cavities 100 cm²; round runners Ø5 (40 and 120 mm) and pin gates Ø1.4 × 1 mm project d × L.
+  const expected = 0.01 * p("C1") + 0.01 * 0.25 * pC2 / 2 + 5e-3 * 0.04 * p("A") +
+    1.4e-3 * 1e-3 * p("A") + 5e-3 * 0.12 * (p("J") + p("B")) / 2 +
+    1.4e-3 * 1e-3 * (p("B") + pC2) / 2;
+  assertClose(clampForce(f.ctx, f.state, s), expected, { rel: 1e-12, what: "clamp force" });
+});
+
+Deno.test("meanPressureShare: ½ on a strip; on a radial disk the area mean of (R^m − r^m), by quadrature", () => {
+  const strip = { geometry: { type: "strip" } } as unknown as NetworkElement;
+  const flat = {
+    pressureDrop: 1,
+    dPressureDropDFlow: 1,
+    wallShearRate: 0,
+    apparentWallShearRate: 0,
+    wallShearStress: 0,
+  };
+  assert.equal(meanPressureShare(strip, 0.3, flat, 1), 0.5);
+  const rg = 1e-3;
+  const rMax = 40e-3;
+  const disk = {
+    geometry: { type: "radial", gateRadius: rg, maxRadius: rMax, gap: 2e-3 },
+  } as unknown as NetworkElement;
+  const n = 0.38;
+  // A channel law with dlnΔP/dlnQ = n at Q = 1.
+  const law = {
+    pressureDrop: 1,
+    dPressureDropDFlow: n,
+    wallShearRate: 0,
+    apparentWallShearRate: 0,
+    wallShearStress: 0,
+  };
+  const fraction = 0.5;
+  const R = Math.sqrt(rg * rg + fraction * (rMax * rMax - rg * rg));
+  const m = 1 - n;
+  // Midpoint rule for ∫ P(r)·2πr dr / (π(R² − rg²)), P(r)/P(rg) = (R^m − r^m)/(R^m − rg^m).
+  const N = 200000;
+  let sum = 0;
+  for (let i = 0; i < N; i++) {
+    const r = rg + ((i + 0.5) * (R - rg)) / N;
+    sum += ((R ** m - r ** m) / (R ** m - rg ** m)) * 2 * r * ((R - rg) / N);
+  }
+  assertClose(meanPressureShare(disk, fraction, law, 1), sum / (R * R - rg * rg), {
+    rel: 1e-6,
+    what: "radial share",
+  });
+});
+
+Deno.test("updateMeltTemperature: an element's melt is its inlet temperature plus half ΔP/(ρ·cp)", () => {
+  const f = fixture(unequalBranches("full"));
+  markFull(f, ["hot_drop", "R1", "R2"]);
+  for (const id of ["G1", "G2"]) f.state.sideStart[2 * f.element(id)] = 0;
+  const s = solveInstant(f.ctx, f.state, solveStats(), {
+    t: 0.01,
+    volumes: f.state.fill,
+    assembly: assemble(f.ctx, f.state),
+  });
+  assert.ok(!("failure" in s));
+  updateMeltTemperature(f.ctx, f.state, s);
+  const rho = f.ctx.melt.meltDensity;
+  const cp = f.ctx.melt.specificHeat;
+  const drop = (id: string) =>
+    s.channel[s.assembly.branches.findIndex((b) => b.element === f.element(id))]
+      .pressureDrop;
+  const feed = f.ctx.process.feedTemperature;
+  // The hot drop starts at the tip temperature; R1 starts at the hot drop's exit.
+  assertClose(
+    f.state.temperature[f.element("hot_drop")],
+    feed + drop("hot_drop") / (rho * cp) / 2,
+    {
+      rel: 1e-12,
+      what: "hot drop",
+    },
+  );
+  const atJ = feed + drop("hot_drop") / (rho * cp);
+  assertClose(f.state.temperature[f.element("R1")], atJ + drop("R1") / (rho * cp) / 2, {
+    rel: 1e-12,
+    what: "R1",
+  });
+});
+
+Deno.test("simulateFill: an aborted signal or a past deadline ends the run with its reason, not a throw", () => {
+  const f = fixture();
+  const controller = new AbortController();
+  controller.abort("user pressed cancel");
+  const options = { melt: f.ctx.melt, process: f.ctx.process };
+  const cancelled = simulateFill(f.network, { ...options, signal: controller.signal });
+  assert.equal(cancelled.diagnostics.stoppedBecause, "cancelled");
+  assert.match(cancelled.diagnostics.message, /user pressed cancel/);
+  const late = simulateFill(f.network, { ...options, deadline: Date.now() - 1 });
+  assert.equal(late.diagnostics.stoppedBecause, "deadline");
+  let calls = 0;
+  const partway = new AbortController();
+  const stopped = simulateFill(f.network, {
+    ...options,
+    signal: partway.signal,
+    onProgress: () => {
+      if (++calls === 5) partway.abort("enough");
+    },
+  });
+  assert.equal(stopped.diagnostics.stoppedBecause, "cancelled");
+  assert.equal(stopped.diagnostics.steps, 5);
+});

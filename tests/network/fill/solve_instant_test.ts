@@ -1,0 +1,69 @@
+import assert from "node:assert/strict";
+import { assertClose } from "../../assert_close.ts";
+import { assemble } from "../../../src/network/fill/assemble.ts";
+import {
+  fillDeadEnds,
+  holdPressures,
+  type Solved,
+  solveInstant,
+  solveStats,
+} from "../../../src/network/fill/solve_instant.ts";
+import { fixture, markFull } from "./_fixture.ts";
+
+// Power-law tube and slit, Bird, Armstrong & Hassager, Dynamics of Polymeric Liquids vol. 1
+// (1987), ch. 4.
+const K = 7500;
+const n = 0.38;
+const tube = (Q: number, R: number, L: number) =>
+  ((2 * K * L) / R) * Math.pow(((3 * n + 1) * Q) / (Math.PI * n * R ** 3), n);
+const slit = (Q: number, W: number, H: number, L: number) =>
+  ((2 * K * L) / H) * Math.pow((2 * (2 * n + 1) * Q) / (n * W * H * H), n);
+
+function solved(f: ReturnType<typeof fixture>): Solved {
+  const s = solveInstant(f.ctx, f.state, solveStats(), {
+    t: 1,
+    volumes: f.state.fill,
+    assembly: assemble(f.ctx, f.state),
+  });
+  assert.ok(!("failure" in s), "failure" in s ? s.failure : "");
+  return s;
+}
+
+Deno.test("solveInstant: one cavity full, the whole rate goes to the other and the pressures add up by hand", () => {
+  const f = fixture();
+  markFull(f, ["hot_drop", "R1", "R2", "G1", "G2", "C1"]);
+  const c2 = f.element("C2");
+  f.state.sideStart[2 * c2] = 0;
+  f.state.fill[2 * c2] = 0.4 * f.network.elements[c2].volume;
+  const s = solved(f);
+  const Q = 40e-6;
+  // C2 strip: 150 mm wide, 2 mm gap, 40 % of 100 mm filled; G2 Ø1.4 × 1; R2 Ø5 × 120 mm.
+  const pB = slit(Q, 0.15, 2e-3, 0.04) + tube(Q, 0.7e-3, 1e-3);
+  const pJ = pB + tube(Q, 2.5e-3, 0.12);
+  assertClose(s.pressure[f.node("B")], pB, { rel: 1e-6, what: "p_B" });
+  assertClose(s.pressure[f.node("J")], pJ, { rel: 1e-6, what: "p_J" });
+  // The dead end R1 → A → G1 → C1 sits at p_J: no flow, no drop.
+  assertClose(s.pressure[f.node("A")], pJ, { rel: 1e-12, what: "p_A (dead end)" });
+  assertClose(s.pressure[f.node("C1")], pJ, { rel: 1e-12, what: "C1 node (dead end)" });
+});
+
+Deno.test("fillDeadEnds: a node sealed by a frozen-shut element keeps its last pressure; dry nodes stay NaN", () => {
+  const f = fixture();
+  markFull(f, ["hot_drop", "R1", "R2", "G1", "G2", "C1"]);
+  const c2 = f.element("C2");
+  f.state.sideStart[2 * c2] = 0;
+  f.state.fill[2 * c2] = 0.4 * f.network.elements[c2].volume;
+  const before = solved(f);
+  holdPressures(f.state, before);
+  f.state.closed[f.element("G1")] = 1;
+  const pressure = new Float64Array(f.ctx.nodeCount).fill(NaN);
+  pressure[f.node("J")] = 1e7;
+  fillDeadEnds(f.ctx, f.state, pressure);
+  assert.equal(pressure[f.node("A")], 1e7, "A still hangs from J through the full, open R1");
+  assert.equal(pressure[f.node("C1")], before.pressure[f.node("C1")], "C1 behind the shut G1");
+  const dry = fixture();
+  markFull(dry, []);
+  const p = new Float64Array(dry.ctx.nodeCount).fill(NaN);
+  fillDeadEnds(dry.ctx, dry.state, p);
+  assert.ok(Number.isNaN(p[dry.node("A")]));
+});
