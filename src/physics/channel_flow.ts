@@ -65,14 +65,28 @@ export function uniformChannelFlow(
   flowRate: number,
   options: UniformChannelFlowOptions,
 ): ChannelFlow {
+  return uniformChannelLaw(options)(flowRate);
+}
+
+/**
+ * {@link uniformChannelFlow} as a law of the flow rate alone, the section's data (area,
+ * hydraulic diameter, Kozicki constants) prepared once. Same numbers.
+ */
+export function uniformChannelLaw(
+  options: UniformChannelFlowOptions,
+): (flowRate: number) => ChannelFlow {
   const { section, length, curve } = options;
-  checkFlowArgs("uniform channel flow", flowRate, length);
-  const local = localGradient(Math.abs(flowRate), sectionFlowData(section), curve);
-  return {
-    pressureDrop: Math.sign(flowRate) * local.gradient * length,
-    wallShearRate: local.shearRate,
-    apparentWallShearRate: local.apparent,
-    wallShearStress: local.stress,
-    dPressureDropDFlow: local.dGradientDFlow * length,
+  checkFlowArgs("uniform channel flow", 0, length);
+  const data = sectionFlowData(section);
+  return (flowRate) => {
+    checkFlowArgs("uniform channel flow", flowRate, length);
+    const local = localGradient(Math.abs(flowRate), data, curve);
+    return {
+      pressureDrop: Math.sign(flowRate) * local.gradient * length,
+      wallShearRate: local.shearRate,
+      apparentWallShearRate: local.apparent,
+      wallShearStress: local.stress,
+      dPressureDropDFlow: local.dGradientDFlow * length,
+    };
   };
 }

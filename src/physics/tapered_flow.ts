@@ -49,29 +49,39 @@ export function taperedChannelFlow(
   flowRate: number,
   options: TaperedChannelFlowOptions,
 ): ChannelFlow {
+  return taperedChannelLaw(options)(flowRate);
+}
+
+/**
+ * {@link taperedChannelFlow} as a law of the flow rate alone: the geometry (quadrature
+ * nodes and each node's section data) is prepared once, so a solver that calls the law
+ * many times at one geometry pays for it once. Same numbers as {@link taperedChannelFlow}.
+ */
+export function taperedChannelLaw(
+  options: TaperedChannelFlowOptions,
+): (flowRate: number) => ChannelFlow {
   const { entry, exit, length, curve } = options;
-  checkFlowArgs("tapered channel flow", flowRate, length);
+  checkFlowArgs("tapered channel flow", 0, length);
   const filled = options.filledLength ?? length;
   if (!(filled >= 0 && filled <= length)) {
     throw new RangeError(
       `Cannot compute tapered channel flow: filledLength must be in [0, ${length}], got ${filled}`,
     );
   }
-  const q = Math.abs(flowRate);
-  const cursor = newCursor();
-  const at = (x: number) =>
-    localGradient(q, sectionFlowData(interpolateSection(entry, exit, x / length)), curve, cursor);
-
-  const first = at(0);
-  const last = filled > 0 ? at(filled) : first;
-  let best = first.shearRate >= last.shearRate ? first : last;
+  const dataAt = (x: number) => sectionFlowData(interpolateSection(entry, exit, x / length));
+  const firstData = dataAt(0);
+  const lastData = filled > 0 ? dataAt(filled) : firstData;
   if (filled === 0) {
-    return {
-      pressureDrop: 0,
-      wallShearRate: first.shearRate,
-      apparentWallShearRate: first.apparent,
-      wallShearStress: first.stress,
-      dPressureDropDFlow: 0,
+    return (flowRate) => {
+      checkFlowArgs("tapered channel flow", flowRate, length);
+      const first = localGradient(Math.abs(flowRate), firstData, curve, newCursor());
+      return {
+        pressureDrop: 0,
+        wallShearRate: first.shearRate,
+        apparentWallShearRate: first.apparent,
+        wallShearStress: first.stress,
+        dPressureDropDFlow: 0,
+      };
     };
   }
 
@@ -103,19 +113,28 @@ export function taperedChannelFlow(
   // Walk toward the narrow end so the shared quadrature cursor only moves up in shear.
   const order = xs.map((_, i) => i);
   if (d1 > d0) order.reverse();
-  let pressure = 0;
-  let slope = 0;
-  for (const i of order) {
-    const local = at(xs[i]);
-    pressure += ws[i] * local.gradient;
-    slope += ws[i] * local.dGradientDFlow;
-    if (local.shearRate > best.shearRate) best = local;
-  }
-  return {
-    pressureDrop: Math.sign(flowRate) * pressure,
-    wallShearRate: best.shearRate,
-    apparentWallShearRate: best.apparent,
-    wallShearStress: best.stress,
-    dPressureDropDFlow: slope,
+  const nodes = order.map((i) => ({ weight: ws[i], data: dataAt(xs[i]) }));
+  return (flowRate) => {
+    checkFlowArgs("tapered channel flow", flowRate, length);
+    const q = Math.abs(flowRate);
+    const cursor = newCursor();
+    const first = localGradient(q, firstData, curve, cursor);
+    const last = localGradient(q, lastData, curve, cursor);
+    let best = first.shearRate >= last.shearRate ? first : last;
+    let pressure = 0;
+    let slope = 0;
+    for (const { weight, data } of nodes) {
+      const local = localGradient(q, data, curve, cursor);
+      pressure += weight * local.gradient;
+      slope += weight * local.dGradientDFlow;
+      if (local.shearRate > best.shearRate) best = local;
+    }
+    return {
+      pressureDrop: Math.sign(flowRate) * pressure,
+      wallShearRate: best.shearRate,
+      apparentWallShearRate: best.apparent,
+      wallShearStress: best.stress,
+      dPressureDropDFlow: slope,
+    };
   };
 }

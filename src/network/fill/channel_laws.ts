@@ -4,8 +4,8 @@ import {
   radialDiskFlow,
   type Section,
   shrinkSection,
-  taperedChannelFlow,
-  uniformChannelFlow,
+  taperedChannelLaw,
+  uniformChannelLaw,
 } from "../../physics/mod.ts";
 import { frozenLayerThickness } from "../../physics/thermal.ts";
 import { taperedFilledLength } from "../_fill_geometry.ts";
@@ -88,7 +88,7 @@ export function branchLaw(
     case "uniform": {
       const section = delta > 0 ? shrinkSection(g.section, delta) : g.section;
       const length = Math.max(fraction, MIN_FILLED_FRACTION) * g.length;
-      return (flow) => uniformChannelFlow(flow, { section, length, curve });
+      return uniformChannelLaw({ section, length, curve });
     }
     case "tapered": {
       const [entry, exit] = branch.side === 1 ? [g.exit, g.entry] : [g.entry, g.exit];
@@ -98,20 +98,19 @@ export function branchLaw(
       const open = (s: Section) => (delta > 0 ? shrinkSection(s, delta) : s);
       const shrunkEntry = open(entry);
       const shrunkExit = open(exit);
-      return (flow) =>
-        taperedChannelFlow(flow, {
-          entry: shrunkEntry,
-          exit: shrunkExit,
-          length: g.length,
-          filledLength,
-          curve,
-        });
+      return taperedChannelLaw({
+        entry: shrunkEntry,
+        exit: shrunkExit,
+        length: g.length,
+        filledLength,
+        curve,
+      });
     }
     case "strip": {
       // physics.md §4: the front advances along the flow length in a slit of the strip's width.
       const section: Section = { kind: "slit", width: g.width, gap: g.gap - 2 * delta };
       const length = Math.max(fraction, MIN_FILLED_FRACTION) * g.flowLength;
-      return (flow) => uniformChannelFlow(flow, { section, length, curve });
+      return uniformChannelLaw({ section, length, curve });
     }
     case "radial": {
       const r0 = g.gateRadius;
