@@ -108,13 +108,19 @@ export function textReport(run: ScenarioRun, options: TextReportOptions = {}): s
     );
   }
   lines.push("");
-  lines.push("Pressure along each flow path at switchover");
+  lines.push("Pressure drop along each flow path at switchover (feed → front; a full cavity holds");
+  lines.push("what is left of the feed pressure at its gate)");
   for (const p of fill.paths) {
     const total = p.pressureDrops.reduce((a, b) => a + b, 0);
     const parts = p.elements.map((id, k) => `${id} ${fmt(paToMpa(p.pressureDrops[k]), 1)}`).join(
       " → ",
     );
-    lines.push(`  ${p.cavity}: ${parts}  = ${pressure(total)}`);
+    const cavity = fill.cavities.find((c) => c.id === p.cavity);
+    const full = cavity !== undefined && cavity.fillTime <= fill.switchoverTime;
+    const end = full
+      ? `  = ${pressure(total)}; full, holding ${pressure(cavity.inletPressureAtSwitchover)}`
+      : `  = ${pressure(total)} to the front`;
+    lines.push(`  ${p.cavity}: ${parts}${end}`);
   }
   lines.push("");
   lines.push(
