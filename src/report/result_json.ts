@@ -105,16 +105,29 @@ export function resultJson(run: ScenarioRun, options: { history?: boolean } = {}
       thermal: run.process.isothermal ? "isothermal" : "full",
       viscous_heating: run.process.isothermal
         ? "off"
-        : "adiabatic upper bound ΔT = ΔP/(ρ·cp), lagged one step",
+        : "adiabatic upper bound ΔT = ΔP/(ρ·cp), lagged one step, iterated to agree with the flows at each event",
       frozen_layer: run.process.isothermal
         ? "off"
-        : "no-flow conduction solution at min(mean contact time, half residence time)",
+        : "no-flow conduction solution at min(mean contact time, half residence time), never thinner than it was (no re-melting)",
+      clamp_force:
+        "pressure over every projected area; a full cavity holds its feed node's pressure, one sealed by a frozen gate the pressure it had then",
       fill_time_basis:
         "cavity fill times at the set injection rate continued past switchover; peaks are taken up to switchover",
       gate_shear_basis:
         "peak true wall shear while the gate runs full (its cavity filling), up to switchover; the front's transit through the land is left out",
     },
-    diagnostics: fill.diagnostics,
+    diagnostics: {
+      steps: fill.diagnostics.steps,
+      rejected_steps: fill.diagnostics.rejectedSteps,
+      events: fill.diagnostics.events,
+      network_solves: fill.diagnostics.hydraulicSolves,
+      newton_iterations_max: fill.diagnostics.newtonIterationsMax,
+      worst_mass_residual: fill.diagnostics.worstMassResidual,
+      worst_mass_residual_at: fill.diagnostics.worstMassResidualAt,
+      mass_balance_error: fill.diagnostics.massBalanceError,
+      stopped_because: fill.diagnostics.stoppedBecause,
+      message: fill.diagnostics.message,
+    },
     ...(options.history
       ? {
         history: fill.history.map((h) => ({
