@@ -134,4 +134,6 @@ export interface FillResult {
   diagnostics: FillDiagnostics;
   /** First-order changes along the requested directions (`SimulateFillOptions.tangent`). */
   tangent?: FillTangent;
+  /** Each cavity's fill at the requested injected volumes (`SimulateFillOptions.sampleVolumes`), in volume order. */
+  samples?: { injectedVolume: number; cavityFill: number[] }[];
 }

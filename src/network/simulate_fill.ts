@@ -6,7 +6,7 @@ import { CLOSURE_FRACTION, frozenAt } from "./fill/channel_laws.ts";
 import { type FillContext, fillContext, type FillProcess, type MeltModel } from "./fill/context.ts";
 import { cavityFigures, elementFigures, flowPaths } from "./fill/fill_figures.ts";
 import { FillRecorder } from "./fill/fill_records.ts";
-import { emptyFillState, type FillState, isFull, wetNode } from "./fill/fill_state.ts";
+import { cavityFill, emptyFillState, type FillState, isFull, wetNode } from "./fill/fill_state.ts";
 import { eventStep } from "./fill/event_step.ts";
 import { updateMeltTemperature } from "./fill/melt_temperature.ts";
 import { type Solved, solveInstant, type SolveStats, solveStats } from "./fill/solve_instant.ts";
@@ -30,6 +30,11 @@ export interface SimulateFillOptions {
   signal?: AbortSignal;
   /** Wall-clock instant (ms since the epoch, as `Date.now()`) after which the run ends with `stoppedBecause: "deadline"`. */
   deadline?: number;
+  /**
+   * Injected volumes (m³) at which to sample every cavity's fill exactly (a step lands on each,
+   * like on switchover): the short shots a shop weighs. The result then has `samples`.
+   */
+  sampleVolumes?: readonly number[];
 }
 
 /** Most heating–flow passes at an event, and the feed-pressure change (relative) that ends them. */
@@ -72,6 +77,7 @@ export function simulateFill(network: FeedNetwork, options: SimulateFillOptions)
 
 interface LoopEnd {
   switchover: Solved;
+  samples: { time: number; cavityFill: number[] }[];
   frozenAtSwitchover: Float64Array | undefined;
   steps: number;
   rejected: number;
@@ -113,6 +119,11 @@ function fillLoop(
   let switchoverDone = ctx.switchoverTime <= 0;
   let atSwitchover: Solved | undefined;
   let frozenAtSwitchover: Float64Array | undefined;
+  const sampleTimes = [...(options.sampleVolumes ?? [])]
+    .map((v) => v / ctx.injectionRate)
+    .filter((time) => time > 0)
+    .sort((a, b) => a - b);
+  const samples: { time: number; cavityFill: number[] }[] = [];
 
   while (state.cavityFullTime.some((x) => Number.isNaN(x))) {
     if (steps >= maxSteps) {
@@ -131,11 +142,9 @@ function fillLoop(
       break;
     }
     const s0 = current;
-    const step = eventStep(ctx, state, stats, s0, {
-      h,
-      switchoverDone,
-      flowChangeTolerance: tolerance,
-    });
+    const nextSample = sampleTimes.length > 0 ? sampleTimes[0] : Infinity;
+    const landAt = Math.min(switchoverDone ? Infinity : ctx.switchoverTime, nextSample);
+    const step = eventStep(ctx, state, stats, s0, { h, landAt, flowChangeTolerance: tolerance });
     if (step.kind === "failure") return step;
     if (step.kind === "no_open_branch") {
       stoppedBecause = "short_shot";
@@ -147,7 +156,12 @@ function fillLoop(
     const t = state.time;
     const { newlyFull } = step;
     tangent.advance(s0, step.advanced);
-    if (step.onSwitchover) {
+    const onSwitchover = step.onLanding && !switchoverDone && landAt === ctx.switchoverTime;
+    if (step.onLanding && landAt === nextSample) {
+      sampleTimes.shift();
+      samples.push({ time: t, cavityFill: cavityFill(ctx, state) });
+    }
+    if (onSwitchover) {
       // End of the velocity phase: the flows just before any element filling now closes.
       const end = solveInstant(ctx, state, stats, {
         t,
@@ -179,7 +193,7 @@ function fillLoop(
       }
     }
     closeFrozen(ctx, state, t);
-    if (step.onSwitchover) frozenAtSwitchover = state.frozenHeld.slice();
+    if (onSwitchover) frozenAtSwitchover = state.frozenHeld.slice();
     if (state.cavityFullTime.every((x) => !Number.isNaN(x))) {
       if (!atSwitchover) {
         const end = solveInstant(ctx, state, stats, {
@@ -229,15 +243,18 @@ function fillLoop(
       updateMeltTemperature(ctx, state, current);
       if (Math.abs(current.pressure[network.inlet] - before) <= THERMAL_TOLERANCE * before) break;
     }
-    if (newlyFull.length > 0 || !step.onSwitchover) observe(current);
+    if (newlyFull.length > 0 || !onSwitchover) observe(current);
     if (lastTangentStep) tangent.stop();
     options.onProgress?.(Math.min(1, (ctx.injectionRate * t) / ctx.shotVolume));
     if (newlyFull.length > 0) h = Math.max(h, nominalFillTime / 2000);
     h = step.aimedAtEvent ? h : Math.min(step.length * 1.5, nominalFillTime / 40);
   }
+  // Samples past the end of the fill see every cavity as it ended.
+  for (const time of sampleTimes) samples.push({ time, cavityFill: cavityFill(ctx, state) });
   return {
     switchover: atSwitchover ?? current,
     frozenAtSwitchover,
+    samples,
     steps,
     rejected,
     events,
@@ -303,6 +320,12 @@ function fillResult(
     cavities,
     paths: flowPaths(ctx.network, elements),
     tangent: tangent.result(),
+    samples: run.samples.length > 0
+      ? run.samples.map((sample) => ({
+        injectedVolume: ctx.injectionRate * sample.time,
+        cavityFill: sample.cavityFill,
+      }))
+      : undefined,
     diagnostics: {
       steps: run.steps,
       rejectedSteps: run.rejected,

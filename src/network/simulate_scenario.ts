@@ -53,6 +53,8 @@ export interface RunScenarioOptions {
   signal?: AbortSignal;
   /** Wall-clock instant (ms since the epoch) past which the fill stops (`stopped`, deadline). */
   deadline?: number;
+  /** Sample every cavity's fill exactly at these injected volumes, m³ (`FillResult.samples`). */
+  sampleVolumes?: readonly number[];
 }
 
 /** The library's material ids, as the scenario parser wants them. */
@@ -137,6 +139,7 @@ function runValidated(scenario: Scenario, options: RunScenarioOptions): RunOutco
     tangent: options.tangent,
     signal: options.signal,
     deadline: options.deadline,
+    sampleVolumes: options.sampleVolumes,
   });
   const stop = fill.diagnostics.stoppedBecause;
   if (stop === "solver_failure") {

@@ -10,8 +10,8 @@ export const EVENT_TOLERANCE = 1e-10;
 export interface EventStepOptions {
   /** Proposed step length, s. */
   h: number;
-  /** Whether switchover has been passed already (else a step ends on it). */
-  switchoverDone: boolean;
+  /** An instant the step must not pass (switchover, a requested sample), s; Infinity for none. */
+  landAt: number;
   /** Largest change of any branch flow within a step, as a fraction of the injection rate. */
   flowChangeTolerance: number;
 }
@@ -28,8 +28,8 @@ export type EventStepOutcome =
     advanced: number;
     /** The state solved at the end of the step, on the assembly it started from. */
     end: Solved;
-    /** The step ends on switchover. */
-    onSwitchover: boolean;
+    /** The step ends on `landAt`. */
+    onLanding: boolean;
     /** The step was aimed at a predicted event from the start. */
     aimedAtEvent: boolean;
     /** Steps halved by the flow-change control. */
@@ -57,11 +57,11 @@ export function eventStep(
   s0: Solved,
   options: EventStepOptions,
 ): EventStepOutcome {
-  const { elements, nominalFillTime, switchoverTime } = ctx;
+  const { elements, nominalFillTime } = ctx;
   const Q = ctx.injectionRate;
   const fill = state.fill;
   const t = state.time;
-  const { switchoverDone } = options;
+  const { landAt } = options;
   const partial = s0.assembly.branches.map((br, k) => ({ br, k })).filter(({ br }) => br.side >= 0);
   if (partial.length === 0) return { kind: "no_open_branch" };
   const capacity = (br: Branch) => {
@@ -83,12 +83,12 @@ export function eventStep(
     }
   }
   let step = Math.min(options.h, hEvent, nominalFillTime / 40);
-  let onSwitchover = false;
-  if (!switchoverDone && t + step >= switchoverTime) {
-    step = switchoverTime - t;
-    onSwitchover = true;
+  let onLanding = false;
+  if (t + step >= landAt) {
+    step = landAt - t;
+    onLanding = true;
   }
-  const aimedAtEvent = !onSwitchover && step === hEvent;
+  const aimedAtEvent = !onLanding && step === hEvent;
   let rejected = 0;
 
   // One Heun step of length `length` from the current state.
@@ -138,7 +138,7 @@ export function eventStep(
     step > nominalFillTime * 1e-9
   ) {
     step /= 2;
-    onSwitchover = false;
+    onLanding = false;
     rejected++;
     result = trial(step);
     if ("failure" in result) return { kind: "failure", failure: result.failure };
@@ -153,7 +153,7 @@ export function eventStep(
       const v0 = fill[2 * br.element + br.side];
       const gained = result.next[2 * br.element + br.side] - v0;
       const longer = step * Math.min(4, ((capacity(br) - v0) / Math.max(gained, 1e-300)) * 1.02);
-      if (!switchoverDone && t + longer >= switchoverTime) break;
+      if (t + longer >= landAt) break;
       const attempt = trial(longer);
       if ("failure" in attempt) return { kind: "failure", failure: attempt.failure };
       step = longer;
@@ -163,7 +163,7 @@ export function eventStep(
     }
   }
   if (landing >= 0 && Math.abs(missOf(result.next, landing)) > EVENT_TOLERANCE) {
-    onSwitchover = false;
+    onLanding = false;
     const gZero = () => {
       const br = s0.assembly.branches[landing];
       const cap = capacity(br);
@@ -226,7 +226,7 @@ export function eventStep(
     length: step,
     advanced,
     end: result.s1,
-    onSwitchover,
+    onLanding,
     aimedAtEvent,
     rejected,
     newlyFull,

@@ -17,7 +17,7 @@ Deno.test("eventStep: a step aimed at the feed's capacity lands on it exactly, a
   assert.ok(!("failure" in s0));
   const out = eventStep(f.ctx, f.state, stats, s0, {
     h: 1,
-    switchoverDone: false,
+    landAt: f.ctx.switchoverTime,
     flowChangeTolerance: 0.02,
   });
   assert.equal(out.kind, "step");
@@ -45,12 +45,12 @@ Deno.test("eventStep: a step that would cross switchover ends on it", () => {
   f.state.time = f.ctx.switchoverTime - 1e-4;
   const out = eventStep(f.ctx, f.state, stats, s0, {
     h: 1,
-    switchoverDone: false,
+    landAt: f.ctx.switchoverTime,
     flowChangeTolerance: 0.5,
   });
   assert.equal(out.kind, "step");
   if (out.kind !== "step") return;
-  assert.ok(out.onSwitchover);
+  assert.ok(out.onLanding);
   assertClose(f.state.time, f.ctx.switchoverTime, { rel: 1e-12, what: "switchover" });
   // Σ filled grows by Q·Δt (Heun conserves the injected volume exactly).
   let filled = 0;
@@ -70,7 +70,7 @@ Deno.test("eventStep: no filling branch left is reported, not stepped", () => {
   });
   assert.ok(!("failure" in s0));
   assert.equal(
-    eventStep(f.ctx, f.state, stats, s0, { h: 1, switchoverDone: true, flowChangeTolerance: 0.02 })
+    eventStep(f.ctx, f.state, stats, s0, { h: 1, landAt: Infinity, flowChangeTolerance: 0.02 })
       .kind,
     "no_open_branch",
   );

@@ -6,7 +6,7 @@ import { updateMeltTemperature } from "../../../src/network/fill/melt_temperatur
 import { solveInstant, solveStats } from "../../../src/network/fill/solve_instant.ts";
 import type { NetworkElement } from "../../../src/network/feed_network.ts";
 import { simulateFill } from "../../../src/network/simulate_fill.ts";
-import { unequalBranches } from "../_scenarios.ts";
+import { singleLine, unequalBranches } from "../_scenarios.ts";
 import { fixture, markFull } from "./_fixture.ts";
 
 Deno.test("clampForce: pressure × projected area, element by element, by hand", () => {
@@ -124,4 +124,22 @@ Deno.test("simulateFill: an aborted signal or a past deadline ends the run with 
   });
   assert.equal(stopped.diagnostics.stoppedBecause, "cancelled");
   assert.equal(stopped.diagnostics.steps, 5);
+});
+
+Deno.test("sampleVolumes: a step lands on each requested injected volume; one cavity's fill there is (V − feed system)/V_cavity", () => {
+  const wire = singleLine({ feed: "hot_drop", gate: "pin", cavity: "strip" });
+  const f = fixture(wire);
+  const feed = f.network.feedSystemVolume;
+  const cavity = f.network.cavities[0].volume;
+  const volumes = [feed + 0.3 * cavity, feed + 0.75 * cavity, feed + 2 * cavity];
+  const r = simulateFill(f.network, {
+    melt: f.ctx.melt,
+    process: f.ctx.process,
+    sampleVolumes: volumes,
+  });
+  assert.equal(r.samples?.length, 3);
+  // Mass balance of an incompressible melt (by hand): all that is not in the feed system is in C1.
+  assertClose(r.samples![0].cavityFill[0], 0.3, { rel: 1e-9, what: "30 %" });
+  assertClose(r.samples![1].cavityFill[0], 0.75, { rel: 1e-9, what: "75 %" });
+  assert.equal(r.samples![2].cavityFill[0], 1, "past the end: full");
 });
