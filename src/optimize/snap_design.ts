@@ -56,7 +56,9 @@ function gateCandidates(size: number, step: number, inch: boolean): Cutter[] {
   const hi = Math.ceil(k - 1e-9);
   const label = (v: number) =>
     inch ? `${(v / M_PER_INCH).toFixed(3)} in` : `${mToMm(v).toFixed(2)} mm`;
-  return [...new Set([lo, hi])].map((i) => ({ size: i * step, label: label(i * step) }));
+  // One step beyond the upper neighbour too: a slightly larger gate is the usual repair of a
+  // gate whose shear the rounding of the others pushed just over the limit.
+  return [...new Set([lo, hi, hi + 1])].map((i) => ({ size: i * step, label: label(i * step) }));
 }
 
 /** Options of {@link snapDesign}. */
@@ -136,8 +138,27 @@ export function snapDesign(
     const outcome = evaluateDesign(space, design(p));
     return outcome.ok ? outcome.evaluation : undefined;
   };
+  // Plain rounding (every size, gates too, to its nearest permitted cutter; steel-safe lists
+  // hold only sizes at or above today's) is always a candidate: a shop would try it first,
+  // and the repair flips below start from whichever start is better on the true model.
+  const nearestPick = candidates.map((list, j) => {
+    let best = 0;
+    for (let k = 1; k < list.length; k++) {
+      if (Math.abs(list[k].size - continuous.x[j]) < Math.abs(list[best].size - continuous.x[j])) {
+        best = k;
+      }
+    }
+    return best;
+  });
   let best = evaluate(pick);
   let bestPick = [...pick];
+  if (nearestPick.some((k, j) => k !== pick[j])) {
+    const rounded = evaluate(nearestPick);
+    if (rounded && (!best || options.merit(rounded) < options.merit(best))) {
+      best = rounded;
+      bestPick = [...nearestPick];
+    }
+  }
   if (!best) {
     return {
       evaluation: continuous,
@@ -175,6 +196,24 @@ export function snapDesign(
       }
     }
     if (!improved) break;
+  }
+  // Targeted repair: a gate over the shear limit opens by one step (its candidates hold one
+  // beyond the upper neighbour), confirmed on the true model, while that lowers the merit.
+  for (let repair = 0; repair < space.variables.length && !best.feasible; repair++) {
+    const over = best.violations.filter((x) => x.code === "gate_shear").map((x) => x.element);
+    const p = [...bestPick];
+    let moved = false;
+    space.variables.forEach((v, j) => {
+      if (v.kind === "gate" && over.includes(v.element) && p[j] + 1 < candidates[j].length) {
+        p[j]++;
+        moved = true;
+      }
+    });
+    if (!moved) break;
+    const trial = evaluate(p);
+    if (!trial || !(options.merit(trial) < options.merit(best) - 1e-9)) break;
+    best = trial;
+    bestPick = p;
   }
   const choices = space.variables.map((v, j) => ({
     element: v.element,
