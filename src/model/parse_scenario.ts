@@ -24,6 +24,9 @@ export interface ParseScenarioOptions {
   materialIds: ReadonlySet<string>;
 }
 
+/** Ids the network gives the feed element and the injection point; no user id may take them. */
+export const RESERVED_IDS: ReadonlySet<string> = new Set(["inlet", "sprue", "hot_drop"]);
+
 /** Render a JSON path as `a[0].b`. */
 export function pathText(path: readonly (string | number | symbol)[]): string {
   if (path.length === 0) return "$";
@@ -107,11 +110,19 @@ function crossCheck(s: Scenario, options: ParseScenarioOptions): ScenarioIssue[]
     );
   }
 
-  // One namespace for every id: results name elements by id alone.
+  // One namespace for every id: results name elements by id alone (the feed's own ids too).
   const seen = new Map<string, string>();
   const claim = (value: string, path: (string | number)[]) => {
     const first = seen.get(value);
-    if (first !== undefined) {
+    if (RESERVED_IDS.has(value)) {
+      issues.push(
+        issue(
+          path,
+          "reserved_id",
+          `Id "${value}" is reserved: the results name the feed "sprue" or "hot_drop" and the injection point "inlet"; choose another id`,
+        ),
+      );
+    } else if (first !== undefined) {
       issues.push(issue(path, "duplicate_id", `Id "${value}" is already used at ${first}`));
     } else seen.set(value, pathText(path));
   };

@@ -126,7 +126,8 @@ export function buildNetwork(scenario: Scenario): BuildNetworkResult {
   const addNode = (id: string, x: number, y: number, role: NetworkNode["role"]) => {
     const index = nodes.length;
     nodes.push({ id, index, x, y, role });
-    byId.set(id, index);
+    // Only the scenario's junctions are looked up by id (runner and gate ends).
+    if (role === "junction") byId.set(id, index);
     return index;
   };
   for (const n of scenario.nodes) addNode(n.id, mmToM(n.x_mm), mmToM(n.y_mm), "junction");

@@ -147,3 +147,24 @@ Deno.test("an inline power-law material is accepted", async () => {
   const result = parseScenario(input, { materialIds });
   assert.ok(result.ok, JSON.stringify(!result.ok && result.issues));
 });
+
+Deno.test("the feed's internal ids are reserved: a node, runner or cavity named inlet/sprue/hot_drop is refused with its path", async () => {
+  const text = await Deno.readTextFile(
+    new URL("../../scenarios/family_four_housing.json", import.meta.url),
+  );
+  for (const reserved of ["inlet", "sprue", "hot_drop"]) {
+    const wire = JSON.parse(text);
+    const old = wire.feed.node;
+    wire.feed.node = reserved;
+    for (const n of wire.nodes) if (n.id === old) n.id = reserved;
+    for (const r of wire.runners) {
+      if (r.from === old) r.from = reserved;
+      if (r.to === old) r.to = reserved;
+    }
+    const parsed = parseScenario(wire, { materialIds });
+    assert.ok(!parsed.ok, `${reserved} accepted`);
+    const hit = parsed.issues.find((i) => i.code === "reserved_id");
+    assert.ok(hit, JSON.stringify(parsed.issues));
+    assert.equal(hit.at, "nodes[0].id");
+  }
+});
