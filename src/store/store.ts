@@ -97,6 +97,28 @@ export interface ClaimedJob {
   attempt: number;
 }
 
+/**
+ * The store could not take the database's lock in time (another process holds
+ * it): nothing was changed; try again shortly. The service answers 503 with
+ * Retry-After, the worker and the job process wait and retry.
+ */
+export class StoreBusyError extends Error {
+  override name = "StoreBusyError";
+}
+
+/**
+ * The retry rule, in one place (`abandonAttempt`, also applied to lapsed
+ * leases by `claimJob`): an attempt that ends without an outcome of its own —
+ * its worker stopped renewing the lease, or its job process died (SIGKILL, out
+ * of memory, a crash) — is run again from the start until the job has used
+ * `max_attempts` attempts (default 3), and then fails with the last attempt's
+ * error. A job whose cancel was requested is cancelled instead of run again.
+ * An attempt that ends with an outcome (done; failed by the engine, by bad
+ * input or at its time limit; cancelled) is final and never retried. A
+ * graceful shutdown gives the attempt back (`releaseJob`) without using it up.
+ */
+export type AbandonedAs = "queued" | "failed" | "cancelled";
+
 /** How a finished attempt ends. */
 export type JobOutcome =
   | { status: "done"; result: unknown }
@@ -138,9 +160,9 @@ export interface JobStore {
   listJobs(options?: { limit?: number }): JobSummary[];
   countJobs(): { queued: number; running: number };
   /**
-   * Atomically claim the oldest runnable job for `owner`: a queued one, or a
-   * running one whose lease has lapsed (its worker died). A lapsed job out of
-   * attempts is failed instead. Returns undefined when nothing is runnable.
+   * Atomically claim the oldest queued job for `owner`, after settling every
+   * lapsed lease (its worker died) by the retry rule ({@link AbandonedAs}).
+   * Returns undefined when nothing is runnable.
    */
   claimJob(owner: string, leaseMs: number, nowMs?: number): ClaimedJob | undefined;
   /** Extend the lease; false when `owner` no longer holds this attempt. */
@@ -149,6 +171,18 @@ export interface JobStore {
   writeProgress(id: string, owner: string, attempt: number, progress: JobProgress): boolean;
   /** Finish the attempt; false (and no change) when `owner` no longer holds it. */
   finishJob(id: string, owner: string, attempt: number, outcome: JobOutcome): boolean;
+  /**
+   * The attempt ended without an outcome (its job process died): apply the
+   * retry rule ({@link AbandonedAs}) — queued again while attempts remain,
+   * else failed with `error`; cancelled if a cancel was requested. Undefined
+   * when `owner` no longer holds the attempt.
+   */
+  abandonAttempt(
+    id: string,
+    owner: string,
+    attempt: number,
+    error: JobError,
+  ): AbandonedAs | undefined;
   /** Give the job back to the queue (graceful shutdown); false when not held. */
   releaseJob(id: string, owner: string, attempt: number): boolean;
   /**
@@ -167,7 +201,10 @@ export interface WorkerRegistry {
   aliveWorkers(withinMs: number): WorkerRecord[];
 }
 
-/** The whole store. */
+/**
+ * The whole store. Any method may throw {@link StoreBusyError} when another
+ * process holds the database's lock longer than the store's busy timeout.
+ */
 export interface Store extends ScenarioStore, JobStore, WorkerRegistry {
   close(): void;
 }

@@ -1,6 +1,7 @@
 import assert from "node:assert/strict";
 import { DatabaseSync } from "node:sqlite";
 import { MIGRATIONS, SqliteStore } from "../../src/store/sqlite_store.ts";
+import { StoreBusyError } from "../../src/store/store.ts";
 
 async function withStore(fn: (store: SqliteStore, dir: string) => Promise<void> | void) {
   const dir = await Deno.makeTempDir({ prefix: "evenfill-store-" });
@@ -194,4 +195,69 @@ Deno.test("store: four processes claiming from one file take every job exactly o
     assert.deepEqual(store.countJobs(), { queued: 0, running: 0 });
     assert.ok(store.listJobs({ limit: n }).every((j) => j.status === "done" && j.attempts === 1));
   });
+});
+
+Deno.test("store: the retry rule is one rule — a crashed job process and a lapsed lease both retry up to max_attempts", async () => {
+  await withStore((store) => {
+    const crash = { code: "job_crashed", message: "The job process ended (signal SIGKILL)" };
+    store.submitJob(job("a"), { maxQueued: 10 });
+    // Attempt 1: the job process is killed; the job goes back to the queue.
+    const first = store.claimJob("w1", 1_000, 0)!;
+    assert.equal(store.abandonAttempt("a", "w1", first.attempt, crash), "queued");
+    const queued = store.getJob("a")!;
+    assert.equal(queued.status, "queued");
+    assert.equal(queued.attempts, 1, "the attempt is used up");
+    assert.equal(queued.error, null);
+    assert.equal(queued.lease_owner, null);
+    assert.equal(store.abandonAttempt("a", "w1", first.attempt, crash), undefined, "not held");
+    // Attempt 2: the worker dies; its lapsed lease counts against the same limit.
+    const second = store.claimJob("w2", 1_000, 10);
+    assert.equal(second?.attempt, 2);
+    const third = store.claimJob("w3", 1_000, 2_000);
+    assert.equal(third?.attempt, 3);
+    // Attempt 3 of 3: killed again; now the job fails with the crash's reason.
+    assert.equal(store.abandonAttempt("a", "w3", 3, crash), "failed");
+    const failed = store.getJob("a")!;
+    assert.equal(failed.status, "failed");
+    assert.equal(failed.attempts, 3);
+    assert.equal(failed.error?.code, "job_crashed");
+    assert.match(failed.error!.message, /SIGKILL.*attempt 3 of 3/);
+    assert.equal(store.claimJob("w4", 1_000, 5_000), undefined);
+
+    // A job whose cancel was requested is cancelled, not run again.
+    store.submitJob(job("b"), { maxQueued: 10 });
+    const b = store.claimJob("w1", 1_000, 0)!;
+    store.requestCancel("b");
+    assert.equal(store.abandonAttempt("b", "w1", b.attempt, crash), "cancelled");
+    assert.equal(store.getJob("b")?.error?.code, "cancelled");
+  });
+});
+
+Deno.test("store: a lock held by another connection gives StoreBusyError after the busy timeout; reads go on", async () => {
+  for (const begin of ["BEGIN IMMEDIATE", "BEGIN EXCLUSIVE"]) {
+    const dir = await Deno.makeTempDir({ prefix: "evenfill-store-" });
+    const store = SqliteStore.open(`${dir}/store.db`, { busyTimeoutMs: 20 });
+    const other = new DatabaseSync(`${dir}/store.db`);
+    try {
+      store.submitJob(job("a"), { maxQueued: 10 });
+      other.exec(begin);
+      assert.throws(
+        () => store.createScenario("s1", "one", { name: "one" }),
+        (e: unknown) => e instanceof StoreBusyError && /locked/.test(e.message),
+        begin,
+      );
+      assert.throws(() => store.claimJob("w", 1_000), StoreBusyError, begin);
+      assert.throws(() => store.heartbeatWorker("w", 1), StoreBusyError, begin);
+      // WAL: readers are not blocked by a writer's lock.
+      assert.equal(store.getJob("a")?.status, "queued", begin);
+      assert.deepEqual(store.listScenarios(), [], "nothing was written");
+      other.exec("ROLLBACK");
+      assert.equal(store.createScenario("s1", "one", { name: "one" }).revision, 1);
+      assert.equal(store.claimJob("w", 1_000)?.job.id, "a");
+    } finally {
+      other.close();
+      store.close();
+      await Deno.remove(dir, { recursive: true });
+    }
+  }
 });
