@@ -1,4 +1,4 @@
-import type { ClaimedJob, Store } from "../store/store.ts";
+import { type ClaimedJob, type Store, StoreBusyError } from "../store/store.ts";
 import type { RunReply } from "./run_job.ts";
 import { lines } from "./lines.ts";
 
@@ -32,6 +32,19 @@ const RUN_JOB = new URL("./run_job.ts", import.meta.url).pathname;
 const CONFIG = new URL("../../deno.json", import.meta.url).pathname;
 
 const sleep = (ms: number) => new Promise((resolve) => setTimeout(resolve, ms));
+
+/** How long a worker waits for another process's database lock per statement, ms. */
+export const WORKER_BUSY_TIMEOUT_MS = 1000;
+
+/** `fn()`, or `fallback` when the database is locked by another process. */
+function unlessBusy<T>(fn: () => T, fallback: T): T {
+  try {
+    return fn();
+  } catch (error) {
+    if (error instanceof StoreBusyError) return fallback;
+    throw error;
+  }
+}
 
 /** The worker's job process (`run_job.ts`): one command line in, one reply line out. */
 class JobProcess {
@@ -107,7 +120,10 @@ class JobProcess {
  * kill, a crash or `jobsPerProcess` jobs. While the child runs, the worker
  * renews the lease, kills the child at the job's time limit (job failed,
  * `time_limit`) or when a cancel is not honoured within the grace period (job
- * cancelled), and fails the job if the child dies without writing an outcome.
+ * cancelled), and hands the attempt to the store's retry rule if the child
+ * dies without writing an outcome (run again until `max_attempts`, then failed).
+ * A database locked by another process never stops the worker: it waits and
+ * tries again.
  * `stop()` stops claiming, gives a running job a short grace, then kills it
  * and puts it back in the queue, so no job is lost.
  */
@@ -152,7 +168,8 @@ export class JobWorker {
   async #loop(): Promise<void> {
     const { id, leaseMs } = this.options;
     let lastBeat = 0;
-    this.#store.heartbeatWorker(id, Deno.pid);
+    let busySince: number | undefined;
+    unlessBusy(() => this.#store.heartbeatWorker(id, Deno.pid), undefined);
     this.#log({ event: "worker_started", pid: Deno.pid });
     try {
       while (!this.#stopping) {
@@ -161,11 +178,25 @@ export class JobWorker {
           this.#stopRequestedAt = Date.now();
           break;
         }
-        if (Date.now() - lastBeat > leaseMs / 3) {
-          this.#store.heartbeatWorker(id, Deno.pid);
-          lastBeat = Date.now();
+        let claimed: ClaimedJob | undefined;
+        try {
+          if (Date.now() - lastBeat > leaseMs / 3) {
+            this.#store.heartbeatWorker(id, Deno.pid);
+            lastBeat = Date.now();
+          }
+          claimed = this.#store.claimJob(id, leaseMs);
+          if (busySince !== undefined) {
+            this.#log({ event: "store_available", waited_s: (Date.now() - busySince) / 1000 });
+            busySince = undefined;
+          }
+        } catch (error) {
+          if (!(error instanceof StoreBusyError)) throw error;
+          // Another process holds the database's lock: wait and try again.
+          if (busySince === undefined) {
+            busySince = Date.now();
+            this.#log({ event: "store_busy", message: error.message });
+          }
         }
-        const claimed = this.#store.claimJob(id, leaseMs);
         if (claimed) {
           await this.#supervise(claimed);
           continue;
@@ -183,7 +214,7 @@ export class JobWorker {
       const runner = this.#runner;
       this.#runner = undefined;
       await runner?.close();
-      this.#store.removeWorker(id);
+      unlessBusy(() => this.#store.removeWorker(id), undefined);
       this.#log({ event: "worker_stopped" });
     }
   }
@@ -209,19 +240,29 @@ export class JobWorker {
       if (answered !== undefined || exited !== undefined) break;
       const now = Date.now();
       if (now - lastRenew > leaseMs / 3) {
-        if (!this.#store.renewLease(job.id, owner, attempt, leaseMs)) {
+        // A locked database skips this renewal (null); the next poll tries again.
+        const held = unlessBusy(
+          () => this.#store.renewLease(job.id, owner, attempt, leaseMs),
+          null,
+        );
+        if (held === false) {
           // Someone else settled this attempt (e.g. the lease lapsed): stop it.
           verdict = "lease_lost";
           break;
         }
-        this.#store.heartbeatWorker(owner, Deno.pid);
-        lastRenew = now;
+        if (held) {
+          unlessBusy(() => this.#store.heartbeatWorker(owner, Deno.pid), undefined);
+          lastRenew = now;
+        }
       }
       if (now - started > job.time_limit_ms) {
         verdict = "time_limit";
         break;
       }
-      if (cancelSeenAt === undefined && this.#store.isCancelRequested(job.id)) cancelSeenAt = now;
+      if (
+        cancelSeenAt === undefined &&
+        unlessBusy(() => this.#store.isCancelRequested(job.id), false)
+      ) cancelSeenAt = now;
       if (cancelSeenAt !== undefined && now - cancelSeenAt > (this.options.cancelGraceMs ?? 1000)) {
         verdict = "cancelled";
         break;
@@ -238,30 +279,36 @@ export class JobWorker {
       exited = await runner.status;
     }
     const seconds = (job.time_limit_ms / 1000).toString();
-    let settledByWorker = false;
+    let settledByWorker: boolean | string = false;
     if (verdict === "time_limit") {
-      settledByWorker = this.#store.finishJob(job.id, owner, attempt, {
-        status: "failed",
-        error: { code: "time_limit", message: `Stopped after its time limit of ${seconds} s` },
-      });
+      settledByWorker = await this.#settle(() =>
+        this.#store.finishJob(job.id, owner, attempt, {
+          status: "failed",
+          error: { code: "time_limit", message: `Stopped after its time limit of ${seconds} s` },
+        })
+      );
     } else if (verdict === "cancelled") {
-      settledByWorker = this.#store.finishJob(job.id, owner, attempt, {
-        status: "cancelled",
-        error: { code: "cancelled", message: "cancelled by request (the job was stopped)" },
-      });
+      settledByWorker = await this.#settle(() =>
+        this.#store.finishJob(job.id, owner, attempt, {
+          status: "cancelled",
+          error: { code: "cancelled", message: "cancelled by request (the job was stopped)" },
+        })
+      );
     } else if (verdict === "shutdown" || (answered === undefined && this.#stopping)) {
       // Stopping: whatever ended the job process, the job goes back to the queue.
-      settledByWorker = this.#store.releaseJob(job.id, owner, attempt);
+      settledByWorker = await this.#settle(() => this.#store.releaseJob(job.id, owner, attempt));
     } else if (answered === undefined && exited !== undefined) {
-      settledByWorker = this.#store.finishJob(job.id, owner, attempt, {
-        status: "failed",
-        error: {
+      // The job process died on its own (SIGKILL from outside, out of memory, a
+      // crash): the retry rule decides (run again, or failed after max_attempts).
+      const status = exited;
+      settledByWorker = await this.#settle(() =>
+        this.#store.abandonAttempt(job.id, owner, attempt, {
           code: "job_crashed",
-          message: `The job process ended unexpectedly (exit code ${exited.code}${
-            exited.signal ? `, signal ${exited.signal}` : ""
+          message: `The job process ended unexpectedly (exit code ${status.code}${
+            status.signal ? `, signal ${status.signal}` : ""
           })`,
-        },
-      });
+        }) ?? false
+      );
     }
     if (this.#runner !== undefined && ++this.#runnerJobs >= (this.options.jobsPerProcess ?? 100)) {
       this.#runner = undefined;
@@ -277,6 +324,24 @@ export class JobWorker {
       exit_code: exited?.code,
       seconds: (Date.now() - started) / 1000,
     });
+  }
+
+  /**
+   * A settling write, tried again while another process holds the database's
+   * lock; given up once stopping and past the shutdown grace (the lease then
+   * lapses and the retry rule settles the job).
+   */
+  async #settle<T>(write: () => T): Promise<T | false> {
+    while (true) {
+      try {
+        return write();
+      } catch (error) {
+        if (!(error instanceof StoreBusyError)) throw error;
+      }
+      const grace = this.options.shutdownGraceMs ?? 2000;
+      if (this.#stopping && Date.now() - this.#stopRequestedAt > grace) return false;
+      await sleep(this.options.idlePollMs ?? 200);
+    }
   }
 
   #spawnRunner(): JobProcess {
@@ -306,6 +371,7 @@ export class JobWorker {
       stdout: "piped",
       stderr: "inherit",
     }).spawn();
+    this.#log({ event: "job_process_started", pid: child.pid });
     return new JobProcess(child);
   }
 }

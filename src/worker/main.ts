@@ -13,7 +13,7 @@
 import { nanoid } from "nanoid";
 import { ConfigError, loadConfig } from "../service/config.ts";
 import { SqliteStore } from "../store/sqlite_store.ts";
-import { JobWorker } from "./job_worker.ts";
+import { JobWorker, WORKER_BUSY_TIMEOUT_MS } from "./job_worker.ts";
 
 /** Run a worker until SIGTERM/SIGINT; returns the exit code. */
 export async function main(args: readonly string[]): Promise<number> {
@@ -28,7 +28,7 @@ export async function main(args: readonly string[]): Promise<number> {
     }
     throw error;
   }
-  const store = SqliteStore.open(config.dbPath);
+  const store = SqliteStore.open(config.dbPath, { busyTimeoutMs: WORKER_BUSY_TIMEOUT_MS });
   const parent = Deno.ppid;
   const worker = new JobWorker(store, {
     id: `worker-${Deno.pid}-${nanoid(6)}`,

@@ -19,7 +19,14 @@ import { optimizeBalance } from "../optimize/balance.ts";
 import { iterationJson, optimizationJson } from "../report/optimization_report.ts";
 import { SqliteStore } from "../store/sqlite_store.ts";
 import { lines } from "./lines.ts";
-import type { JobError, JobOutcome, JobProgress, JobRecord, Store } from "../store/store.ts";
+import {
+  type JobError,
+  type JobOutcome,
+  type JobProgress,
+  type JobRecord,
+  type Store,
+  StoreBusyError,
+} from "../store/store.ts";
 
 /** Exit codes of this process. */
 export const RUN_JOB_EXIT = {
@@ -34,6 +41,14 @@ export const RUN_JOB_EXIT = {
 /** Minimum time between two progress writes, ms. */
 const PROGRESS_EVERY_MS = 100;
 
+/** Pause between two tries of a store write that found the database locked, ms. */
+const BUSY_RETRY_MS = 200;
+
+/** How long the job process waits for another process's database lock per statement, ms. */
+export const JOB_PROCESS_BUSY_TIMEOUT_MS = 1000;
+
+const sleep = (ms: number) => new Promise((resolve) => setTimeout(resolve, ms));
+
 /** Options of {@link runJobAttempt}. */
 export interface RunJobAttemptOptions {
   owner: string;
@@ -42,9 +57,30 @@ export interface RunJobAttemptOptions {
   orphaned?: () => boolean;
   /** Whether the test-only job kinds may run (default: EVENFILL_ENABLE_TEST_JOBS=1). */
   enableTestJobs?: boolean;
+  /** The optimizer (default {@link optimizeBalance}); a seam for tests. */
+  optimize?: typeof optimizeBalance;
+  /** Where an engine exception's stack is logged (default: one JSON line on stderr). */
+  logError?: (event: Record<string, unknown>) => void;
 }
 
 class LeaseLost extends Error {}
+
+/**
+ * Run a store write until it is not refused for a lock held by another
+ * process; a lock held for good ends when this process is orphaned (its
+ * supervisor gone: the lease lapses and the retry rule takes over).
+ */
+async function untilNotBusy<T>(write: () => T, orphaned: () => boolean): Promise<T> {
+  while (true) {
+    try {
+      return write();
+    } catch (error) {
+      if (!(error instanceof StoreBusyError)) throw error;
+    }
+    if (orphaned()) throw new LeaseLost();
+    await sleep(BUSY_RETRY_MS);
+  }
+}
 
 /** Run one attempt of a job already claimed by `owner`; returns whether the outcome was written. */
 export async function runJobAttempt(
@@ -58,7 +94,7 @@ export async function runJobAttempt(
   // about to lapse and the job will be run again from the start.
   const finish = (outcome: JobOutcome) => {
     if (orphaned()) throw new LeaseLost();
-    return store.finishJob(job.id, owner, attempt, outcome);
+    return untilNotBusy(() => store.finishJob(job.id, owner, attempt, outcome), orphaned);
   };
   const fail = (code: string, message: string) =>
     finish({ status: "failed", error: { code, message } });
@@ -67,14 +103,15 @@ export async function runJobAttempt(
     if (!(options.enableTestJobs ?? Deno.env.get("EVENFILL_ENABLE_TEST_JOBS") === "1")) {
       return fail("test_jobs_disabled", "test_spin jobs only run when test jobs are enabled");
     }
-    store.writeProgress(job.id, owner, attempt, {
-      iteration: 0,
-      accepted: false,
-      imbalance_percent: 0,
-      feed_pressure_peak_MPa: 0,
-      runner_volume_cm3: 0,
-      simulations: 0,
-    });
+    await untilNotBusy(() =>
+      store.writeProgress(job.id, owner, attempt, {
+        iteration: 0,
+        accepted: false,
+        imbalance_percent: 0,
+        feed_pressure_peak_MPa: 0,
+        runner_volume_cm3: 0,
+        simulations: 0,
+      }), orphaned);
     // Deliberately endless and deaf to cancel and time limit: only the
     // supervisor's SIGKILL stops it. It does stop when orphaned.
     for (let i = 0;; i++) {
@@ -92,20 +129,48 @@ export async function runJobAttempt(
     scenario.goals.mode = input.mode;
   }
   let lastWrite = -Infinity;
-  const result = await optimizeBalance(scenario, {
-    slopes: input.slopes === "finite_difference" ? "finite_difference" : "tangent",
-    onProgress: (i) => {
-      const now = performance.now();
-      if (now - lastWrite < PROGRESS_EVERY_MS) return;
-      lastWrite = now;
-      const progress: JobProgress = iterationJson(i);
-      if (!store.writeProgress(job.id, owner, attempt, progress)) throw new LeaseLost();
-    },
-    cancelled: () => {
-      if (orphaned()) throw new LeaseLost();
-      return store.isCancelRequested(job.id);
-    },
-  });
+  let result;
+  try {
+    result = await (options.optimize ?? optimizeBalance)(scenario, {
+      slopes: input.slopes === "finite_difference" ? "finite_difference" : "tangent",
+      onProgress: (i) => {
+        const now = performance.now();
+        if (now - lastWrite < PROGRESS_EVERY_MS) return;
+        lastWrite = now;
+        const progress: JobProgress = iterationJson(i);
+        let held: boolean;
+        try {
+          held = store.writeProgress(job.id, owner, attempt, progress);
+        } catch (error) {
+          // Progress is best effort: a locked database skips this write, not the job.
+          if (error instanceof StoreBusyError) return;
+          throw error;
+        }
+        if (!held) throw new LeaseLost();
+      },
+      cancelled: () => {
+        if (orphaned()) throw new LeaseLost();
+        try {
+          return store.isCancelRequested(job.id);
+        } catch (error) {
+          if (error instanceof StoreBusyError) return false; // asked again at the next iteration
+          throw error;
+        }
+      },
+    });
+  } catch (error) {
+    if (error instanceof LeaseLost) throw error;
+    // An exception from the engine (a bug, or a failure it did not turn into a
+    // value): the job fails with its message; the stack goes to the log.
+    const message = error instanceof Error ? error.message : String(error);
+    (options.logError ?? ((e) => console.error(JSON.stringify(e))))({
+      event: "job_engine_error",
+      job: job.id,
+      attempt,
+      error: error instanceof Error ? (error.stack ?? message) : message,
+    });
+    return fail("optimization_failed", `The optimization stopped on an engine error: ${message}`);
+  }
   if (!result.ok) return fail(result.code, result.message);
   const json = optimizationJson(result.outcome, { history: true });
   if (result.outcome.status === "cancelled") {
@@ -150,7 +215,7 @@ async function main(args: readonly string[]): Promise<number> {
   // when this process ends (stdin closed, or SIGKILL), so the job it is running
   // can be put back in the queue instead of dying half-way.
   for (const signal of ["SIGINT", "SIGTERM"] as const) Deno.addSignalListener(signal, () => {});
-  const store = SqliteStore.open(db);
+  const store = SqliteStore.open(db, { busyTimeoutMs: JOB_PROCESS_BUSY_TIMEOUT_MS });
   const encoder = new TextEncoder();
   try {
     for await (const line of lines(Deno.stdin.readable)) {
@@ -158,7 +223,10 @@ async function main(args: readonly string[]): Promise<number> {
       const command = JSON.parse(line) as RunCommand;
       const { job: id, attempt } = command;
       let written = false;
-      const job = store.getJob(id);
+      const job = await untilNotBusy(() => store.getJob(id), orphaned).catch((error) => {
+        if (error instanceof LeaseLost) return undefined;
+        throw error;
+      });
       if (
         job && job.status === "running" && job.lease_owner === owner && job.attempts === attempt
       ) {

@@ -43,3 +43,39 @@ Deno.test("job attempt: the submitted slope source reaches the optimizer and is 
     await Deno.remove(dir, { recursive: true });
   }
 });
+
+Deno.test("job attempt: an exception thrown by the engine fails the job with its message instead of escaping", async () => {
+  const dir = await Deno.makeTempDir({ prefix: "evenfill-run-job-" });
+  const store = SqliteStore.open(`${dir}/store.db`);
+  try {
+    const scenario = JSON.parse(await Deno.readTextFile(STEEL_SAFE_DEMO));
+    store.submitJob({
+      id: "boom",
+      kind: "optimize",
+      name: scenario.name,
+      input: { scenario },
+      time_limit_ms: 120_000,
+    }, { maxQueued: 10 });
+    const claimed = store.claimJob("test-owner", 60_000)!;
+    const logged: Record<string, unknown>[] = [];
+    // The message the engine threw on a branch that froze off (before it became a short shot).
+    const written = await runJobAttempt(store, claimed.job, {
+      owner: "test-owner",
+      attempt: claimed.attempt,
+      optimize: () => {
+        throw new RangeError("initialFlows has 15 values for 13 elements");
+      },
+      logError: (e) => logged.push(e),
+    });
+    assert.equal(written, true);
+    const job = store.getJob("boom")!;
+    assert.equal(job.status, "failed");
+    assert.equal(job.error?.code, "optimization_failed");
+    assert.match(job.error!.message, /initialFlows has 15 values for 13 elements/);
+    assert.equal(logged.length, 1, "the stack is logged for developers");
+    assert.match(String(logged[0].error), /RangeError/);
+  } finally {
+    store.close();
+    await Deno.remove(dir, { recursive: true });
+  }
+});
