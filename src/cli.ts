@@ -9,7 +9,7 @@ import { MATERIALS } from "./materials/library.ts";
 import { scenarioJsonSchema } from "./model/json_schema.ts";
 import { parseScenarioText, type ScenarioIssue } from "./model/parse_scenario.ts";
 import type { Scenario } from "./model/scenario_schema.ts";
-import { LIBRARY_MATERIAL_IDS, runScenario } from "./network/simulate_scenario.ts";
+import { checkScenario, LIBRARY_MATERIAL_IDS, runScenario } from "./network/simulate_scenario.ts";
 import { fillHistoryCsv } from "./report/fill_csv.ts";
 import { resultJson } from "./report/result_json.ts";
 import { textReport } from "./report/text_report.ts";
@@ -24,11 +24,25 @@ usage:
   evenfill simulate <scenario.json> [--json] [--history] [--csv] [--units metric|dual]
   evenfill optimize <scenario.json> [--mode new_tool|trim|steel_safe] [--json] [--history] [--csv]
                     [--slopes tangent|finite_difference]
-  evenfill validate <scenario.json>
+  evenfill validate <scenario.json> [--json]
   evenfill materials
   evenfill schema [--write <path>]
 
+exit codes: 0 done (optimize: converged; the report flags a cutter-size design that misses a
+limit); 1 usage or file error; 2 the scenario has problems, or an unknown option (listed,
+with their JSON paths; as JSON with --json); 3 the simulation or the optimization failed;
+4 optimize ended infeasible, at its iteration limit or cancelled — the report says why.
+
 (with Deno: deno task simulate scenarios/family_four_housing.json)`;
+
+/** The options each command takes; any other is an error. */
+const OPTIONS: Record<string, readonly string[]> = {
+  simulate: ["json", "history", "csv", "units"],
+  optimize: ["json", "history", "csv", "mode", "slopes", "units"],
+  validate: ["json"],
+  materials: [],
+  schema: ["write"],
+};
 
 interface Args {
   positional: string[];
@@ -56,7 +70,13 @@ function parseArgs(argv: readonly string[]): Args {
   return { positional, flags };
 }
 
+let issuesAsJson = false;
+
 function printIssues(file: string, issues: readonly ScenarioIssue[]): void {
+  if (issuesAsJson) {
+    console.log(JSON.stringify({ ok: false, file, issues }, null, 2));
+    return;
+  }
   console.error(`${file}: ${issues.length} problem${issues.length === 1 ? "" : "s"}`);
   for (const i of issues) console.error(`  ${i.at}: ${i.message} [${i.code}]`);
 }
@@ -76,6 +96,12 @@ async function readScenario(file: string | undefined): Promise<ReadResult> {
     printIssues(file, parsed.issues);
     return { exit: 2 };
   }
+  // The network checks simulate makes (reachability, section shapes), so validate agrees.
+  const checked = checkScenario(parsed.scenario);
+  if (!checked.ok) {
+    printIssues(file, checked.issues);
+    return { exit: 2 };
+  }
   return { scenario: parsed.scenario };
 }
 
@@ -83,6 +109,19 @@ async function readScenario(file: string | undefined): Promise<ReadResult> {
 export async function main(argv: readonly string[]): Promise<number> {
   const [command, ...rest] = argv;
   const args = parseArgs(rest);
+  const known = OPTIONS[command];
+  if (known) {
+    const unknown = [...args.flags.keys()].filter((f) => !known.includes(f));
+    if (unknown.length > 0) {
+      console.error(
+        `evenfill ${command}: unknown option${unknown.length === 1 ? "" : "s"} ${
+          unknown.map((f) => `--${f}`).join(", ")
+        } (it takes ${known.length > 0 ? known.map((f) => `--${f}`).join(", ") : "none"})`,
+      );
+      return 2;
+    }
+  }
+  issuesAsJson = args.flags.has("json");
   switch (command) {
     case "simulate": {
       const read = await readScenario(args.positional[0]);
@@ -167,7 +206,7 @@ export async function main(argv: readonly string[]): Promise<number> {
         });
         console.log(JSON.stringify(json, null, 2));
       } else console.log(optimizationText(result.outcome, changes).trimEnd());
-      return 0;
+      return result.outcome.status === "converged" ? 0 : 4;
     }
     case "validate": {
       const read = await readScenario(args.positional[0]);

@@ -110,9 +110,49 @@ Deno.test("optimize --slopes: finite differences are accepted, an unknown source
     "finite_difference",
     "--json",
   ]);
-  assert.equal(fd.code, 0, fd.stderr);
   const json = JSON.parse(fd.stdout);
+  // Exit 0 when it converged, 4 when it ended otherwise (the CLI's documented exit codes).
+  assert.equal(fd.code, json.status === "converged" ? 0 : 4, fd.stderr);
   assert.equal(json.slopes, "finite_difference", "the flag reached the optimizer");
   // Steel-safe demo: whatever the slopes, nothing may shrink.
   for (const c of json.changes) assert.ok(c.to_mm >= c.from_mm, `${c.element} shrinks`);
+});
+
+Deno.test("CLI: unknown options are errors; --json prints a bad file's issues as JSON in plain words; a BOM is fine", async () => {
+  const typo = await run(["simulate", "scenarios/family_four_housing.json", "--jsn"]);
+  assert.equal(typo.code, 2);
+  assert.match(typo.stderr, /unknown option --jsn/);
+  const dir = await Deno.makeTempDir();
+  try {
+    const wire = JSON.parse(await Deno.readTextFile("scenarios/family_four_housing.json"));
+    delete wire.$schema;
+    wire.process.injection = { flow_rate_cm3_s: 30, fill_time_s: 1 };
+    Object.assign(wire.runners[0], { shape: "trapezoid", width_mm: 1, depth_mm: 5 });
+    const bad = `${dir}/bad.json`;
+    await Deno.writeTextFile(bad, JSON.stringify(wire));
+    const r = await run(["validate", bad, "--json"]);
+    assert.equal(r.code, 2);
+    const out = JSON.parse(r.stdout);
+    assert.equal(out.ok, false);
+    const injection = out.issues.find((i: { at: string }) => i.at === "process.injection");
+    assert.ok(injection, r.stdout);
+    assert.doesNotMatch(injection.message, /invalid_union|Invalid input/);
+    assert.match(injection.message, /flow_rate_cm3_s.*fill_time_s/);
+    // Fixed injection: now the network check (what simulate would refuse) speaks.
+    wire.process.injection = { flow_rate_cm3_s: 30 };
+    await Deno.writeTextFile(bad, JSON.stringify(wire));
+    const section = await run(["validate", bad]);
+    assert.equal(section.code, 2);
+    assert.match(section.stderr, /runners\[0\]\.width_mm: .*too narrow/);
+    // The demo with a UTF-8 byte-order mark in front.
+    const bom = `${dir}/bom.json`;
+    await Deno.writeTextFile(
+      bom,
+      "\uFEFF" + await Deno.readTextFile("scenarios/family_four_housing.json"),
+    );
+    const ok = await run(["validate", bom]);
+    assert.equal(ok.code, 0, ok.stderr);
+  } finally {
+    await Deno.remove(dir, { recursive: true });
+  }
 });

@@ -42,11 +42,82 @@ function issue(path: (string | number)[], code: string, message: string): Scenar
   return { path, at: pathText(path), code, message };
 }
 
+type ZodIssueLike = {
+  code: string;
+  path: PropertyKey[];
+  message: string;
+  expected?: string;
+  received?: string;
+  keys?: string[];
+  errors?: ZodIssueLike[][];
+  options?: unknown[];
+};
+
 function fromZod(error: z.ZodError): ScenarioIssue[] {
-  return error.issues.map((i) => {
-    const path = i.path.map((p) => (typeof p === "symbol" ? String(p) : p));
-    return issue(path, i.code, i.message);
-  });
+  return (error.issues as unknown as ZodIssueLike[]).flatMap((i) => plainIssues(i, []));
+}
+
+/** The schema library's issue in plain words, its path made absolute. */
+function plainIssues(i: ZodIssueLike, prefix: (string | number)[]): ScenarioIssue[] {
+  const path = [...prefix, ...i.path.map((p) => (typeof p === "symbol" ? String(p) : p))] as (
+    | string
+    | number
+  )[];
+  const last = path[path.length - 1];
+  if (i.code === "invalid_union") {
+    if (last === "injection") {
+      return [issue(
+        path,
+        "injection_form",
+        "injection must give exactly one of flow_rate_cm3_s (cm³/s) or fill_time_s (s)",
+      )];
+    }
+    const discriminator = /Expected (.*)$/.exec(i.message);
+    if (discriminator && /discriminator/i.test(i.message)) {
+      const allowed = discriminator[1].replaceAll("'", "").split(" | ").join(", ");
+      return [issue(path, "unknown_kind", `${String(last)} must be one of ${allowed}`)];
+    }
+    // Report the alternative that came closest (fewest problems), in its own words.
+    // An alternative of the wrong type altogether (a string where an object was given) says
+    // nothing; of the others, the closest (fewest problems) in its own words.
+    const branches = (i.errors ?? []).filter((b) =>
+      b.length > 0 && !(b.length === 1 && b[0].path.length === 0 && b[0].code === "invalid_type")
+    );
+    if (branches.length > 0) {
+      const closest = branches.reduce((a, b) => (b.length < a.length ? b : a));
+      return closest.flatMap((inner) => plainIssues(inner, path));
+    }
+    if (last === "material") {
+      return [issue(
+        path,
+        "unknown_material",
+        "material must be a library id (see `evenfill materials`) or an inline material object",
+      )];
+    }
+    return [issue(path, i.code, `${String(last ?? "the scenario")} has none of the allowed forms`)];
+  }
+  if (i.code === "invalid_type") {
+    if (i.received === "undefined" || /received undefined/.test(i.message)) {
+      return [issue(path, "missing", `${String(last)} is missing`)];
+    }
+    const expected = i.expected ?? /expected (\w+)/.exec(i.message)?.[1] ?? "another type";
+    return [issue(path, i.code, `${String(last)} must be ${article(expected)} ${expected}`)];
+  }
+  if (i.code === "unrecognized_keys") {
+    const keys = i.keys ?? [];
+    return [issue(
+      path,
+      i.code,
+      `unknown field${keys.length === 1 ? "" : "s"} ${
+        keys.map((k) => `"${k}"`).join(", ")
+      } (the fields are listed in public/schema/scenario.schema.json)`,
+    )];
+  }
+  return [issue(path, i.code, i.message.replace(/^Invalid input: /, ""))];
+}
+
+function article(word: string): string {
+  return /^[aeiou]/.test(word) ? "an" : "a";
 }
 
 /**
@@ -72,7 +143,8 @@ export function parseScenarioText(
 ): ParseScenarioResult {
   let json: unknown;
   try {
-    json = JSON.parse(text);
+    // A UTF-8 byte-order mark (some Windows editors write one) is not part of the JSON.
+    json = JSON.parse(text.charCodeAt(0) === 0xfeff ? text.slice(1) : text);
   } catch (error) {
     const detail = error instanceof Error ? error.message : String(error);
     return { ok: false, issues: [issue([], "invalid_json", `Not valid JSON: ${detail}`)] };

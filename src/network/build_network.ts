@@ -1,7 +1,7 @@
 import type { Gate, Runner, Scenario } from "../model/scenario_schema.ts";
-import type { ScenarioIssue } from "../model/parse_scenario.ts";
+import { pathText, type ScenarioIssue } from "../model/parse_scenario.ts";
 import { cm2ToM2, cm3ToM3, degToRad, mmToM } from "../model/units.ts";
-import { partingPlaneWidth, type Section } from "../physics/mod.ts";
+import { partingPlaneWidth, type Section, validateSection } from "../physics/mod.ts";
 import { geometryVolume } from "./_fill_geometry.ts";
 import type {
   ElementGeometry,
@@ -174,6 +174,43 @@ export function buildNetwork(scenario: Scenario): BuildNetworkResult {
       thickness: mmToM(feed.diameter_mm),
       cavity: -1,
     });
+
+  // Section geometry the physics can work with (a trapezoid too narrow for its draft, a
+  // tunnel whose entry is smaller than its tip …): issues with paths, before anything else.
+  const geometryIssues: ScenarioIssue[] = [];
+  const checkSections = (sections: Section[], path: (string | number)[], what: string) => {
+    for (const section of sections) {
+      try {
+        validateSection(section);
+      } catch (error) {
+        if (!(error instanceof RangeError)) throw error;
+        geometryIssues.push({
+          path,
+          at: pathText(path),
+          code: "impossible_section",
+          message: /trapezoid bottomWidth/.test(error.message)
+            ? `${what} is too narrow for its depth: its sides, drafted inward, would meet before the bottom`
+            : `${what}: ${error.message.replace(/^Invalid section: /, "")}`,
+        });
+        return;
+      }
+    }
+  };
+  scenario.runners.forEach((r, i) => {
+    const field = r.width_mm !== undefined ? "width_mm" : "diameter_mm";
+    checkSections([runnerSection(r)], ["runners", i, field], `runner ${r.id}'s ${r.shape} section`);
+  });
+  scenario.gates.forEach((g, i) => {
+    const geometry = gateGeometry(g);
+    const sections = geometry.type === "uniform"
+      ? [geometry.section]
+      : geometry.type === "tapered"
+      ? [geometry.entry, geometry.exit]
+      : [];
+    const field = g.type === "edge" ? "thickness_mm" : "diameter_mm";
+    checkSections(sections, ["gates", i, field], `gate ${g.id}'s section`);
+  });
+  if (geometryIssues.length > 0) return { ok: false, issues: geometryIssues };
 
   for (const r of scenario.runners) {
     const from = byId.get(r.from)!;

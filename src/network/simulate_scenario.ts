@@ -67,6 +67,22 @@ export function simulateScenario(input: unknown, options: RunScenarioOptions = {
   return runScenario(parsed.scenario, options);
 }
 
+/**
+ * Everything simulate checks before it runs, as issues with JSON paths: the schema and
+ * cross-references (`parseScenario`), then the network (every cavity reachable, every section
+ * a shape the physics can work with). What `validate`, save and job submit must run so that
+ * a scenario they accept is one simulate accepts.
+ */
+export function checkScenario(
+  input: unknown,
+): { ok: true; scenario: Scenario } | { ok: false; issues: ScenarioIssue[] } {
+  const parsed = parseScenario(input, { materialIds: LIBRARY_MATERIAL_IDS });
+  if (!parsed.ok) return parsed;
+  const built = buildNetwork(parsed.scenario);
+  if (!built.ok) return { ok: false, issues: built.issues };
+  return { ok: true, scenario: parsed.scenario };
+}
+
 /** Resolve the scenario's material (library id or inline) to the SI domain type. */
 export function resolveMaterial(scenario: Scenario): Material {
   const m = scenario.material;

@@ -8,10 +8,10 @@
 import { nanoid } from "nanoid";
 import type { z } from "zod";
 import { MATERIALS } from "../materials/library.ts";
-import { parseScenario, pathText, type ScenarioIssue } from "../model/parse_scenario.ts";
+import { pathText, type ScenarioIssue } from "../model/parse_scenario.ts";
 import type { Scenario } from "../model/scenario_schema.ts";
 import type { runScenario } from "../network/simulate_scenario.ts";
-import { LIBRARY_MATERIAL_IDS } from "../network/simulate_scenario.ts";
+import { checkScenario } from "../network/simulate_scenario.ts";
 import type { JobRecord, JobSummary, Store } from "../store/store.ts";
 import { JobSubmitSchema } from "./api_schema.ts";
 import type { ServiceConfig } from "./config.ts";
@@ -121,7 +121,7 @@ async function readJson(request: Request, limit: number): Promise<unknown> {
 }
 
 function validScenario(input: unknown): Scenario {
-  const parsed = parseScenario(input, { materialIds: LIBRARY_MATERIAL_IDS });
+  const parsed = checkScenario(input);
   if (!parsed.ok) {
     throw new HttpError(
       400,
@@ -350,7 +350,7 @@ export function createApp(options: AppOptions): Handler {
       case "validate": {
         if (id !== undefined) break;
         allow("POST");
-        const parsed = parseScenario(await body(request), { materialIds: LIBRARY_MATERIAL_IDS });
+        const parsed = checkScenario(await body(request));
         return json(parsed.ok ? { ok: true } : { ok: false, issues: parsed.issues });
       }
       case "simulate": {

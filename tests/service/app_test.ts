@@ -660,3 +660,34 @@ Deno.test("job events: service shutdown closes an open stream", async () => {
     await app.close();
   }
 });
+
+Deno.test("validate, save and submit refuse what simulate refuses: an unreachable cavity, an impossible section", async () => {
+  const app = await testApp();
+  try {
+    const wire = await readJson(DEMO_PATH);
+    const narrow = structuredClone(wire) as Json;
+    Object.assign(narrow.runners[0], { shape: "trapezoid", width_mm: 1, depth_mm: 5 });
+    const cut = structuredClone(wire) as Json;
+    // The last runner leads to the last gate's node: without it that cavity is unreachable.
+    cut.runners = cut.runners.slice(0, -1);
+    for (
+      const [what, bad] of [["narrow trapezoid", narrow], ["unreachable cavity", cut]] as const
+    ) {
+      const simulated = await app.send("POST", "/api/simulate", bad);
+      assert.equal(simulated.status, 400, `${what}: simulate refuses`);
+      await simulated.body?.cancel();
+      const res = await app.send("POST", "/api/validate", bad);
+      const body = await res.json();
+      assert.equal(body.ok, false, `${what}: validate must refuse it too`);
+      assert.ok(body.issues.length > 0);
+      await errorOf(await app.send("POST", "/api/scenarios", bad), 400, "invalid_scenario");
+      await errorOf(
+        await app.send("POST", "/api/jobs", { kind: "optimize", scenario: bad }),
+        400,
+        "invalid_scenario",
+      );
+    }
+  } finally {
+    await app.close();
+  }
+});
