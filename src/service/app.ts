@@ -12,9 +12,9 @@ import { pathText, type ScenarioIssue } from "../model/parse_scenario.ts";
 import type { Scenario } from "../model/scenario_schema.ts";
 import type { runScenario } from "../network/simulate_scenario.ts";
 import { checkScenario } from "../network/simulate_scenario.ts";
-import type { JobRecord, JobSummary, Store } from "../store/store.ts";
+import { type JobRecord, type JobSummary, type Store, StoreBusyError } from "../store/store.ts";
 import { JobSubmitSchema } from "./api_schema.ts";
-import type { ServiceConfig } from "./config.ts";
+import { isLoopback, type ServiceConfig } from "./config.ts";
 import { openApiDocument } from "./openapi.ts";
 import { jobEvents } from "./job_events.ts";
 import type { SimulatePool } from "./simulate_pool.ts";
@@ -23,6 +23,55 @@ import { serveStatic } from "./static_files.ts";
 
 /** Version reported by /api/health and the OpenAPI document. */
 export const SERVICE_VERSION = "0.1.0";
+
+/**
+ * How long the service's store connection waits for another process's lock
+ * per statement, ms. The wait blocks the event loop, so it is short; the app
+ * retries a few times asynchronously ({@link STORE_RETRIES}) and then answers
+ * 503 `store_busy` with Retry-After.
+ */
+export const SERVICE_STORE_BUSY_TIMEOUT_MS = 50;
+
+/** Asynchronous retries of a store call that found the database locked. */
+const STORE_RETRIES = 4;
+/** Pause between two of them, ms. */
+const STORE_RETRY_MS = 100;
+
+/** Security headers on every API response. */
+const API_SECURITY_HEADERS: Record<string, string> = {
+  "content-security-policy": "default-src 'none'; frame-ancestors 'none'; base-uri 'none'",
+  "x-content-type-options": "nosniff",
+  "referrer-policy": "no-referrer",
+  "x-frame-options": "DENY",
+  "cross-origin-resource-policy": "same-origin",
+};
+
+/**
+ * Content-Security-Policy of the page and its files: scripts, styles, data and
+ * event streams from this origin only, no framing. Inline style attributes are
+ * allowed because the page's charts position elements with them.
+ */
+export const PAGE_CSP = [
+  "default-src 'self'",
+  "script-src 'self'",
+  "style-src 'self' 'unsafe-inline'",
+  "img-src 'self' data: blob:",
+  "font-src 'self'",
+  "connect-src 'self'",
+  "object-src 'none'",
+  "base-uri 'none'",
+  "form-action 'self'",
+  "frame-ancestors 'none'",
+].join("; ");
+
+const PAGE_SECURITY_HEADERS: Record<string, string> = {
+  "content-security-policy": PAGE_CSP,
+  "x-content-type-options": "nosniff",
+  "referrer-policy": "no-referrer",
+  "x-frame-options": "DENY",
+};
+
+const sleep = (ms: number) => new Promise((resolve) => setTimeout(resolve, ms));
 
 /** Options of {@link createApp}. */
 export interface AppOptions {
@@ -76,8 +125,58 @@ function zodIssues(error: z.ZodError): ScenarioIssue[] {
   });
 }
 
-/** Read a body up to `limit` bytes; 413 beyond it, 400 if it is not JSON. */
-async function readJson(request: Request, limit: number): Promise<unknown> {
+/** Limits of {@link readJson}. */
+interface ReadJsonLimits {
+  /** Largest body, bytes (413 beyond). */
+  maxBytes: number;
+  /** Deepest nesting of arrays and objects (400 beyond). */
+  maxDepth: number;
+  /** Time the client has to send the whole body, ms (408 after). */
+  timeoutMs: number;
+  /** Aborted when the service shuts down (503). */
+  shutdownSignal?: AbortSignal;
+}
+
+/** Whether `text` (JSON) nests arrays and objects deeper than `max`; strings are skipped. */
+export function jsonNestsDeeperThan(text: string, max: number): boolean {
+  let depth = 0;
+  let inString = false;
+  for (let i = 0; i < text.length; i++) {
+    const c = text.charCodeAt(i);
+    if (inString) {
+      if (c === 0x5c) i++; // backslash: skip the escaped character
+      else if (c === 0x22) inString = false;
+    } else if (c === 0x22) inString = true;
+    else if (c === 0x5b || c === 0x7b) {
+      if (++depth > max) return true;
+    } else if (c === 0x5d || c === 0x7d) depth--;
+  }
+  return false;
+}
+
+/** True for `application/json` and `application/<something>+json`, parameters ignored. */
+function isJsonMediaType(contentType: string | null): boolean {
+  const type = (contentType ?? "").split(";")[0].trim().toLowerCase();
+  return type === "application/json" || /^application\/[a-z0-9.+-]+\+json$/.test(type);
+}
+
+/**
+ * Read a JSON body: 415 unless it is declared `application/json` (a browser's
+ * cross-site form or no-preflight fetch cannot send that), 413 beyond the size
+ * limit, 408 when it does not arrive in time, 400 if it is not JSON or nests
+ * too deeply.
+ */
+async function readJson(request: Request, limits: ReadJsonLimits): Promise<unknown> {
+  const limit = limits.maxBytes;
+  if (!isJsonMediaType(request.headers.get("content-type"))) {
+    await request.body?.cancel().catch(() => {});
+    const got = request.headers.get("content-type");
+    throw new HttpError(
+      415,
+      "unsupported_media_type",
+      `Send the body as application/json (got ${got ? `"${got}"` : "no Content-Type"})`,
+    );
+  }
   const declared = Number(request.headers.get("content-length") ?? "NaN");
   if (Number.isFinite(declared) && declared > limit) {
     await request.body?.cancel().catch(() => {});
@@ -87,15 +186,48 @@ async function readJson(request: Request, limit: number): Promise<unknown> {
   let size = 0;
   if (request.body) {
     const reader = request.body.getReader();
-    while (true) {
-      const { done, value } = await reader.read();
-      if (done) break;
-      size += value.byteLength;
-      if (size > limit) {
-        await reader.cancel().catch(() => {});
-        throw new HttpError(413, "payload_too_large", `Request body over the ${limit}-byte limit`);
+    const deadline = Date.now() + limits.timeoutMs;
+    let timer: ReturnType<typeof setTimeout> | undefined;
+    let onShutdown: (() => void) | undefined;
+    const stopped = new Promise<"timeout" | "shutdown">((resolve) => {
+      timer = setTimeout(() => resolve("timeout"), Math.max(0, deadline - Date.now()));
+      onShutdown = () => resolve("shutdown");
+      limits.shutdownSignal?.addEventListener("abort", onShutdown, { once: true });
+      if (limits.shutdownSignal?.aborted) resolve("shutdown");
+    });
+    try {
+      while (true) {
+        const next = await Promise.race([reader.read(), stopped]);
+        if (next === "timeout") {
+          await reader.cancel().catch(() => {});
+          throw new HttpError(
+            408,
+            "request_timeout",
+            `The request body did not arrive within ${limits.timeoutMs / 1000} s`,
+          );
+        }
+        if (next === "shutdown") {
+          await reader.cancel().catch(() => {});
+          throw new HttpError(503, "shutting_down", "The service is shutting down", undefined, {
+            "retry-after": "5",
+          });
+        }
+        const { done, value } = next;
+        if (done) break;
+        size += value.byteLength;
+        if (size > limit) {
+          await reader.cancel().catch(() => {});
+          throw new HttpError(
+            413,
+            "payload_too_large",
+            `Request body over the ${limit}-byte limit`,
+          );
+        }
+        chunks.push(value);
       }
-      chunks.push(value);
+    } finally {
+      clearTimeout(timer);
+      if (onShutdown) limits.shutdownSignal?.removeEventListener("abort", onShutdown);
     }
   }
   const bytes = new Uint8Array(size);
@@ -109,6 +241,19 @@ async function readJson(request: Request, limit: number): Promise<unknown> {
     text = new TextDecoder("utf-8", { fatal: true }).decode(bytes);
   } catch {
     throw new HttpError(400, "invalid_json", "Request body is not UTF-8 text");
+  }
+  if (jsonNestsDeeperThan(text, limits.maxDepth)) {
+    throw new HttpError(
+      400,
+      "json_too_deep",
+      `Request body nests arrays and objects deeper than ${limits.maxDepth} levels`,
+      [{
+        path: [],
+        at: "$",
+        code: "json_too_deep",
+        message: `Nested deeper than ${limits.maxDepth} levels`,
+      }],
+    );
   }
   try {
     return JSON.parse(text);
@@ -200,14 +345,99 @@ function jobView(job: JobRecord) {
 
 const SCENARIO_ID = /^[A-Za-z0-9_-]{1,64}$/;
 
+/** Each method of `T`, returning a promise. */
+type Retrying<T> = {
+  [K in keyof T]: T[K] extends (...args: infer A) => infer R ? (...args: A) => Promise<R> : never;
+};
+
+/**
+ * The store with every call retried a few times, asynchronously, while
+ * another process holds the database's lock; then {@link StoreBusyError}.
+ */
+function retrying(store: Store): Retrying<Store> {
+  return new Proxy(store, {
+    get(target, key) {
+      const method = Reflect.get(target, key);
+      if (typeof method !== "function") return method;
+      return async (...args: unknown[]) => {
+        for (let attempt = 0;; attempt++) {
+          try {
+            return method.apply(target, args);
+          } catch (error) {
+            if (!(error instanceof StoreBusyError) || attempt >= STORE_RETRIES) throw error;
+          }
+          await sleep(STORE_RETRY_MS);
+        }
+      };
+    },
+  }) as unknown as Retrying<Store>;
+}
+
+/** The host name of a Host header value (`name:port`, `[v6]:port`), lower case; undefined if malformed. */
+function hostNameOf(host: string): string | undefined {
+  try {
+    return new URL(`http://${host}`).hostname.toLowerCase();
+  } catch {
+    return undefined;
+  }
+}
+
 /** Build the service's request handler. */
 export function createApp(options: AppOptions): Handler {
   const { store, config } = options;
+  const db = retrying(store);
+  let openStreams = 0;
   const startedAtMs = options.startedAtMs ?? Date.now();
   const logError = options.logError ??
     ((message: string, error: unknown) => console.error(message, error));
   const demos = loadDemos(config.scenariosDir);
   let openApi: string | undefined;
+
+  const boundToLoopback = isLoopback(config.host);
+  const knownHost = (name: string) =>
+    isLoopback(name) || name === config.host.toLowerCase() || config.allowedHosts.includes(name);
+
+  /**
+   * DNS rebinding and cross-site requests. Bound to loopback (or with allowed
+   * hosts configured), the Host must be one of ours on every request; on a
+   * write, an Origin (browsers send one on every cross-origin write) must be
+   * this very origin.
+   */
+  const checkOrigin = (request: Request, url: URL) => {
+    const header = request.headers.get("host");
+    const names = [url.hostname.toLowerCase()];
+    if (header !== null) names.push(hostNameOf(header) ?? "");
+    if (boundToLoopback || config.allowedHosts.length > 0) {
+      const bad = names.find((n) => !knownHost(n));
+      if (bad !== undefined) {
+        throw new HttpError(
+          403,
+          "forbidden_host",
+          `This service does not answer to the host name "${bad}"; use ${
+            boundToLoopback ? "127.0.0.1 or localhost" : config.host
+          }, or add it to EVENFILL_ALLOWED_HOSTS`,
+        );
+      }
+    }
+    const method = request.method;
+    if (method === "GET" || method === "HEAD" || method === "OPTIONS") return;
+    const origin = request.headers.get("origin");
+    if (origin === null) return;
+    let same = false;
+    try {
+      const o = new URL(origin);
+      same = (o.protocol === "http:" || o.protocol === "https:") && o.host === url.host;
+    } catch {
+      same = false; // "null" (sandboxed frames, file: pages) or malformed
+    }
+    if (!same) {
+      throw new HttpError(
+        403,
+        "forbidden_origin",
+        `Writes are only accepted from this service's own page, not from ${origin}`,
+      );
+    }
+  };
 
   const requireToken = (request: Request) => {
     if (config.token === undefined) return;
@@ -220,7 +450,13 @@ export function createApp(options: AppOptions): Handler {
     }
   };
 
-  const body = (request: Request) => readJson(request, config.maxBodyBytes);
+  const body = (request: Request) =>
+    readJson(request, {
+      maxBytes: config.maxBodyBytes,
+      maxDepth: config.maxJsonDepth,
+      timeoutMs: config.bodyTimeoutMs,
+      shutdownSignal: options.shutdownSignal,
+    });
 
   const scenarioName = (s: Scenario) => s.name;
 
@@ -235,7 +471,12 @@ export function createApp(options: AppOptions): Handler {
       ? await options.simulatePool.run(input, simulateOptions)
       : simulateRequest(input, { ...simulateOptions, runScenario: options.runScenario });
     if (!reply.ok) {
-      const headers = reply.status === 429 ? { "retry-after": "1" } : undefined;
+      if (reply.logDetail !== undefined) {
+        logError(`Engine error on POST ${url.pathname}:`, reply.logDetail);
+      }
+      const headers = reply.status === 429 || reply.status === 503
+        ? { "retry-after": reply.status === 429 ? "1" : "5" }
+        : undefined;
       throw new HttpError(reply.status, reply.code, reply.message, reply.issues, headers);
     }
     return json(reply.result);
@@ -264,14 +505,14 @@ export function createApp(options: AppOptions): Handler {
       ]);
     }
     const scenario = validScenario(submit.scenario);
-    if (submit.scenario_id !== undefined && !store.getScenario(submit.scenario_id)) {
+    if (submit.scenario_id !== undefined && !await db.getScenario(submit.scenario_id)) {
       throw new HttpError(404, "not_found", `No saved scenario "${submit.scenario_id}"`);
     }
     const input: Record<string, unknown> = { scenario: submit.scenario };
     if (submit.mode !== undefined) input.mode = submit.mode;
     if (submit.slopes !== undefined) input.slopes = submit.slopes;
     if (submit.scenario_id !== undefined) input.scenario_id = submit.scenario_id;
-    const job = store.submitJob({
+    const job = await db.submitJob({
       id: nanoid(),
       kind: submit.kind,
       name: scenarioName(scenario),
@@ -308,7 +549,8 @@ export function createApp(options: AppOptions): Handler {
           allow: methods.join(", "),
         });
       }
-      if (read !== "GET") requireToken(request);
+      // Saved designs and jobs are the shop's data: with a token set, reading them needs it too.
+      if (read !== "GET" || resource === "scenarios" || resource === "jobs") requireToken(request);
       return read;
     };
     const [resource, id, sub, subId, ...extra] = parts;
@@ -322,8 +564,8 @@ export function createApp(options: AppOptions): Handler {
           status: "ok",
           version: SERVICE_VERSION,
           uptime_s: Math.round((Date.now() - startedAtMs) / 100) / 10,
-          queue: store.countJobs(),
-          workers: { alive: store.aliveWorkers(config.leaseMs).length },
+          queue: await db.countJobs(),
+          workers: { alive: (await db.aliveWorkers(config.leaseMs)).length },
         });
       }
       case "materials": {
@@ -360,39 +602,41 @@ export function createApp(options: AppOptions): Handler {
       }
       case "scenarios": {
         if (id === undefined) {
-          if (allow("GET", "POST") === "GET") return json({ scenarios: store.listScenarios() });
+          if (allow("GET", "POST") === "GET") return json({ scenarios: await db.listScenarios() });
           const raw = await body(request);
           const scenario = validScenario(raw);
-          const head = store.createScenario(nanoid(12), scenarioName(scenario), raw);
+          const head = await db.createScenario(nanoid(12), scenarioName(scenario), raw);
           return json(head, 201, { location: `/api/scenarios/${head.id}` });
         }
         if (!SCENARIO_ID.test(id)) throw notFound(`No saved scenario "${id}"`);
         if (sub === undefined) {
           const m = allow("GET", "PUT", "DELETE");
           if (m === "GET") {
-            const saved = store.getScenario(id);
+            const saved = await db.getScenario(id);
             if (!saved) throw notFound(`No saved scenario "${id}"`);
             return json(saved);
           }
           if (m === "DELETE") {
-            if (!store.deleteScenario(id)) throw notFound(`No saved scenario "${id}"`);
+            if (!await db.deleteScenario(id)) throw notFound(`No saved scenario "${id}"`);
             return new Response(null, { status: 204 });
           }
-          if (!store.getScenario(id)) throw notFound(`No saved scenario "${id}"`);
+          if (!await db.getScenario(id)) throw notFound(`No saved scenario "${id}"`);
           const raw = await body(request);
-          const head = store.updateScenario(id, scenarioName(validScenario(raw)), raw);
+          const head = await db.updateScenario(id, scenarioName(validScenario(raw)), raw);
           if (!head) throw notFound(`No saved scenario "${id}"`);
           return json(head);
         }
         if (sub === "revisions" && extra.length === 0) {
           allow("GET");
           if (subId === undefined) {
-            const revisions = store.listRevisions(id);
+            const revisions = await db.listRevisions(id);
             if (!revisions) throw notFound(`No saved scenario "${id}"`);
             return json({ revisions });
           }
           const revision = Number(subId);
-          const found = /^[1-9]\d{0,8}$/.test(subId) ? store.getRevision(id, revision) : undefined;
+          const found = /^[1-9]\d{0,8}$/.test(subId)
+            ? await db.getRevision(id, revision)
+            : undefined;
           if (!found) throw notFound(`No revision ${subId} of scenario "${id}"`);
           return json(found);
         }
@@ -402,20 +646,20 @@ export function createApp(options: AppOptions): Handler {
         if (id === undefined) {
           if (allow("GET", "POST") === "GET") {
             const limit = Math.min(1000, Math.max(1, Number(url.searchParams.get("limit")) || 200));
-            return json({ jobs: store.listJobs({ limit }).map(jobSummary) });
+            return json({ jobs: (await db.listJobs({ limit })).map(jobSummary) });
           }
           return await submitJob(request);
         }
         if (subId !== undefined) break;
         if (sub === undefined) {
           allow("GET");
-          const job = store.getJob(id);
+          const job = await db.getJob(id);
           if (!job) throw notFound(`No job "${id}"`);
           return json(jobView(job));
         }
         if (sub === "cancel") {
           allow("POST");
-          const job = store.requestCancel(id);
+          const job = await db.requestCancel(id);
           if (!job) throw notFound(`No job "${id}"`);
           return json(
             { id: job.id, status: job.status, cancel_requested: job.cancel_requested },
@@ -424,9 +668,20 @@ export function createApp(options: AppOptions): Handler {
         }
         if (sub === "events") {
           allow("GET");
-          if (!store.getJobSummary(id)) throw notFound(`No job "${id}"`);
+          if (!await db.getJobSummary(id)) throw notFound(`No job "${id}"`);
+          if (openStreams >= config.maxEventStreams) {
+            throw new HttpError(
+              503,
+              "too_many_streams",
+              `${config.maxEventStreams} event streams are already open; poll /api/jobs/${id} or try again shortly`,
+              undefined,
+              { "retry-after": "5" },
+            );
+          }
+          openStreams++;
           return jobEvents(store, id, {
             pollMs: options.eventPollMs ?? 200,
+            onClose: () => openStreams--,
             // Event streams end on the client's disconnect or on service shutdown.
             signal: options.shutdownSignal
               ? AbortSignal.any([request.signal, options.shutdownSignal])
@@ -439,14 +694,9 @@ export function createApp(options: AppOptions): Handler {
     throw notFound(`No API route ${url.pathname}`);
   };
 
-  return async (request: Request): Promise<Response> => {
-    let url: URL;
+  const handle = async (request: Request, url: URL): Promise<Response> => {
     try {
-      url = new URL(request.url);
-    } catch {
-      return errorResponse(new HttpError(400, "bad_request", "Malformed request URL"));
-    }
-    try {
+      checkOrigin(request, url);
       if (url.pathname === "/api" || url.pathname.startsWith("/api/")) {
         return await route(request, url);
       }
@@ -466,10 +716,38 @@ export function createApp(options: AppOptions): Handler {
       throw new HttpError(404, "not_found", `No file ${url.pathname}`);
     } catch (error) {
       if (error instanceof HttpError) return errorResponse(error);
+      if (error instanceof StoreBusyError) {
+        return errorResponse(
+          new HttpError(
+            503,
+            "store_busy",
+            "The database is locked by another process; nothing was changed, try again shortly",
+            undefined,
+            { "retry-after": "1" },
+          ),
+        );
+      }
       logError(`Unexpected error on ${request.method} ${url.pathname}:`, error);
       return errorResponse(
         new HttpError(500, "internal_error", "Internal error; it has been logged"),
       );
     }
+  };
+
+  return async (request: Request): Promise<Response> => {
+    let url: URL;
+    try {
+      url = new URL(request.url);
+    } catch {
+      return errorResponse(new HttpError(400, "bad_request", "Malformed request URL"));
+    }
+    const response = await handle(request, url);
+    const api = url.pathname === "/api" || url.pathname.startsWith("/api/");
+    const extra = api ? API_SECURITY_HEADERS : PAGE_SECURITY_HEADERS;
+    for (const [name, value] of Object.entries(extra)) response.headers.set(name, value);
+    if (api && !response.headers.has("cache-control")) {
+      response.headers.set("cache-control", "no-store");
+    }
+    return response;
   };
 }

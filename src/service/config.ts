@@ -13,8 +13,14 @@ export interface ServiceConfig {
   port: number;
   /** SQLite database file (EVENFILL_DB, --db; default data/evenfill.db). */
   dbPath: string;
-  /** Bearer token for write endpoints (EVENFILL_TOKEN only, never a flag). Required off loopback. */
+  /** Bearer token for writes and for reads of saved scenarios and jobs (EVENFILL_TOKEN only, never a flag). Required off loopback. */
   token: string | undefined;
+  /**
+   * Host names (no port) the service answers to besides loopback ones and the
+   * bound address (EVENFILL_ALLOWED_HOSTS, --allowed-hosts; comma-separated;
+   * default none). Bound to loopback, any other Host header gets 403.
+   */
+  allowedHosts: string[];
   /** Worker processes the service starts itself (EVENFILL_WORKERS, --workers; default 1). */
   workers: number;
   /** Wall-clock limit of one job attempt, ms (EVENFILL_JOB_TIME_LIMIT_S, --job-time-limit-s; default 300 s). */
@@ -23,6 +29,14 @@ export interface ServiceConfig {
   queueLimit: number;
   /** Largest accepted request body, bytes (EVENFILL_MAX_BODY_BYTES, --max-body-bytes; default 1 MiB). */
   maxBodyBytes: number;
+  /** Deepest nesting of arrays and objects a JSON body may have (default 64). */
+  maxJsonDepth: number;
+  /** Time a client has to send a whole request body, ms (EVENFILL_BODY_TIMEOUT_MS, --body-timeout-ms; default 30 s); 408 after it. */
+  bodyTimeoutMs: number;
+  /** Open job event streams beyond which new ones get 503 (EVENFILL_MAX_EVENT_STREAMS, --max-event-streams; default 32). */
+  maxEventStreams: number;
+  /** How long SIGTERM waits for open requests before the service exits anyway, ms (EVENFILL_SHUTDOWN_DEADLINE_MS, --shutdown-deadline-ms; default 10 s). */
+  shutdownDeadlineMs: number;
   /** Time budget of a synchronous simulate, ms (EVENFILL_SIMULATE_LIMIT_MS, --simulate-limit-ms; default 10 s). */
   simulateLimitMs: number;
   /** Web Workers that run synchronous simulations off the event loop (EVENFILL_SIMULATE_WORKERS, --simulate-workers; default 2). */
@@ -50,10 +64,15 @@ export function defaultConfig(): ServiceConfig {
     port: 8000,
     dbPath: "data/evenfill.db",
     token: undefined,
+    allowedHosts: [],
     workers: 1,
     jobTimeLimitMs: 300_000,
     queueLimit: 100,
     maxBodyBytes: 1 << 20,
+    maxJsonDepth: 64,
+    bodyTimeoutMs: 30_000,
+    maxEventStreams: 32,
+    shutdownDeadlineMs: 10_000,
     simulateLimitMs: 10_000,
     simulateWorkers: 2,
     simulateMaxElements: 400,
@@ -112,6 +131,10 @@ export function loadConfig(
     "lease-ms",
     "shutdown-grace-ms",
     "enable-test-jobs",
+    "allowed-hosts",
+    "body-timeout-ms",
+    "max-event-streams",
+    "shutdown-deadline-ms",
   ]);
   for (const name of flags.keys()) {
     if (!known.has(name)) throw new ConfigError(`Unknown option --${name}`);
@@ -143,6 +166,22 @@ export function loadConfig(
   if (lease !== undefined) config.leaseMs = Math.trunc(number("lease", lease, 300));
   const grace = get("shutdown-grace-ms", "EVENFILL_SHUTDOWN_GRACE_MS");
   if (grace !== undefined) config.shutdownGraceMs = Math.trunc(number("shutdown grace", grace, 0));
+  const hosts = get("allowed-hosts", "EVENFILL_ALLOWED_HOSTS");
+  if (hosts !== undefined) {
+    config.allowedHosts = hosts.split(",").map((h) => h.trim().toLowerCase()).filter((h) =>
+      h !== ""
+    );
+  }
+  const bodyTimeout = get("body-timeout-ms", "EVENFILL_BODY_TIMEOUT_MS");
+  if (bodyTimeout !== undefined) config.bodyTimeoutMs = number("body timeout", bodyTimeout, 10);
+  const streams = get("max-event-streams", "EVENFILL_MAX_EVENT_STREAMS");
+  if (streams !== undefined) {
+    config.maxEventStreams = Math.trunc(number("max event streams", streams, 1));
+  }
+  const deadline = get("shutdown-deadline-ms", "EVENFILL_SHUTDOWN_DEADLINE_MS");
+  if (deadline !== undefined) {
+    config.shutdownDeadlineMs = Math.trunc(number("shutdown deadline", deadline, 0));
+  }
   const test = get("enable-test-jobs", "EVENFILL_ENABLE_TEST_JOBS");
   config.enableTestJobs = test === "1" || test === "true";
   return config;

@@ -1,4 +1,4 @@
-import type { JobStatus, JobStore } from "../store/store.ts";
+import { type JobStatus, type JobStore, StoreBusyError } from "../store/store.ts";
 
 /** Options of {@link jobEvents}. */
 export interface JobEventsOptions {
@@ -8,6 +8,8 @@ export interface JobEventsOptions {
   signal?: AbortSignal;
   /** Comment line interval that keeps proxies from closing an idle stream, ms (default 15 000). */
   keepAliveMs?: number;
+  /** Called once when the stream ends, however it ends (the service counts open streams). */
+  onClose?: () => void;
 }
 
 const FINAL: ReadonlySet<JobStatus> = new Set(["done", "failed", "cancelled"]);
@@ -24,6 +26,7 @@ export function jobEvents(store: JobStore, id: string, options: JobEventsOptions
   let closed = false;
   let eventId = 0;
   const stop = () => {
+    if (!closed) options.onClose?.();
     closed = true;
     if (timer !== undefined) clearInterval(timer);
     timer = undefined;
@@ -64,6 +67,8 @@ export function jobEvents(store: JobStore, id: string, options: JobEventsOptions
             }
           }
         } catch (error) {
+          // Another process holds the database's lock: look again at the next tick.
+          if (error instanceof StoreBusyError) return;
           controller.error(error);
           stop();
           return;

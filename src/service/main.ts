@@ -1,13 +1,15 @@
 /**
  * `deno task start`: open the store, serve the app on 127.0.0.1 (by default),
  * and start the service's own worker processes. SIGTERM / SIGINT stop
- * accepting requests, stop the workers gracefully (their jobs go back to the
- * queue), and close the store.
+ * accepting requests, close event streams, wait for open requests up to the
+ * shutdown deadline (stuck handlers and slow clients do not keep the process
+ * alive), stop the workers gracefully (their jobs go back to the queue), and
+ * close the store.
  *
  * @module
  */
 import { SqliteStore } from "../store/sqlite_store.ts";
-import { createApp } from "./app.ts";
+import { createApp, SERVICE_STORE_BUSY_TIMEOUT_MS } from "./app.ts";
 import { ConfigError, isLoopback, loadConfig, type ServiceConfig } from "./config.ts";
 import { SimulatePool } from "./simulate_pool.ts";
 import { WorkerPool } from "./worker_pool.ts";
@@ -37,9 +39,11 @@ export async function main(args: readonly string[]): Promise<number> {
     console.error(`evenfill service: ${refusal}`);
     return 1;
   }
-  const store = SqliteStore.open(config.dbPath);
+  const store = SqliteStore.open(config.dbPath, { busyTimeoutMs: SERVICE_STORE_BUSY_TIMEOUT_MS });
   const shutdown = new AbortController();
-  const simulatePool = new SimulatePool(config.simulateWorkers);
+  const simulatePool = new SimulatePool(config.simulateWorkers, {
+    queueTimeoutMs: Math.max(5000, 2 * config.simulateLimitMs),
+  });
   const handler = createApp({ store, config, simulatePool, shutdownSignal: shutdown.signal });
   const server = Deno.serve({
     hostname: config.host,
@@ -60,7 +64,20 @@ export async function main(args: readonly string[]): Promise<number> {
   const signal = await stopping;
   console.log(JSON.stringify({ event: "stopping", signal }));
   shutdown.abort();
-  await server.shutdown();
+  let deadline: ReturnType<typeof setTimeout> | undefined;
+  const finished = await Promise.race([
+    server.shutdown().then(() => true),
+    new Promise<false>((resolve) => {
+      deadline = setTimeout(() => resolve(false), config.shutdownDeadlineMs);
+    }),
+  ]);
+  clearTimeout(deadline);
+  if (!finished) {
+    console.log(JSON.stringify({
+      event: "shutdown_deadline",
+      message: `requests still open after ${config.shutdownDeadlineMs} ms are dropped`,
+    }));
+  }
   simulatePool.close();
   await pool.stop();
   store.close();

@@ -14,17 +14,28 @@ export interface SimulateRequestOptions {
   runScenario?: typeof runScenario;
 }
 
-/** What a synchronous simulation answers: the result JSON, or an error with its HTTP status. */
+/**
+ * What a synchronous simulation answers: the result JSON, or an error with its
+ * HTTP status. `logDetail` (an engine exception's stack) is for the service's
+ * log, never for the client.
+ */
 export type SimulateReply =
   | { ok: true; result: unknown }
-  | { ok: false; status: number; code: string; message: string; issues?: ScenarioIssue[] };
+  | {
+    ok: false;
+    status: number;
+    code: string;
+    message: string;
+    issues?: ScenarioIssue[];
+    logDetail?: string;
+  };
 
 class Deadline extends Error {}
 
 /**
  * Validate and simulate one scenario within a size and time budget: the body of
  * `POST /api/simulate`, runnable in the request's thread or in a simulation
- * worker. Never throws on bad input.
+ * worker. Never throws: bad input is a 400, an engine exception a 422.
  */
 export function simulateRequest(input: unknown, options: SimulateRequestOptions): SimulateReply {
   const parsed = parseScenario(input, { materialIds: LIBRARY_MATERIAL_IDS });
@@ -58,12 +69,23 @@ export function simulateRequest(input: unknown, options: SimulateRequestOptions)
       },
     });
   } catch (error) {
-    if (!(error instanceof Deadline)) throw error;
+    if (error instanceof Deadline) {
+      return {
+        ok: false,
+        status: 422,
+        code: "simulation_time_limit",
+        message: `The simulation did not finish within ${options.limitMs} ms`,
+      };
+    }
+    // Any exception from the engine (one it did not turn into a value): the
+    // request fails with its message; the stack goes to the service's log.
+    const message = error instanceof Error ? error.message : String(error);
     return {
       ok: false,
       status: 422,
-      code: "simulation_time_limit",
-      message: `The simulation did not finish within ${options.limitMs} ms`,
+      code: "simulation_failed",
+      message: `The simulation stopped on an engine error: ${message}`,
+      logDetail: error instanceof Error ? (error.stack ?? message) : message,
     };
   }
   if (!outcome.ok) {

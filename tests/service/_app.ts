@@ -1,4 +1,4 @@
-import { createApp, type Handler } from "../../src/service/app.ts";
+import { createApp, type Handler, SERVICE_STORE_BUSY_TIMEOUT_MS } from "../../src/service/app.ts";
 import { defaultConfig, type ServiceConfig } from "../../src/service/config.ts";
 import { SqliteStore } from "../../src/store/sqlite_store.ts";
 
@@ -29,7 +29,8 @@ export async function testApp(overrides: Partial<ServiceConfig> = {}): Promise<T
     publicDir,
     ...overrides,
   };
-  const store = SqliteStore.open(config.dbPath);
+  // As the service opens it: a short busy timeout, retried by the app.
+  const store = SqliteStore.open(config.dbPath, { busyTimeoutMs: SERVICE_STORE_BUSY_TIMEOUT_MS });
   const handler = createApp({ store, config, eventPollMs: 20, logError: () => {} });
   const request = (path: string, init?: RequestInit) =>
     handler(new Request(`http://127.0.0.1${path}`, init));

@@ -9,6 +9,8 @@ import { DEMO_PATH, QUICK_PATH, readEvents, readJson, testApp } from "./_app.ts"
 // deno-lint-ignore no-explicit-any
 type Json = any;
 
+const JSON_TYPE = { "content-type": "application/json" };
+
 async function errorOf(res: Response, status: number, code: string): Promise<Json> {
   assert.equal(res.status, status, `expected ${status} ${code}, got ${res.status}`);
   const body = await res.json();
@@ -130,7 +132,11 @@ Deno.test("POST /api/simulate error statuses: 400 issues, 413 body and network s
     await errorOf(await app.send("POST", "/api/simulate", huge), 413, "payload_too_large");
     // Without a content-length header the limit still holds (streamed body).
     const stream = new Blob([JSON.stringify(huge)]).stream();
-    const streamed = await app.request("/api/simulate", { method: "POST", body: stream });
+    const streamed = await app.request("/api/simulate", {
+      method: "POST",
+      body: stream,
+      headers: JSON_TYPE,
+    });
     await errorOf(streamed, 413, "payload_too_large");
     const elements = wire.runners.length + wire.gates.length + wire.cavities.length;
     assert.ok(elements > 8);
@@ -157,6 +163,7 @@ Deno.test("POST /api/simulate through the simulation pool (as the service runs i
         new Request(`http://127.0.0.1/api/simulate${query}`, {
           method: "POST",
           body: JSON.stringify(body),
+          headers: JSON_TYPE,
         }),
       );
     const wire = await readJson(DEMO_PATH) as Json;
@@ -181,14 +188,21 @@ Deno.test("POST /api/simulate through the simulation pool (as the service runs i
     pool.close();
   }
   // With every worker busy and the waiting line full, the answer is 429 + Retry-After.
-  const tiny = new SimulatePool(1, 1);
+  const tiny = new SimulatePool(1, { maxWaiting: 1 });
   try {
     const handler = createApp({ store: app.store, config: app.config, simulatePool: tiny });
     const wire = await Deno.readTextFile(DEMO_PATH);
     const responses = await Promise.all(
       Array.from(
         { length: 4 },
-        () => handler(new Request("http://127.0.0.1/api/simulate", { method: "POST", body: wire })),
+        () =>
+          handler(
+            new Request("http://127.0.0.1/api/simulate", {
+              method: "POST",
+              body: wire,
+              headers: JSON_TYPE,
+            }),
+          ),
       ),
     );
     const statuses = responses.map((r) => r.status).sort();
@@ -208,6 +222,7 @@ Deno.test("POST /api/simulate through the simulation pool (as the service runs i
       new Request("http://127.0.0.1/api/simulate", {
         method: "POST",
         body: await Deno.readTextFile(DEMO_PATH),
+        headers: JSON_TYPE,
       }),
     );
     await errorOf(res, 422, "simulation_time_limit");
@@ -228,7 +243,11 @@ Deno.test("POST /api/simulate: a domain failure is 422 simulation_failed", async
     });
     const wire = await readJson(QUICK_PATH);
     const res = await handler(
-      new Request("http://127.0.0.1/api/simulate", { method: "POST", body: JSON.stringify(wire) }),
+      new Request("http://127.0.0.1/api/simulate", {
+        method: "POST",
+        body: JSON.stringify(wire),
+        headers: JSON_TYPE,
+      }),
     );
     const body = await errorOf(res, 422, "simulation_failed");
     assert.equal(body.error.message, "did not converge");
@@ -559,9 +578,10 @@ Deno.test("unknown API route → 404; wrong method → 405 with Allow", async ()
   }
 });
 
-Deno.test("with a token configured, write endpoints need it (401 without), reads do not", async () => {
+Deno.test("with a token configured, writes and reads of saved scenarios and jobs need it (401 without); health, materials, demos and the page do not", async () => {
   const app = await testApp({ token: "s3cret-token" });
   try {
+    const auth = { authorization: "Bearer s3cret-token" };
     const scenario = await readJson(QUICK_PATH);
     await errorOf(await app.send("POST", "/api/scenarios", scenario), 401, "unauthorized");
     await errorOf(
@@ -571,12 +591,34 @@ Deno.test("with a token configured, write endpoints need it (401 without), reads
       401,
       "unauthorized",
     );
-    const ok = await app.send("POST", "/api/scenarios", scenario, {
-      authorization: "Bearer s3cret-token",
-    });
+    const ok = await app.send("POST", "/api/scenarios", scenario, auth);
     assert.equal(ok.status, 201);
-    assert.equal((await app.request("/api/scenarios")).status, 200);
-    await (await app.request("/api/health")).body?.cancel();
+    const { id } = await ok.json();
+    const job = await (await app.send("POST", "/api/jobs", { kind: "optimize", scenario }, auth))
+      .json();
+    // Saved designs and jobs are the shop's data: reading them needs the token too.
+    for (
+      const path of [
+        "/api/scenarios",
+        `/api/scenarios/${id}`,
+        `/api/scenarios/${id}/revisions`,
+        `/api/scenarios/${id}/revisions/1`,
+        "/api/jobs",
+        `/api/jobs/${job.id}`,
+        `/api/jobs/${job.id}/events`,
+      ]
+    ) {
+      const res = await errorOf(await app.request(path), 401, "unauthorized");
+      assert.ok(res, path);
+      const allowed = await app.request(path, { headers: auth });
+      assert.equal(allowed.status, 200, path);
+      await allowed.body?.cancel();
+    }
+    for (const path of ["/api/health", "/api/materials", "/api/demos", "/api/openapi.json", "/"]) {
+      const res = await app.request(path);
+      assert.equal(res.status, 200, path);
+      await res.body?.cancel();
+    }
   } finally {
     await app.close();
   }
@@ -612,7 +654,9 @@ Deno.test("an unexpected error is a 500 with no stack trace and is logged", asyn
 });
 
 Deno.test("simulation pool: a worker that dies is replaced, and its slot answers the next request", async () => {
-  const pool = new SimulatePool(1, 64, new URL("./_failing_worker.ts", import.meta.url).href);
+  const pool = new SimulatePool(1, {
+    workerUrl: new URL("./_failing_worker.ts", import.meta.url).href,
+  });
   const options = { history: false, limitMs: 1000, maxElements: 100 };
   try {
     await assert.rejects(pool.run("die", options), /simulation worker failed/);

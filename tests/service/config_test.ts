@@ -17,6 +17,27 @@ Deno.test("config: defaults bind loopback; flags override the environment", () =
   assert.equal(loadConfig(["--enable-test-jobs"], {}).enableTestJobs, true);
 });
 
+Deno.test("config: hardening limits have defaults, flags and environment variables", () => {
+  const defaults = loadConfig([], {});
+  assert.deepEqual(
+    [defaults.bodyTimeoutMs, defaults.maxEventStreams, defaults.shutdownDeadlineMs],
+    [30_000, 32, 10_000],
+  );
+  assert.equal(defaults.maxJsonDepth, 64);
+  assert.deepEqual(defaults.allowedHosts, []);
+  const set = loadConfig(["--body-timeout-ms", "500", "--max-event-streams=4"], {
+    EVENFILL_SHUTDOWN_DEADLINE_MS: "1500",
+    EVENFILL_ALLOWED_HOSTS: "MoldShop.lan, press-7 ,",
+  });
+  assert.deepEqual([set.bodyTimeoutMs, set.maxEventStreams, set.shutdownDeadlineMs], [
+    500,
+    4,
+    1500,
+  ]);
+  assert.deepEqual(set.allowedHosts, ["moldshop.lan", "press-7"]);
+  assert.throws(() => loadConfig(["--max-event-streams", "0"], {}), ConfigError);
+});
+
 Deno.test("config: bad values and unknown flags are refused with a plain message", () => {
   assert.throws(() => loadConfig(["--port", "http"], {}), ConfigError);
   assert.throws(() => loadConfig(["--port", "70000"], {}), ConfigError);

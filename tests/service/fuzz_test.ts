@@ -138,7 +138,11 @@ Deno.test("fuzz: 3000 mutated scenario bodies never produce a 500", async () => 
         ? (random() < 0.2 ? body : `{"kind":"optimize","scenario":${body}}`)
         : body;
       const res = await handler(
-        new Request(`http://127.0.0.1${route}`, { method: "POST", body: payload }),
+        new Request(`http://127.0.0.1${route}`, {
+          method: "POST",
+          body: payload,
+          headers: { "content-type": "application/json" },
+        }),
       );
       counts[res.status] = (counts[res.status] ?? 0) + 1;
       const text = await res.text();
