@@ -62,14 +62,17 @@ export function openApiDocument(version: string): Schema {
   const notFound = error("unknown id");
   const scenarioId = idParam("id", "saved scenario id");
   const jobId = idParam("id", "job id");
-  return {
+  const document = {
     openapi: "3.1.0",
     info: {
       title: "evenfill service",
       version,
       description:
         "Runner balancing for multi-cavity injection molds: simulate scenarios, save them with revisions, " +
-        "and run balancing optimizations as background jobs. Errors are always {error: {code, message, issues?}}.",
+        "and run balancing optimizations as background jobs. Errors are always {error: {code, message, issues?}}. " +
+        "Any request may also get 403 forbidden_host (a host name the service does not answer to), a write 403 " +
+        "forbidden_origin (another site's Origin), and a store access 503 store_busy with Retry-After (the database " +
+        "is locked by another process; nothing was changed).",
     },
     servers: [{ url: "/" }],
     components: {
@@ -79,7 +82,7 @@ export function openApiDocument(version: string): Schema {
           type: "http",
           scheme: "bearer",
           description:
-            "Required on write endpoints when EVENFILL_TOKEN is set (always off loopback).",
+            "Required when EVENFILL_TOKEN is set (always off loopback) on every write and on every read of saved scenarios and jobs.",
         },
       },
     },
@@ -235,4 +238,20 @@ export function openApiDocument(version: string): Schema {
       },
     },
   };
+  for (const [path, operations] of Object.entries(document.paths)) {
+    for (const operation of Object.values(operations) as Record<string, unknown>[]) {
+      const responses = operation.responses as Record<string, unknown>;
+      if (path.startsWith("/api/scenarios") || path.startsWith("/api/jobs")) {
+        operation.security = write.security;
+      }
+      if (operation.requestBody !== undefined) {
+        responses[408] = error("the body did not arrive within the body timeout");
+        responses[415] = error("the body is not declared application/json");
+      }
+      if (path === "/api/jobs/{id}/events") {
+        responses[503] = error("too many event streams open; see Retry-After");
+      }
+    }
+  }
+  return document;
 }

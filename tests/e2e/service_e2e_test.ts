@@ -167,6 +167,7 @@ Deno.test({
       const saved = await (await post(service.base, "/api/scenarios", quickScenario)).json();
       const put = await fetch(`${service.base}/api/scenarios/${saved.id}`, {
         method: "PUT",
+        headers: { "content-type": "application/json" },
         body: JSON.stringify({ ...quickScenario, name: "second revision" }),
       });
       assert.equal(put.status, 200);
@@ -395,6 +396,103 @@ Deno.test({
       assert.equal(job.attempts, 0);
     } finally {
       await worker?.stop();
+      await service.proc.stop();
+      await Deno.remove(dir, { recursive: true });
+    }
+  },
+});
+
+Deno.test({
+  name: "e2e: SIGTERM exits even with a client trickling its body and another stuck in its headers",
+  sanitizeResources: false,
+  sanitizeOps: false,
+  async fn() {
+    const { dir, db } = await tempDb();
+    const service = await startService(db, [
+      "--workers",
+      "0",
+      "--shutdown-deadline-ms",
+      "1000",
+      "--body-timeout-ms",
+      "600000",
+    ]);
+    const conns: Deno.Conn[] = [];
+    try {
+      const encoder = new TextEncoder();
+      const slowBody = await Deno.connect({ hostname: "127.0.0.1", port: service.port });
+      conns.push(slowBody);
+      await slowBody.write(encoder.encode(
+        `POST /api/scenarios HTTP/1.1\r\nHost: 127.0.0.1:${service.port}\r\n` +
+          "Content-Type: application/json\r\nContent-Length: 100000\r\n\r\n{",
+      ));
+      const slowHeaders = await Deno.connect({ hostname: "127.0.0.1", port: service.port });
+      conns.push(slowHeaders);
+      await slowHeaders.write(encoder.encode(`GET /api/health HTTP/1.1\r\nHost: 127.0.0.1`));
+      // The server has the first request's headers once it answers another request.
+      assert.equal((await fetch(`${service.base}/api/health`).then((r) => r.json())).status, "ok");
+      service.proc.kill("SIGTERM");
+      // A guard against hanging (the process used to wait for these clients forever).
+      let timer: ReturnType<typeof setTimeout> | undefined;
+      const stuck = new Promise<"stuck">((resolve) => {
+        timer = setTimeout(() => resolve("stuck"), 30_000);
+      });
+      const status = await Promise.race([service.proc.status, stuck]);
+      clearTimeout(timer);
+      assert.notEqual(status, "stuck", service.proc.lines.join("\n"));
+      assert.equal((status as Deno.CommandStatus).code, 0);
+      assert.ok(service.proc.lines.some((l) => l.includes('"event":"stopped"')));
+    } finally {
+      for (const c of conns) {
+        try {
+          c.close();
+        } catch {
+          // already closed by the server
+        }
+      }
+      await service.proc.stop();
+      await Deno.remove(dir, { recursive: true });
+    }
+  },
+});
+
+Deno.test({
+  name:
+    "e2e: on 127.0.0.1 a rebound host name and a cross-site text/plain POST are refused; the page carries its CSP",
+  sanitizeResources: false,
+  sanitizeOps: false,
+  async fn() {
+    const { dir, db } = await tempDb();
+    const service = await startService(db, ["--workers", "0"]);
+    try {
+      // fetch() will not send a forged Host header; a browser after DNS rebinding does.
+      const conn = await Deno.connect({ hostname: "127.0.0.1", port: service.port });
+      await conn.write(new TextEncoder().encode(
+        "GET /api/scenarios HTTP/1.1\r\nHost: rebind.evil.example:8000\r\nConnection: close\r\n\r\n",
+      ));
+      const answer = new TextDecoder().decode(await new Response(conn.readable).arrayBuffer());
+      assert.match(answer, /^HTTP\/1\.1 403/);
+      assert.match(answer, /"forbidden_host"/);
+      // What a web page's form or no-preflight fetch can send.
+      const form = await fetch(`${service.base}/api/jobs`, {
+        method: "POST",
+        headers: { "content-type": "text/plain", origin: "http://evil.example" },
+        body: JSON.stringify({ kind: "optimize", scenario: quickScenario }),
+      });
+      assert.equal(form.status, 403);
+      await form.body?.cancel();
+      const plain = await fetch(`${service.base}/api/jobs`, {
+        method: "POST",
+        headers: { "content-type": "text/plain" },
+        body: JSON.stringify({ kind: "optimize", scenario: quickScenario }),
+      });
+      assert.equal(plain.status, 415);
+      await plain.body?.cancel();
+      const jobs = await (await fetch(`${service.base}/api/jobs`)).json();
+      assert.deepEqual(jobs.jobs, [], "nothing queued");
+      const page = await fetch(`${service.base}/`);
+      assert.match(page.headers.get("content-security-policy") ?? "", /frame-ancestors 'none'/);
+      await page.body?.cancel();
+    } finally {
       await service.proc.stop();
       await Deno.remove(dir, { recursive: true });
     }
