@@ -10,7 +10,13 @@ import {
   type Sensitivities,
   tangentSensitivities,
 } from "./sensitivities.ts";
-import { snapDesign, type SnapReport } from "./snap_design.ts";
+import {
+  snapDesign,
+  snapMethod,
+  snappedBetter,
+  type SnapReport,
+  snapVerdict,
+} from "./snap_design.ts";
 import { cutterCatalogue } from "./cutters.ts";
 import {
   formulateStep,
@@ -438,8 +444,9 @@ export async function optimizeBalance(
         if (!second.ok) break;
         simulations += second.outcome.simulations;
         const refined = remap(space, second.outcome.space, second.outcome.after);
-        if (judge(refined) < judge(after)) {
+        if (snappedBetter(refined, after, judge)) {
           after = refined;
+          const continuousOf = new Map(space.variables.map((v, j) => [v.element, current.x[j]]));
           const runnerChoices = space.variables.flatMap((v, j) =>
             v.kind === "runner"
               ? [{
@@ -450,14 +457,19 @@ export async function optimizeBalance(
               }]
               : []
           );
+          // The gates' choices name the whole tool's continuous optimum, not the re-balance's.
+          const gateChoices = (second.outcome.snap?.choices ?? []).map((c) => ({
+            ...c,
+            continuous: continuousOf.get(c.element) ?? c.continuous,
+          }));
           snap = {
             evaluation: refined,
             simulations: snapped.simulations + second.outcome.simulations,
-            choices: [...runnerChoices, ...(second.outcome.snap?.choices ?? [])],
+            choices: [...runnerChoices, ...gateChoices],
             message:
-              `runner cutters chosen together with the gates free, gates re-balanced and snapped: ${
-                second.outcome.snap?.message ?? "no gate snapping"
-              }`,
+              `runner cutters chosen together with the gates free, gates re-balanced and snapped to ${
+                snapMethod(runnerCatalogue)
+              }; ${snapVerdict(current, refined)}`,
           };
         }
         if (after.feasible || round + 1 >= CUTTER_ROUNDS) break;
@@ -481,7 +493,7 @@ export async function optimizeBalance(
     });
     if (fixedOutcome) {
       simulations += fixedOutcome.simulations;
-      if (judge(fixedOutcome.evaluation) < judge(after)) {
+      if (snappedBetter(fixedOutcome.evaluation, after, judge)) {
         after = fixedOutcome.evaluation;
         snap = {
           ...fixedOutcome,

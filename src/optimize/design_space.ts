@@ -29,6 +29,12 @@ export interface DesignVariable {
    * rule-of-thumb lower bound may be undercut by {@link RULE_CUTTER_TOLERANCE}.
    */
   cutterLower: number;
+  /**
+   * The largest cutter or gate step acceptable when snapping, m: `upper`, except that a
+   * rule-of-thumb upper bound (gate ≤ 60 % of wall) may be exceeded by
+   * {@link RULE_CUTTER_TOLERANCE}; scenario limits and the cavity wall never are.
+   */
+  cutterUpper: number;
   /** Why the bounds are what they are, for an infeasibility report. */
   lowerReason: string;
   upperReason: string;
@@ -53,8 +59,9 @@ export interface DesignSpace {
 
 /**
  * How far a cutter may fall under a rule-of-thumb lower bound (a 5/32 in cutter, 3.97 mm,
- * for a 4.0 mm rule): 3 %, our own judgement, no source. Scenario limits and steel-safe
- * floors are never undercut.
+ * for a 4.0 mm rule), or a gate step rise above a rule-of-thumb upper bound (1.10 mm for a
+ * 1.08 mm rule): 3 %, our own judgement, no source. Scenario limits, the cavity wall and
+ * steel-safe floors are never crossed.
  */
 export const RULE_CUTTER_TOLERANCE = 0.03;
 
@@ -76,7 +83,10 @@ export function designSpace(scenario: Scenario): DesignSpace {
   const conflicts: string[] = [];
 
   const push = (
-    v: Omit<DesignVariable, "lower" | "upper" | "lowerReason" | "upperReason" | "cutterLower">,
+    v: Omit<
+      DesignVariable,
+      "lower" | "upper" | "lowerReason" | "upperReason" | "cutterLower" | "cutterUpper"
+    >,
     bounds: {
       lower: Bound[];
       upper: Bound[];
@@ -110,7 +120,11 @@ export function designSpace(scenario: Scenario): DesignSpace {
     for (const [value, , rule] of bounds.lower) {
       cutterLower = Math.max(cutterLower, rule ? value * (1 - RULE_CUTTER_TOLERANCE) : value);
     }
-    variables.push({ ...v, lower, upper, lowerReason, upperReason, cutterLower });
+    let cutterUpper = Infinity;
+    for (const [value, , rule] of bounds.upper) {
+      cutterUpper = Math.min(cutterUpper, rule ? value * (1 + RULE_CUTTER_TOLERANCE) : value);
+    }
+    variables.push({ ...v, lower, upper, lowerReason, upperReason, cutterLower, cutterUpper });
   };
 
   const { parentOf } = tree;
@@ -172,7 +186,7 @@ export function designSpace(scenario: Scenario): DesignSpace {
     if (rules) {
       const [lo, hi] = edge ? EDGE_GATE_WALL_FRACTION : ROUND_GATE_WALL_FRACTION;
       lower.push([mmToM(lo * w), `gate ≥ ${lo * 100} % of wall rule`, true]);
-      upper.push([mmToM(hi * w), `gate ≤ ${hi * 100} % of wall rule`]);
+      upper.push([mmToM(hi * w), `gate ≤ ${hi * 100} % of wall rule`, true]);
     }
     if (steelSafe) lower.push([mmToM(size), "steel-safe: today's size"]);
     push({

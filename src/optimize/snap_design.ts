@@ -15,10 +15,13 @@ import { modelResponses } from "./slp_step.ts";
  * scenario's cutter catalogue, gates to a 0.05 mm step (0.002 in for the inch
  * series; common practice, no source: gates are ground or spark-eroded to size).
  * Each size chooses between its two neighbours (in steel-safe mode only the one
- * above, never below today's). Start from the nearest runner cutters and the gate
- * step above, then repair by flips ranked with the linear model and confirmed by
- * full simulation (sizes the optimum made equal flip together), then (when
- * feasible) try cheaper flips. Reports honestly when snapping costs balance.
+ * above, never below today's). Start from the best, on the full simulation, of the
+ * nearest runner cutters with the gate step above and plain rounding (every size to its
+ * nearest permitted step; in steel-safe mode also every size rounded up), then repair
+ * by flips ranked with the linear model and confirmed by full simulation (sizes the
+ * optimum made equal flip together), then (when feasible) try cheaper flips. A design
+ * that meets every limit is kept over one that does not, whatever the merit. Reports the
+ * snapped design against the continuous optimum, both as simulated.
  *
  * @module
  */
@@ -65,6 +68,47 @@ function gateCandidates(size: number, step: number, inch: boolean): Cutter[] {
 export interface SnapDesignOptions {
   /** The optimizer's merit (lower is better). */
   merit: (e: DesignEvaluation) => number;
+  /**
+   * The continuous optimum the message compares the snapped design with (default
+   * `continuous`; differs when `continuous` is a sub-problem's optimum, e.g. the gates
+   * re-balanced with the runners already on cutters).
+   */
+  reference?: DesignEvaluation;
+}
+
+/**
+ * Whether snapped design `a` is to be kept over `b`: meeting every limit comes first, then
+ * the lower `merit` (by more than 1e-9).
+ */
+export function snappedBetter(
+  a: DesignEvaluation,
+  b: DesignEvaluation,
+  merit: (e: DesignEvaluation) => number,
+): boolean {
+  if (a.feasible !== b.feasible) return a.feasible;
+  return merit(a) < merit(b) - 1e-9;
+}
+
+/** What the sizes were snapped to: "metric cutters and 0.05 mm gate steps". */
+export function snapMethod(catalogue: CutterCatalogue): string {
+  if (catalogue.kind === "continuous") return "continuous sizes";
+  return `${catalogue.system} cutters and ${
+    catalogue.system === "inch" ? "0.002 in" : "0.05 mm"
+  } gate steps`;
+}
+
+/**
+ * The snapped design against the continuous optimum, both as simulated: whether it meets every
+ * limit (or which it breaks) and the imbalance of each, e.g. "every limit met; imbalance 1.17 %
+ * continuous → 1.40 % in cutter sizes".
+ */
+export function snapVerdict(continuous: DesignEvaluation, snapped: DesignEvaluation): string {
+  const limits = snapped.feasible
+    ? "every limit met"
+    : `the snapped design breaks: ${snapped.violations.map((x) => x.message).join("; ")}`;
+  return `${limits}; imbalance ${continuous.imbalancePercent.toFixed(2)} % continuous (${
+    continuous.feasible ? "every limit met" : "limits not met"
+  }) → ${snapped.imbalancePercent.toFixed(2)} % in cutter sizes`;
 }
 
 /** Snap `continuous` to cuttable sizes; `sensitivities` (at or near it) rank the repair flips. */
@@ -102,7 +146,7 @@ export function snapDesign(
       list = up.length > 0 ? up : [{ size: v.current, label: `${mToMm(v.current)} mm (today)` }];
     }
     const inside = list.filter((c) =>
-      c.size >= v.cutterLower * (1 - 1e-9) && c.size <= v.upper * (1 + 1e-9)
+      c.size >= v.cutterLower * (1 - 1e-9) && c.size <= v.cutterUpper * (1 + 1e-9)
     );
     return inside.length > 0 ? inside : list;
   });
@@ -138,9 +182,9 @@ export function snapDesign(
     const outcome = evaluateDesign(space, design(p));
     return outcome.ok ? outcome.evaluation : undefined;
   };
-  // Plain rounding (every size, gates too, to its nearest permitted cutter; steel-safe lists
-  // hold only sizes at or above today's) is always a candidate: a shop would try it first,
-  // and the repair flips below start from whichever start is better on the true model.
+  // Plain rounding (every size, gates too, to its nearest permitted cutter; in steel-safe mode
+  // also every size to the permitted cutter at or above it) is always a candidate: a shop would
+  // try it first, and the repair flips below start from the best start on the true model.
   const nearestPick = candidates.map((list, j) => {
     let best = 0;
     for (let k = 1; k < list.length; k++) {
@@ -150,13 +194,22 @@ export function snapDesign(
     }
     return best;
   });
-  let best = evaluate(pick);
+  const roundUpPick = candidates.map((list, j) => {
+    const k = list.findIndex((c) => c.size >= continuous.x[j] * (1 - 1e-9));
+    return k >= 0 ? k : list.length - 1;
+  });
+  const starts = steelSafe ? [pick, nearestPick, roundUpPick] : [pick, nearestPick];
+  let best: DesignEvaluation | undefined;
   let bestPick = [...pick];
-  if (nearestPick.some((k, j) => k !== pick[j])) {
-    const rounded = evaluate(nearestPick);
-    if (rounded && (!best || options.merit(rounded) < options.merit(best))) {
-      best = rounded;
-      bestPick = [...nearestPick];
+  const tried = new Set<string>();
+  for (const start of starts) {
+    const key = start.join(",");
+    if (tried.has(key)) continue;
+    tried.add(key);
+    const trial = evaluate(start);
+    if (trial && (!best || snappedBetter(trial, best, options.merit))) {
+      best = trial;
+      bestPick = [...start];
     }
   }
   if (!best) {
@@ -188,7 +241,7 @@ export function snapDesign(
     for (const flip of flips.slice(0, 3)) {
       const p = flipped(bestPick, flip.group, flip.k);
       const trial = evaluate(p);
-      if (trial && options.merit(trial) < options.merit(best) - 1e-9) {
+      if (trial && snappedBetter(trial, best, options.merit)) {
         best = trial;
         bestPick = p;
         improved = true;
@@ -211,7 +264,7 @@ export function snapDesign(
     });
     if (!moved) break;
     const trial = evaluate(p);
-    if (!trial || !(options.merit(trial) < options.merit(best) - 1e-9)) break;
+    if (!trial || !snappedBetter(trial, best, options.merit)) break;
     best = trial;
     bestPick = p;
   }
@@ -221,18 +274,9 @@ export function snapDesign(
     snapped: candidates[j][bestPick[j]].size,
     label: candidates[j][bestPick[j]].label,
   }));
-  const lost = best.imbalancePercent - continuous.imbalancePercent;
-  const message = best.feasible
-    ? `snapped to ${catalogue.system} cutters and ${
-      inch ? "0.002 in" : "0.05 mm"
-    } gate steps; every limit still met` +
-      (lost > 0.05 ? `; snapping costs ${lost.toFixed(2)} points of imbalance` : "")
-    : `snapped to ${catalogue.system} cutters; the snapped design breaks: ${
-      best.violations.map((x) => x.message).join("; ")
-    }` +
-      ` (continuous optimum ${continuous.imbalancePercent.toFixed(2)} % → snapped ${
-        best.imbalancePercent.toFixed(2)
-      } %)`;
+  const message = `snapped to ${snapMethod(catalogue)}; ${
+    snapVerdict(options.reference ?? continuous, best)
+  }`;
   return { evaluation: best, choices, simulations, message };
 }
 

@@ -10,7 +10,7 @@ import { applyDesign, type DesignSpace, designSpace, type DesignVariable } from 
 import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
 import type { LpSolver } from "./lp_solver.ts";
 import { type Sensitivities, tangentSensitivities } from "./sensitivities.ts";
-import { snapDesign, type SnapReport } from "./snap_design.ts";
+import { snapDesign, snapMethod, type SnapReport, snapVerdict } from "./snap_design.ts";
 import { formulateStep, LP_LIMIT_SHARE, snappedMerit } from "./slp_step.ts";
 
 /**
@@ -207,10 +207,10 @@ function runnerCutterSides(
 
 /**
  * Whether a cutter of `size` (m) may cut `v`: within its bounds for cutters (rules of
- * thumb a few percent soft) and, in steel-safe mode, not below today's size.
+ * thumb a few percent soft, `cutterLower`/`cutterUpper`) and, in steel-safe mode, not below today's size.
  */
 function cutterPermitted(v: DesignVariable, size: number, steelSafe: boolean): boolean {
-  return size >= v.cutterLower * (1 - 1e-9) && size <= v.upper * (1 + 1e-9) &&
+  return size >= v.cutterLower * (1 - 1e-9) && size <= v.cutterUpper * (1 + 1e-9) &&
     (!steelSafe || size >= v.current * (1 - 1e-9));
 }
 
@@ -287,7 +287,7 @@ export async function relaxAndFixRunners(
       if (sides.length === 0) {
         // Both neighbours are smaller than a runner this one feeds: the next cutter up that is not.
         const up = catalogue.cutters.find((c) =>
-          c.size >= fedSize * (1 - 1e-9) && c.size <= v.upper * (1 + 1e-9)
+          c.size >= fedSize * (1 - 1e-9) && c.size <= v.cutterUpper * (1 + 1e-9)
         );
         sides = up ? [up] : allowed;
       }
@@ -360,9 +360,15 @@ export async function relaxAndFixRunners(
         }]
         : []
     ),
-    ...gateSnap.choices,
+    // The whole tool's continuous optimum, not the gates-only re-balance's.
+    ...gateSnap.choices.map((c) => {
+      const j = space.variables.findIndex((v) => v.element === c.element);
+      return j >= 0 ? { ...c, continuous: continuous.x[j] } : c;
+    }),
   ];
-  return { evaluation, choices, simulations, message: gateSnap.message };
+  // Judged against the continuous optimum of the whole tool, not the gates-only one.
+  const message = `snapped to ${snapMethod(catalogue)}; ${snapVerdict(continuous, evaluation)}`;
+  return { evaluation, choices, simulations, message };
 }
 
 /** The design space of `scenario` (its runners fixed), simulated at the given sizes. */

@@ -39,6 +39,7 @@ export function optimizationJson(outcome: BalanceOutcome, options: OptimizationJ
     simulations: outcome.simulations,
     slopes: outcome.slopes,
     before: resultJson(outcome.before.run, { history }),
+    continuous: continuousJson(outcome),
     after: resultJson(outcome.after.run, { history }),
     changes: changes.map((c) => ({
       element: c.element,
@@ -67,6 +68,27 @@ export function optimizationJson(outcome: BalanceOutcome, options: OptimizationJ
   };
 }
 
+/**
+ * The continuous optimum (the last design the SLP accepted, before cutter snapping) as it
+ * was simulated: its imbalance, peak feed pressure, runner volume, the limits it breaks and
+ * its sizes. With `cutters: "continuous"` it is the after design.
+ */
+export function continuousJson(outcome: BalanceOutcome) {
+  const c = outcome.continuous;
+  return {
+    imbalance_percent: Number(c.imbalancePercent.toFixed(4)),
+    feed_pressure_peak_MPa: Number(paToMpa(c.feedPressurePeak).toFixed(3)),
+    runner_volume_cm3: Number(m3ToCm3(c.runnerVolume).toFixed(5)),
+    limits_met: c.feasible,
+    violations: c.violations.map((v) => v.message),
+    sizes: outcome.space.variables.map((v, j) => ({
+      element: v.element,
+      dimension: v.dimension,
+      size_mm: Number(mToMm(c.x[j]).toFixed(4)),
+    })),
+  };
+}
+
 /** A readable before/after, change sheet and stopping reason. */
 export function optimizationText(
   outcome: BalanceOutcome,
@@ -75,7 +97,7 @@ export function optimizationText(
   const b = outcome.before;
   const a = outcome.after;
   const line = (label: string, e: typeof b) =>
-    `  ${label.padEnd(8)} imbalance ${
+    `  ${label.padEnd(10)} imbalance ${
       e.imbalancePercent.toFixed(2).padStart(6)
     } %   peak pressure ${paToMpa(e.feedPressurePeak).toFixed(1).padStart(6)} MPa   runner ${
       m3ToCm3(e.runnerVolume).toFixed(2).padStart(6)
@@ -87,6 +109,9 @@ export function optimizationText(
   out.push(`Status: ${outcome.status} — ${outcome.reason}`);
   out.push("");
   out.push(line("before", b));
+  // The continuous optimum as simulated, when the after design differs from it (cutter sizes).
+  const c = outcome.continuous;
+  if (c !== a && c.x.some((x, j) => x !== a.x[j])) out.push(line("continuous", c));
   out.push(line("after", a));
   if (outcome.snap) out.push(`  cutters: ${outcome.snap.message}`);
   for (const v of a.violations) out.push(`  ! ${v.message}`);

@@ -18,6 +18,7 @@ import { optimizeBalance } from "../../src/optimize/balance.ts";
 import { changeList } from "../../src/optimize/change_list.ts";
 import { cutterCatalogue } from "../../src/optimize/cutters.ts";
 import { applyDesign } from "../../src/optimize/design_space.ts";
+import { judge, plainRounding } from "./_rounding.ts";
 
 const DEMOS = ["family_four_housing", "hot_drop_eight_caps", "two_gate_frame_and_knob"];
 
@@ -116,6 +117,17 @@ for (const name of DEMOS) {
     assert.ok(
       fill.feedPressurePeak <= pressureLimitPa,
       `peak ${(fill.feedPressurePeak / 1e6).toFixed(1)} MPa > ${pressureLimitPa / 1e6} MPa`,
+    );
+
+    // Never worse than plain rounding of the continuous optimum (issue 11.4): no more limits
+    // broken on the re-simulation, and when both meet every limit, no worse balance
+    // (tolerance 1e-6 percentage points).
+    const plain = judge(scenario, o.space, plainRounding(o.space, o.continuous.x));
+    const snapped = judge(scenario, o.space, o.after.x);
+    assert.ok(
+      snapped.broken.length <= plain.broken.length &&
+        (plain.broken.length > 0 || snapped.imbalance <= plain.imbalance + 1e-6),
+      `snapped ${snapped.text} vs plain rounding ${plain.text}`,
     );
 
     // Cuttable sizes: runners from the catalogue, gates on the 0.05 mm step.
