@@ -162,6 +162,38 @@ function crossCheck(s: Scenario, options: ParseScenarioOptions): ScenarioIssue[]
   }
   if (typeof s.material === "object") {
     const m = s.material;
+    // Data that contradict themselves: the part must be solid (ejectable) at a temperature
+    // where the melt has already stopped flowing, and a window runs from low to high.
+    if (m.ejection_temperature_C >= m.no_flow_temperature_C) {
+      issues.push(
+        issue(
+          ["material", "ejection_temperature_C"],
+          "ejection_above_no_flow",
+          `Ejection temperature ${m.ejection_temperature_C} °C must be below the no-flow temperature ${m.no_flow_temperature_C} °C (the melt stops flowing before the part is stiff enough to eject)`,
+        ),
+      );
+    }
+    for (const key of ["melt_temperature_range_C", "mold_temperature_range_C"] as const) {
+      const range = m[key];
+      if (range && !(range[0] < range[1])) {
+        issues.push(
+          issue(
+            ["material", key],
+            "range_reversed",
+            `${key} must run from low to high, got [${range[0]}, ${range[1]}]`,
+          ),
+        );
+      }
+    }
+    if (m.no_flow_temperature_C >= s.process.melt_temperature_C) {
+      issues.push(
+        issue(
+          ["process", "melt_temperature_C"],
+          "melt_below_no_flow",
+          `Melt temperature ${s.process.melt_temperature_C} °C is not above the resin's no-flow temperature ${m.no_flow_temperature_C} °C: it cannot flow`,
+        ),
+      );
+    }
     if (m.ejection_temperature_C <= s.process.mold_temperature_C) {
       issues.push(
         issue(

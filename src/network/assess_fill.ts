@@ -19,6 +19,12 @@ export interface ThermalData {
   noFlowTemperature: number;
   ejectionTemperature: number;
   maxShearRate: number;
+  /** The resin's recommended melt temperature window, K (when its data give one). */
+  meltTemperatureRange?: readonly [number, number];
+  /** The resin's recommended mold temperature window, K. */
+  moldTemperatureRange?: readonly [number, number];
+  /** Whether thermal effects (viscous heating) were simulated. */
+  isothermal?: boolean;
 }
 
 /** One element's freeze and cooling times, s. */
@@ -134,6 +140,54 @@ export function fillWarnings(
         severity: "warning",
         element: e.id,
         message: `${e.id} froze shut during filling (frozen layer closed the section).`,
+      });
+    }
+  }
+
+  // The resin's processing window (supplier data; the library's generic values otherwise).
+  const degC = (k: number) => (k - 273.15).toFixed(0);
+  const melt = thermal.meltTemperatureRange;
+  if (melt && (thermal.meltTemperature < melt[0] || thermal.meltTemperature > melt[1])) {
+    warnings.push({
+      code: "melt_outside_window",
+      severity: "warning",
+      message: `Melt temperature ${degC(thermal.meltTemperature)} °C is outside the resin's ${
+        degC(melt[0])
+      }–${degC(melt[1])} °C processing window: ${
+        thermal.meltTemperature < melt[0]
+          ? "short shots and high pressure are likely"
+          : "the resin may degrade"
+      }.`,
+    });
+  }
+  const mold = thermal.moldTemperatureRange;
+  if (mold && (thermal.moldTemperature < mold[0] || thermal.moldTemperature > mold[1])) {
+    warnings.push({
+      code: "mold_outside_window",
+      severity: "warning",
+      message: `Mold temperature ${degC(thermal.moldTemperature)} °C is outside the resin's ${
+        degC(mold[0])
+      }–${degC(mold[1])} °C window.`,
+    });
+  }
+  if (melt && !thermal.isothermal) {
+    let hottest: (typeof fill.elements)[number] | undefined;
+    // The feed system only: a cavity's thin wall takes the heat out over its fill, so the
+    // adiabatic bound says little there; in a gate or runner it is close to the truth.
+    for (const e of fill.elements) {
+      if (e.kind === "cavity") continue;
+      if (!hottest || e.temperatureAtSwitchover > hottest.temperatureAtSwitchover) hottest = e;
+    }
+    if (hottest && hottest.temperatureAtSwitchover > melt[1]) {
+      warnings.push({
+        code: "heating_past_window",
+        severity: "warning",
+        element: hottest.id,
+        message: `Viscous heating takes the melt in ${hottest.id} to about ${
+          degC(hottest.temperatureAtSwitchover)
+        } °C (adiabatic upper bound), above the top of the resin's window (${
+          degC(melt[1])
+        } °C): risk of degradation; a larger gate or a slower fill lowers it.`,
       });
     }
   }

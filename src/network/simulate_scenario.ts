@@ -171,6 +171,9 @@ function runValidated(scenario: Scenario, options: RunScenarioOptions): RunOutco
     noFlowTemperature: material.noFlowTemperature,
     ejectionTemperature: material.ejectionTemperature,
     maxShearRate: material.maxShearRate,
+    meltTemperatureRange: material.meltTemperatureRange,
+    moldTemperatureRange: material.moldTemperatureRange,
+    isothermal: process.isothermal,
   };
   const freeze = freezeTimes(network, thermal);
   const warnings = fillWarnings({ scenario, network, fill }, { thermal, freeze });
