@@ -3,9 +3,16 @@ import { z } from "zod";
 /** Cross-WLF viscosity parameters, wire format (SI units named in the fields). */
 export const CrossWlfSchema = z.object({
   model: z.literal("cross_wlf"),
-  n: z.number().gt(0).lt(1).describe("power-law index of the shear-thinning region, 0 < n < 1"),
+  n: z.number().min(
+    0.05,
+    "n under 0.05 is not known for a polymer melt (from memory: 0.1–0.5 is usual)",
+  )
+    .lt(1).describe("power-law index of the shear-thinning region, 0.05 ≤ n < 1"),
   tau_star_Pa: z.number().positive().max(1e7).describe("critical shear stress τ*, Pa"),
-  D1_Pa_s: z.number().positive().describe("zero-shear viscosity at T*, Pa·s"),
+  D1_Pa_s: z.number().positive().max(
+    1e40,
+    "D1 over 1e40 Pa·s is not plausible (from memory: fitted values run about 1e9–1e30)",
+  ).describe("zero-shear viscosity at T*, Pa·s"),
   D2_K: z.number().positive().max(700).describe(
     "glass-transition reference temperature T* at p = 0, K",
   ),
@@ -23,7 +30,8 @@ export const CrossWlfSchema = z.object({
 export const PowerLawSchema = z.object({
   model: z.literal("power_law"),
   K_Pa_sn: z.number().positive().max(1e8).describe("consistency K, Pa·sⁿ"),
-  n: z.number().gt(0).lte(1).describe("power-law index, 0 < n ≤ 1 (n = 1 is Newtonian)"),
+  n: z.number().min(0.05, "n under 0.05 is not known for a polymer melt (from memory)").lte(1)
+    .describe("power-law index, 0.05 ≤ n ≤ 1 (n = 1 is Newtonian)"),
 });
 
 export const ViscositySchema = z.discriminatedUnion("model", [CrossWlfSchema, PowerLawSchema]);

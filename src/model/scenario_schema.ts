@@ -15,8 +15,11 @@ const id = z.string().min(1).max(64).regex(
   /^[A-Za-z0-9_.:-]+$/,
   "ids use letters, digits and _ . : - only",
 );
+/** A dimension in mm: above 0.01 mm (below it no cutter or gauge works; common practice). */
 const mm = (max: number, what: string) =>
-  z.number().positive(`${what} must be > 0 mm`).max(max, `${what} over ${max} mm is not plausible`);
+  z.number().positive(`${what} must be > 0 mm`)
+    .min(0.01, `${what} under 0.01 mm is not plausible`)
+    .max(max, `${what} over ${max} mm is not plausible`);
 
 export const InjectionSchema = z.union([
   z.object({
