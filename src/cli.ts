@@ -10,6 +10,9 @@ import { scenarioJsonSchema } from "./model/json_schema.ts";
 import { parseScenarioText, type ScenarioIssue } from "./model/parse_scenario.ts";
 import type { Scenario } from "./model/scenario_schema.ts";
 import { checkScenario, LIBRARY_MATERIAL_IDS, runScenario } from "./network/simulate_scenario.ts";
+import { calibrate } from "./calibrate/calibrate.ts";
+import type { CalibrationFactor } from "./calibrate/factors.ts";
+import { processWindow } from "./window/process_window.ts";
 import { fillHistoryCsv } from "./report/fill_csv.ts";
 import { resultJson } from "./report/result_json.ts";
 import { textReport } from "./report/text_report.ts";
@@ -25,6 +28,9 @@ usage:
   evenfill optimize <scenario.json> [--mode new_tool|trim|steel_safe] [--json] [--history] [--csv]
                     [--slopes tangent|finite_difference]
   evenfill validate <scenario.json> [--json]
+  evenfill calibrate <scenario.json> --factors viscosity,gate:G2,runner:R4,melt [--json]
+                     [--write <calibrated.json>]   (fits the model to the scenario's measurements)
+  evenfill window <scenario.json> [--json]   (imbalance and gate shear across the process window)
   evenfill materials
   evenfill schema [--write <path>]
 
@@ -40,6 +46,8 @@ const OPTIONS: Record<string, readonly string[]> = {
   simulate: ["json", "history", "csv", "units"],
   optimize: ["json", "history", "csv", "mode", "slopes", "units"],
   validate: ["json"],
+  calibrate: ["json", "factors", "write"],
+  window: ["json"],
   materials: [],
   schema: ["write"],
 };
@@ -57,7 +65,7 @@ function writeAllSync(out: { writeSync(p: Uint8Array): number }, bytes: Uint8Arr
 function parseArgs(argv: readonly string[]): Args {
   const positional: string[] = [];
   const flags = new Map<string, string | true>();
-  const valued = new Set(["units", "write", "mode", "slopes"]);
+  const valued = new Set(["units", "write", "mode", "slopes", "factors"]);
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i];
     if (a.startsWith("--")) {
@@ -71,6 +79,126 @@ function parseArgs(argv: readonly string[]): Args {
 }
 
 let issuesAsJson = false;
+
+function stripBom(text: string): string {
+  return text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
+}
+
+/** "viscosity,gate:G2,runner:R4,melt" → factors, or a message saying what is wrong. */
+function parseFactors(text: string): CalibrationFactor[] | string {
+  const factors: CalibrationFactor[] = [];
+  for (const part of text.split(",").map((p) => p.trim()).filter(Boolean)) {
+    const [kind, id] = part.split(":", 2);
+    if (kind === "viscosity") factors.push({ kind: "viscosity" });
+    else if (kind === "melt") factors.push({ kind: "melt_temperature" });
+    else if (kind === "gate" && id) factors.push({ kind: "gate_size", gate: id });
+    else if (kind === "runner" && id) factors.push({ kind: "runner_size", runner: id });
+    else return `--factors: "${part}" is not viscosity, melt, gate:<id> or runner:<id>`;
+  }
+  return factors.length > 0 ? factors : "--factors: give at least one factor";
+}
+
+function calibrationJson(fit: Extract<ReturnType<typeof calibrate>, { ok: true }>) {
+  return {
+    format: "evenfill.calibration/1",
+    stopped_because: fit.stoppedBecause,
+    iterations: fit.iterations,
+    simulations: fit.simulations,
+    cost_before: fit.costBefore,
+    cost_after: fit.costAfter,
+    factors: fit.factors.map((f) => ({
+      name: f.name,
+      value: f.value,
+      standard_error: f.standardError,
+      identified: f.identified,
+      at_bound: f.atBound,
+    })),
+    residuals: fit.residuals.map((r) => ({
+      shot: r.shot,
+      cavity: r.cavity,
+      injected_cm3: r.injectedCm3,
+      measured_fill_percent: 100 * r.measured,
+      before_fill_percent: 100 * r.before,
+      after_fill_percent: 100 * r.after,
+    })),
+    pressure: fit.pressure
+      ? {
+        measured_MPa: fit.pressure.measuredMPa,
+        before_MPa: fit.pressure.beforeMPa,
+        after_MPa: fit.pressure.afterMPa,
+      }
+      : undefined,
+    calibrated: fit.calibrated,
+  };
+}
+
+function calibrationText(
+  fit: Extract<ReturnType<typeof calibrate>, { ok: true }>,
+  written: string | undefined,
+): string {
+  const lines = [
+    `evenfill — calibration to weighed short shots (${fit.stoppedBecause}, ${fit.iterations} iterations, ${fit.simulations} simulations)`,
+    "",
+    "  factor               value    ± std. error   identified",
+  ];
+  for (const f of fit.factors) {
+    lines.push(
+      `  ${f.name.padEnd(20)} ${f.value.toFixed(4).padStart(7)}   ± ${
+        f.standardError.toFixed(4).padEnd(9)
+      }   ${f.identified ? "yes" : "NO — the data cannot tell it; left near nominal"}${
+        f.atBound ? " (at its bound)" : ""
+      }`,
+    );
+  }
+  lines.push("", "  shot  cavity  injected cm³   measured %   model before %   after %");
+  for (const r of fit.residuals) {
+    lines.push(
+      `  ${String(r.shot + 1).padStart(4)}  ${r.cavity.padEnd(6)}  ${
+        r.injectedCm3.toFixed(2).padStart(12)
+      }   ${(100 * r.measured).toFixed(1).padStart(10)}   ${
+        (100 * r.before).toFixed(1).padStart(14)
+      }   ${(100 * r.after).toFixed(1).padStart(7)}`,
+    );
+  }
+  if (fit.pressure) {
+    lines.push(
+      "",
+      `  full-shot pressure: measured ${fit.pressure.measuredMPa.toFixed(1)} MPa, model ${
+        fit.pressure.beforeMPa.toFixed(1)
+      } → ${fit.pressure.afterMPa.toFixed(1)} MPa`,
+    );
+  }
+  if (written) {
+    lines.push("", `Calibrated scenario written to ${written}: optimize runs on it unchanged.`);
+  }
+  lines.push(
+    "",
+    "A calibrated model reproduces today's shots; it is still a 1-D model. Cut one step, re-measure, then decide.",
+  );
+  return lines.join("\n");
+}
+
+function windowText(report: ReturnType<typeof processWindow>): string {
+  const lines = [
+    "evenfill — the design across the process window (2⁴ corners + centre)",
+    "",
+    `  imbalance ${report.imbalanceRange[0].toFixed(2)} … ${report.imbalanceRange[1].toFixed(2)} %`,
+    `  peak gate shear ${report.gateShearRange[0].toFixed(0)} … ${
+      report.gateShearRange[1].toFixed(0)
+    } 1/s`,
+    "",
+    "  what moves the balance (high − low corners, percentage points):",
+  ];
+  for (const e of report.effects) {
+    lines.push(
+      `    ${e.factor.padEnd(10)} ${e.imbalancePoints >= 0 ? "+" : ""}${
+        e.imbalancePoints.toFixed(2)
+      }`,
+    );
+  }
+  for (const f of report.failures) lines.push(`  ! ${JSON.stringify(f.levels)}: ${f.message}`);
+  return lines.join("\n");
+}
 
 function printIssues(file: string, issues: readonly ScenarioIssue[]): void {
   if (issuesAsJson) {
@@ -207,6 +335,52 @@ export async function main(argv: readonly string[]): Promise<number> {
         console.log(JSON.stringify(json, null, 2));
       } else console.log(optimizationText(result.outcome, changes).trimEnd());
       return result.outcome.status === "converged" ? 0 : 4;
+    }
+    case "calibrate": {
+      const file = args.positional[0];
+      const read = await readScenario(file);
+      if (read.scenario === undefined) {
+        if (read.message) console.error(read.message);
+        return read.exit;
+      }
+      const wire = JSON.parse(stripBom(await Deno.readTextFile(file!)));
+      if (!read.scenario.measurements) {
+        console.error(`${file}: no "measurements" block to calibrate against`);
+        return 2;
+      }
+      const factors = parseFactors(String(args.flags.get("factors") ?? "viscosity"));
+      if (typeof factors === "string") {
+        console.error(factors);
+        return 1;
+      }
+      const fit = calibrate(wire, read.scenario.measurements, { factors });
+      if (!fit.ok) {
+        if (fit.code === "invalid_measurements") {
+          printIssues(file!, fit.issues.map((i) => ({ ...i, path: [], code: fit.code })));
+          return 2;
+        }
+        console.error(`Calibration failed: ${fit.message}`);
+        return 3;
+      }
+      const write = args.flags.get("write");
+      if (typeof write === "string") {
+        await Deno.writeTextFile(write, JSON.stringify(fit.calibrated, null, 2) + "\n");
+      }
+      if (args.flags.has("json")) console.log(JSON.stringify(calibrationJson(fit), null, 2));
+      else console.log(calibrationText(fit, typeof write === "string" ? write : undefined));
+      return 0;
+    }
+    case "window": {
+      const file = args.positional[0];
+      const read = await readScenario(file);
+      if (read.scenario === undefined) {
+        if (read.message) console.error(read.message);
+        return read.exit;
+      }
+      const report = processWindow(JSON.parse(stripBom(await Deno.readTextFile(file!))));
+      if (args.flags.has("json")) console.log(JSON.stringify(report, null, 2));
+      else console.log(windowText(report));
+      return 0;
     }
     case "validate": {
       const read = await readScenario(args.positional[0]);

@@ -156,3 +156,59 @@ Deno.test("CLI: unknown options are errors; --json prints a bad file's issues as
     await Deno.remove(dir, { recursive: true });
   }
 });
+
+Deno.test("calibrate: fits a gate's size to the scenario's short shots, says what the data cannot tell, writes a valid scenario", async () => {
+  // Synthetic short shots from the model with G1 at 0.88 × its size (tests/calibrate has the
+  // noise-free and noisy recovery checks); here the CLI's path end to end.
+  const { applyFactors } = await import("../src/calibrate/factors.ts");
+  const { simulateScenario } = await import("../src/network/simulate_scenario.ts");
+  const { unequalBranches } = await import("./network/_scenarios.ts");
+  const wire = unequalBranches("isothermal");
+  const truth = applyFactors(wire, [{ kind: "gate_size", gate: "G1" }], [0.88]);
+  const probe = simulateScenario(truth);
+  assert.ok(probe.ok);
+  const shot = probe.run.network.feedSystemVolume + probe.run.network.cavityVolume;
+  const sampled = simulateScenario(truth, { sampleVolumes: [0.5 * shot, 0.75 * shot] });
+  assert.ok(sampled.ok);
+  const withShots = {
+    ...wire,
+    measurements: {
+      short_shots: [50, 75].map((percent, k) => ({
+        shot_percent: percent,
+        parts: sampled.run.network.cavities.map((c, i) => ({
+          cavity: c.id,
+          fill_percent: 100 * sampled.run.fill.samples![k].cavityFill[i],
+        })),
+      })),
+    },
+  };
+  const dir = await Deno.makeTempDir();
+  try {
+    await Deno.writeTextFile(`${dir}/tool.json`, JSON.stringify(withShots));
+    const r = await run([
+      "calibrate",
+      `${dir}/tool.json`,
+      "--factors",
+      "gate:G1,viscosity",
+      "--json",
+      "--write",
+      `${dir}/calibrated.json`,
+    ]);
+    assert.equal(r.code, 0, r.stderr);
+    const out = JSON.parse(r.stdout);
+    assert.equal(out.format, "evenfill.calibration/1");
+    const [gate, viscosity] = out.factors;
+    assert.ok(gate.identified);
+    // Between the truth and nominal (the Tikhonov pull at the default 1 % noise), near the truth.
+    assert.ok(gate.value >= 0.88 - 1e-3 && gate.value < 0.92, `G1 factor ${gate.value}`);
+    // Masses alone cannot see a power law's viscosity (its split does not depend on K).
+    assert.equal(viscosity.identified, false);
+    const again = await run(["validate", `${dir}/calibrated.json`]);
+    assert.equal(again.code, 0, again.stderr);
+    const window = await run(["window", `${dir}/calibrated.json`, "--json"]);
+    assert.equal(window.code, 0, window.stderr);
+    assert.equal(JSON.parse(window.stdout).points.length, 17);
+  } finally {
+    await Deno.remove(dir, { recursive: true });
+  }
+});

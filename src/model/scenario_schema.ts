@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { MaterialSchema } from "./material_schema.ts";
+import { MeasurementsSchema } from "./measurements_schema.ts";
 
 /**
  * The scenario file, wire format `evenfill.scenario/1`. Units are in the field
@@ -215,6 +216,9 @@ export const ScenarioSchema = z.object({
     cutters: "metric",
     size_rules: true,
   }),
+  measurements: MeasurementsSchema.optional().describe(
+    "weighed short shots (and the full-shot pressure) of today's tool, for `calibrate`",
+  ),
 }).strict();
 
 /** A scenario after schema defaults are applied. */
