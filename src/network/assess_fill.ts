@@ -147,29 +147,28 @@ export function fillWarnings(
   // The resin's processing window (supplier data; the library's generic values otherwise).
   const degC = (k: number) => (k - 273.15).toFixed(0);
   const melt = thermal.meltTemperatureRange;
-  if (melt && (thermal.meltTemperature < melt[0] || thermal.meltTemperature > melt[1])) {
+  const outside = (
+    what: "Melt" | "Mold",
+    value: number,
+    range: readonly [number, number] | undefined,
+    consequence: (low: boolean) => string,
+  ) => {
+    if (!range || (value >= range[0] && value <= range[1])) return;
     warnings.push({
-      code: "melt_outside_window",
+      code: what === "Melt" ? "melt_outside_window" : "mold_outside_window",
       severity: "warning",
-      message: `Melt temperature ${degC(thermal.meltTemperature)} °C is outside the resin's ${
-        degC(melt[0])
-      }–${degC(melt[1])} °C processing window: ${
-        thermal.meltTemperature < melt[0]
-          ? "short shots and high pressure are likely"
-          : "the resin may degrade"
-      }.`,
+      message: `${what} temperature ${degC(value)} °C is outside the resin's ${degC(range[0])}–${
+        degC(range[1])
+      } °C window${consequence(value < range[0])}.`,
     });
-  }
-  const mold = thermal.moldTemperatureRange;
-  if (mold && (thermal.moldTemperature < mold[0] || thermal.moldTemperature > mold[1])) {
-    warnings.push({
-      code: "mold_outside_window",
-      severity: "warning",
-      message: `Mold temperature ${degC(thermal.moldTemperature)} °C is outside the resin's ${
-        degC(mold[0])
-      }–${degC(mold[1])} °C window.`,
-    });
-  }
+  };
+  outside(
+    "Melt",
+    thermal.meltTemperature,
+    melt,
+    (low) => low ? ": short shots and high pressure are likely" : ": the resin may degrade",
+  );
+  outside("Mold", thermal.moldTemperature, thermal.moldTemperatureRange, () => "");
   if (melt && !thermal.isothermal) {
     let hottest: (typeof fill.elements)[number] | undefined;
     // The feed system only: a cavity's thin wall takes the heat out over its fill, so the

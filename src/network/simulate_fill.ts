@@ -161,8 +161,9 @@ function fillLoop(
       sampleTimes.shift();
       samples.push({ time: t, cavityFill: cavityFill(ctx, state) });
     }
-    if (onSwitchover) {
-      // End of the velocity phase: the flows just before any element filling now closes.
+    // The state at the end of this step on the network it started from: the flows just
+    // before any element filling now closes (switchover, or the end of filling), observed.
+    const endOfPhase = (): Solved | { failure: string } => {
       const end = solveInstant(ctx, state, stats, {
         t,
         volumes: state.fill,
@@ -171,8 +172,13 @@ function fillLoop(
       });
       if ("failure" in end) return end;
       tangent.at(end, t);
-      atSwitchover = end;
       observe(end);
+      return end;
+    };
+    if (onSwitchover) {
+      const end = endOfPhase();
+      if ("failure" in end) return end;
+      atSwitchover = end;
       switchoverDone = true;
     }
     const shifts = tangent.eventShifts(s0, step.end.flows, newlyFull);
@@ -196,15 +202,8 @@ function fillLoop(
     if (onSwitchover) frozenAtSwitchover = state.frozenHeld.slice();
     if (state.cavityFullTime.every((x) => !Number.isNaN(x))) {
       if (!atSwitchover) {
-        const end = solveInstant(ctx, state, stats, {
-          t,
-          volumes: state.fill,
-          assembly: s0.assembly,
-          warm: step.end.flows,
-        });
+        const end = endOfPhase();
         if ("failure" in end) return end;
-        tangent.at(end, t);
-        observe(end);
         atSwitchover = end;
       }
       break;

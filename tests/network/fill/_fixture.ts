@@ -3,7 +3,14 @@ import { parseScenario } from "../../../src/model/parse_scenario.ts";
 import type { ScenarioWire } from "../../../src/model/scenario_schema.ts";
 import { buildNetwork } from "../../../src/network/build_network.ts";
 import type { FeedNetwork } from "../../../src/network/feed_network.ts";
+import { assemble } from "../../../src/network/fill/assemble.ts";
 import { type FillContext, fillContext } from "../../../src/network/fill/context.ts";
+import {
+  type Solved,
+  solveInstant,
+  type SolveStats,
+  solveStats,
+} from "../../../src/network/fill/solve_instant.ts";
 import { emptyFillState, type FillState, wetNode } from "../../../src/network/fill/fill_state.ts";
 import {
   LIBRARY_MATERIAL_IDS,
@@ -51,4 +58,19 @@ export function markFull(
     if (e.to >= 0) wetNode(f.ctx, f.state, e.to, t);
     if (e.kind === "cavity") f.state.cavityFullTime[e.cavity] = t;
   }
+}
+
+/** The fixture's state solved at `t` on its own assembly (asserts the solve succeeds). */
+export function solvedNow(
+  f: ReturnType<typeof fixture>,
+  t: number,
+  stats: SolveStats = solveStats(),
+): Solved {
+  const s = solveInstant(f.ctx, f.state, stats, {
+    t,
+    volumes: f.state.fill,
+    assembly: assemble(f.ctx, f.state),
+  });
+  assert.ok(!("failure" in s), "failure" in s ? s.failure : "");
+  return s;
 }

@@ -1,20 +1,14 @@
 import assert from "node:assert/strict";
 import { assertClose } from "../../assert_close.ts";
-import { assemble } from "../../../src/network/fill/assemble.ts";
 import { eventStep } from "../../../src/network/fill/event_step.ts";
-import { solveInstant, solveStats } from "../../../src/network/fill/solve_instant.ts";
-import { fixture, markFull } from "./_fixture.ts";
+import { solveStats } from "../../../src/network/fill/solve_instant.ts";
+import { fixture, markFull, solvedNow } from "./_fixture.ts";
 
 Deno.test("eventStep: a step aimed at the feed's capacity lands on it exactly, at t = V/Q", () => {
   const f = fixture();
   markFull(f, []);
   const stats = solveStats();
-  const s0 = solveInstant(f.ctx, f.state, stats, {
-    t: 0,
-    volumes: f.state.fill,
-    assembly: assemble(f.ctx, f.state),
-  });
-  assert.ok(!("failure" in s0));
+  const s0 = solvedNow(f, 0, stats);
   const out = eventStep(f.ctx, f.state, stats, s0, {
     h: 1,
     landAt: f.ctx.switchoverTime,
@@ -36,12 +30,7 @@ Deno.test("eventStep: a step that would cross switchover ends on it", () => {
   markFull(f, ["hot_drop", "R1", "R2", "G1", "G2"]);
   for (const id of ["C1", "C2"]) f.state.sideStart[2 * f.element(id)] = 0;
   const stats = solveStats();
-  const s0 = solveInstant(f.ctx, f.state, stats, {
-    t: 0,
-    volumes: f.state.fill,
-    assembly: assemble(f.ctx, f.state),
-  });
-  assert.ok(!("failure" in s0));
+  const s0 = solvedNow(f, 0, stats);
   f.state.time = f.ctx.switchoverTime - 1e-4;
   const out = eventStep(f.ctx, f.state, stats, s0, {
     h: 1,
@@ -63,12 +52,7 @@ Deno.test("eventStep: no filling branch left is reported, not stepped", () => {
   const f = fixture();
   markFull(f, ["hot_drop", "R1", "R2", "G1", "G2", "C1", "C2"]);
   const stats = solveStats();
-  const s0 = solveInstant(f.ctx, f.state, stats, {
-    t: 0,
-    volumes: f.state.fill,
-    assembly: assemble(f.ctx, f.state),
-  });
-  assert.ok(!("failure" in s0));
+  const s0 = solvedNow(f, 0, stats);
   assert.equal(
     eventStep(f.ctx, f.state, stats, s0, { h: 1, landAt: Infinity, flowChangeTolerance: 0.02 })
       .kind,

@@ -1,13 +1,11 @@
 import assert from "node:assert/strict";
 import { assertClose } from "../../assert_close.ts";
-import { assemble } from "../../../src/network/fill/assemble.ts";
 import { clampForce, meanPressureShare } from "../../../src/network/fill/fill_records.ts";
 import { updateMeltTemperature } from "../../../src/network/fill/melt_temperature.ts";
-import { solveInstant, solveStats } from "../../../src/network/fill/solve_instant.ts";
 import type { NetworkElement } from "../../../src/network/feed_network.ts";
 import { simulateFill } from "../../../src/network/simulate_fill.ts";
 import { singleLine, unequalBranches } from "../_scenarios.ts";
-import { fixture, markFull } from "./_fixture.ts";
+import { fixture, markFull, solvedNow } from "./_fixture.ts";
 
 Deno.test("clampForce: pressure × projected area, element by element, by hand", () => {
   const f = fixture();
@@ -15,12 +13,7 @@ Deno.test("clampForce: pressure × projected area, element by element, by hand",
   const c2 = f.element("C2");
   f.state.sideStart[2 * c2] = 0;
   f.state.fill[2 * c2] = 0.25 * f.network.elements[c2].volume;
-  const s = solveInstant(f.ctx, f.state, solveStats(), {
-    t: 1,
-    volumes: f.state.fill,
-    assembly: assemble(f.ctx, f.state),
-  });
-  assert.ok(!("failure" in s));
+  const s = solvedNow(f, 1);
   const p = (id: string) => s.pressure[f.node(id)];
   const pC2 = p("C2");
   // Cavities 100 cm²; round runners Ø5 (40 and 120 mm) and pin gates Ø1.4 × 1 mm project d × L.
@@ -74,12 +67,7 @@ Deno.test("updateMeltTemperature: an element's melt is its inlet temperature plu
   const f = fixture(unequalBranches("full"));
   markFull(f, ["hot_drop", "R1", "R2"]);
   for (const id of ["G1", "G2"]) f.state.sideStart[2 * f.element(id)] = 0;
-  const s = solveInstant(f.ctx, f.state, solveStats(), {
-    t: 0.01,
-    volumes: f.state.fill,
-    assembly: assemble(f.ctx, f.state),
-  });
-  assert.ok(!("failure" in s));
+  const s = solvedNow(f, 0.01);
   updateMeltTemperature(f.ctx, f.state, s);
   const rho = f.ctx.melt.meltDensity;
   const cp = f.ctx.melt.specificHeat;

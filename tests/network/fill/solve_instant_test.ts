@@ -1,14 +1,11 @@
 import assert from "node:assert/strict";
 import { assertClose } from "../../assert_close.ts";
-import { assemble } from "../../../src/network/fill/assemble.ts";
 import {
   fillDeadEnds,
   holdPressures,
   type Solved,
-  solveInstant,
-  solveStats,
 } from "../../../src/network/fill/solve_instant.ts";
-import { fixture, markFull } from "./_fixture.ts";
+import { fixture, markFull, solvedNow } from "./_fixture.ts";
 
 // Power-law tube and slit, Bird, Armstrong & Hassager, Dynamics of Polymeric Liquids vol. 1
 // (1987), ch. 4.
@@ -20,13 +17,7 @@ const slit = (Q: number, W: number, H: number, L: number) =>
   ((2 * K * L) / H) * Math.pow((2 * (2 * n + 1) * Q) / (n * W * H * H), n);
 
 function solved(f: ReturnType<typeof fixture>): Solved {
-  const s = solveInstant(f.ctx, f.state, solveStats(), {
-    t: 1,
-    volumes: f.state.fill,
-    assembly: assemble(f.ctx, f.state),
-  });
-  assert.ok(!("failure" in s), "failure" in s ? s.failure : "");
-  return s;
+  return solvedNow(f, 1);
 }
 
 Deno.test("solveInstant: one cavity full, the whole rate goes to the other and the pressures add up by hand", () => {
