@@ -8,4 +8,3 @@ export * from "./material_schema.ts";
 export * from "./scenario_schema.ts";
 export * from "./parse_scenario.ts";
 export * from "./json_schema.ts";
-export * from "./family_layout.ts";

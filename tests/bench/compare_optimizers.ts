@@ -14,7 +14,7 @@
  * @module
  */
 
-import { familyLayout } from "../../src/model/family_layout.ts";
+import { familyLayout } from "../support/family_layout.ts";
 import { parseScenario } from "../../src/model/parse_scenario.ts";
 import type { Scenario } from "../../src/model/scenario_schema.ts";
 import { LIBRARY_MATERIAL_IDS } from "../../src/network/simulate_scenario.ts";
@@ -23,7 +23,7 @@ import {
   handbookSizing,
   nelderMead,
   toolroomLoop,
-} from "../../src/optimize/baselines.ts";
+} from "../support/baselines.ts";
 import { designSpace } from "../../src/optimize/design_space.ts";
 import type { DesignEvaluation } from "../../src/optimize/evaluate_design.ts";
 import { optimizeBalance, type OptimizeBalanceOptions } from "../../src/optimize/balance.ts";

@@ -5,7 +5,7 @@
  * needs one solve of the whole wet network, so the total grows with elements × events).
  * Timings are wall clock on whatever machine runs it; they never go into tests.
  */
-import { familyLayout } from "../../src/model/family_layout.ts";
+import { familyLayout } from "../support/family_layout.ts";
 import { simulateScenario } from "../../src/network/simulate_scenario.ts";
 
 const sizes = Deno.args.includes("--large") ? [4, 16, 64, 256] : [4, 16, 64];

@@ -9,8 +9,8 @@
  */
 import type { LinearProgram, LpRow, LpVariable } from "../../src/optimize/lp_solver.ts";
 import { createHighsSolver } from "../../src/optimize/highs_solver.ts";
-import { createSimplexJsSolver } from "../../src/optimize/simplex_js_solver.ts";
-import { mulberry32 as random } from "../../src/model/seeded_random.ts";
+import { createSimplexJsSolver } from "../support/simplex_js_solver.ts";
+import { mulberry32 as random } from "../support/seeded_random.ts";
 
 /** 60 % design steps δ ∈ [−1, 1], 40 % slacks s ≥ 0 on rows g·δ − s ≤ h. */
 function slpProgram(total: number, seed: number): LinearProgram {

@@ -3,7 +3,7 @@
  * `deno bench -A tests/bench/simulate_bench.ts`. Per-element-per-event time is
  * printed once per layout so the growth with size can be read off.
  */
-import { familyLayout } from "../../src/model/family_layout.ts";
+import { familyLayout } from "../support/family_layout.ts";
 import { parseScenario } from "../../src/model/parse_scenario.ts";
 import type { Scenario } from "../../src/model/scenario_schema.ts";
 import { LIBRARY_MATERIAL_IDS, runScenario } from "../../src/network/simulate_scenario.ts";

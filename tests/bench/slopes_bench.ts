@@ -4,7 +4,7 @@
  * and the finite differences the tangent replaces (one more simulation per size):
  * `deno bench -A tests/bench/slopes_bench.ts`.
  */
-import { familyLayout } from "../../src/model/family_layout.ts";
+import { familyLayout } from "../support/family_layout.ts";
 import { parseScenario } from "../../src/model/parse_scenario.ts";
 import { LIBRARY_MATERIAL_IDS } from "../../src/network/simulate_scenario.ts";
 import { currentDesign, designSpace } from "../../src/optimize/design_space.ts";

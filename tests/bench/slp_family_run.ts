@@ -6,7 +6,7 @@
  *
  * @module
  */
-import { familyLayout } from "../../src/model/family_layout.ts";
+import { familyLayout } from "../support/family_layout.ts";
 import { parseScenario } from "../../src/model/parse_scenario.ts";
 import { LIBRARY_MATERIAL_IDS } from "../../src/network/simulate_scenario.ts";
 import { optimizeBalance } from "../../src/optimize/balance.ts";

@@ -10,7 +10,7 @@
  *
  * @module
  */
-import { familyLayout } from "../../src/model/family_layout.ts";
+import { familyLayout } from "../support/family_layout.ts";
 import { parseScenario } from "../../src/model/parse_scenario.ts";
 import type { Scenario } from "../../src/model/scenario_schema.ts";
 import { LIBRARY_MATERIAL_IDS } from "../../src/network/simulate_scenario.ts";

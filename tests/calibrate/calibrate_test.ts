@@ -3,7 +3,7 @@ import { assertClose } from "../assert_close.ts";
 import { calibrate } from "../../src/calibrate/calibrate.ts";
 import { applyFactors, type CalibrationFactor } from "../../src/calibrate/factors.ts";
 import type { Measurements } from "../../src/calibrate/measurements.ts";
-import { mulberry32 } from "../../src/model/seeded_random.ts";
+import { mulberry32 } from "../support/seeded_random.ts";
 import type { ScenarioWire } from "../../src/model/scenario_schema.ts";
 import { parseScenario } from "../../src/model/parse_scenario.ts";
 import { LIBRARY_MATERIAL_IDS, simulateScenario } from "../../src/network/simulate_scenario.ts";

@@ -6,7 +6,7 @@ import {
   viscosityAt,
   zeroShearViscosity,
 } from "../../src/materials/viscosity.ts";
-import { mulberry32 } from "../../src/model/seeded_random.ts";
+import { mulberry32 } from "../support/seeded_random.ts";
 
 // The "truth" parameters are invented for these tests (PP-like and PC-like magnitudes). The
 // synthetic data come from the Cross-WLF formula itself; what the test checks is that the fit

@@ -5,7 +5,7 @@
  * prove a restructuring left every number in place; it is never a reference for correctness
  * (the closed-form and handbook tests are).
  */
-import { familyLayout } from "../../src/model/family_layout.ts";
+import { familyLayout } from "../support/family_layout.ts";
 import { parseScenario } from "../../src/model/parse_scenario.ts";
 import type { ScenarioWire } from "../../src/model/scenario_schema.ts";
 import { buildNetwork } from "../../src/network/build_network.ts";

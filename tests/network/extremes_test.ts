@@ -2,7 +2,7 @@ import assert from "node:assert/strict";
 import { materialById } from "../../src/materials/library.ts";
 import type { ScenarioWire } from "../../src/model/scenario_schema.ts";
 import { simulateScenario } from "../../src/network/simulate_scenario.ts";
-import { mulberry32 } from "../../src/model/seeded_random.ts";
+import { mulberry32 } from "../support/seeded_random.ts";
 
 const demo = (): ScenarioWire =>
   JSON.parse(

@@ -1,6 +1,6 @@
 import assert from "node:assert/strict";
 import { assertClose } from "../assert_close.ts";
-import { familyLayout } from "../../src/model/family_layout.ts";
+import { familyLayout } from "../support/family_layout.ts";
 import type { ScenarioWire } from "../../src/model/scenario_schema.ts";
 import { type ScenarioRun, simulateScenario } from "../../src/network/simulate_scenario.ts";
 import type { FillSample } from "../../src/network/fill_result.ts";

@@ -1,6 +1,6 @@
 import assert from "node:assert/strict";
 import { assertClose } from "../assert_close.ts";
-import { familyLayout } from "../../src/model/family_layout.ts";
+import { familyLayout } from "../support/family_layout.ts";
 import { parseScenario } from "../../src/model/parse_scenario.ts";
 import type { Scenario, ScenarioWire } from "../../src/model/scenario_schema.ts";
 import { LIBRARY_MATERIAL_IDS } from "../../src/network/simulate_scenario.ts";
@@ -9,7 +9,7 @@ import {
   nelderMead,
   nelderMeadMinimise,
   toolroomLoop,
-} from "../../src/optimize/baselines.ts";
+} from "../support/baselines.ts";
 import { currentDesign, designSpace } from "../../src/optimize/design_space.ts";
 import { evaluateDesign, runnerVolumeOf } from "../../src/optimize/evaluate_design.ts";
 

@@ -19,8 +19,8 @@ import {
   unscaleSolution,
 } from "../../src/optimize/lp_solver.ts";
 import { createHighsSolver, formatCplexLp } from "../../src/optimize/highs_solver.ts";
-import { createSimplexJsSolver } from "../../src/optimize/simplex_js_solver.ts";
-import { mulberry32 as random } from "../../src/model/seeded_random.ts";
+import { createSimplexJsSolver } from "../support/simplex_js_solver.ts";
+import { mulberry32 as random } from "../support/seeded_random.ts";
 
 const highs = await createHighsSolver();
 const simplexJs = createSimplexJsSolver();

@@ -11,4 +11,4 @@ export function untagged(curve: FlowCurve): FlowCurve {
 }
 
 /** Deterministic pseudo-random numbers in [0, 1) (mulberry32). */
-export { mulberry32 as seededRandom } from "../../src/model/seeded_random.ts";
+export { mulberry32 as seededRandom } from "../support/seeded_random.ts";

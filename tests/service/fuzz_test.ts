@@ -2,7 +2,7 @@
 // through the app's handler. Whatever the body, the answer is a deliberate
 // status with the error shape — never a 500.
 import assert from "node:assert/strict";
-import { mulberry32 } from "../../src/model/seeded_random.ts";
+import { mulberry32 } from "../support/seeded_random.ts";
 import { testApp } from "./_app.ts";
 
 // deno-lint-ignore no-explicit-any

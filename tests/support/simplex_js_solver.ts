@@ -40,7 +40,7 @@ import {
   type LpSolver,
   trivialInfeasibility,
   validateProgram,
-} from "./lp_solver.ts";
+} from "../../src/optimize/lp_solver.ts";
 
 /** The runtime shape we use; the package's own types disagree with its runtime export. */
 export interface SimplexJsRuntime {

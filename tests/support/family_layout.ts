@@ -1,4 +1,4 @@
-import { SCENARIO_FORMAT, type ScenarioWire } from "./scenario_schema.ts";
+import { SCENARIO_FORMAT, type ScenarioWire } from "../../src/model/scenario_schema.ts";
 import { mulberry32 } from "./seeded_random.ts";
 
 /** Options of {@link familyLayout}. */

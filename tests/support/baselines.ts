@@ -1,14 +1,22 @@
-import type { Scenario } from "../model/scenario_schema.ts";
-import { mmToM } from "../model/units.ts";
+import type { Scenario } from "../../src/model/scenario_schema.ts";
+import { mmToM } from "../../src/model/units.ts";
 import {
   type CutterCatalogue,
   cutterCatalogue,
   nearest,
   neighbouringSizes,
   roundUp,
-} from "./cutters.ts";
-import { currentDesign, type DesignSpace, RUNNER_OVER_WALL_MM } from "./design_space.ts";
-import { type DesignEvaluation, evaluateDesign, runnerVolumeOf } from "./evaluate_design.ts";
+} from "../../src/optimize/cutters.ts";
+import {
+  currentDesign,
+  type DesignSpace,
+  RUNNER_OVER_WALL_MM,
+} from "../../src/optimize/design_space.ts";
+import {
+  type DesignEvaluation,
+  evaluateDesign,
+  runnerVolumeOf,
+} from "../../src/optimize/evaluate_design.ts";
 
 /**
  * Three baseline ways of sizing a runner system, against which the SLP
