@@ -1,7 +1,7 @@
 /**
  * Command-line entry: `simulate`, `validate`, `materials`, `schema` over scenario
- * files. Exit codes: 0 done, 1 usage error, 2 invalid scenario (issues on stderr),
- * 3 the simulation failed.
+ * files, `fit-material` over viscosity CSV files. Exit codes: 0 done, 1 usage error,
+ * 2 invalid scenario or CSV (issues on stderr), 3 the simulation failed.
  *
  * @module
  */
@@ -20,6 +20,12 @@ import { optimizeBalance } from "./optimize/balance.ts";
 import { optimizationJson, optimizationText } from "./report/optimization_report.ts";
 import { changeSheetCsv } from "./report/change_sheet_csv.ts";
 import { changeList } from "./optimize/change_list.ts";
+import {
+  FIT_MATERIAL_OPTIONS,
+  FIT_MATERIAL_USAGE,
+  FIT_MATERIAL_VALUED,
+  fitMaterialCommand,
+} from "./fit_material_command.ts";
 
 const USAGE = `evenfill — runner balancing for multi-cavity and family molds
 
@@ -32,11 +38,13 @@ usage:
                      [--write <calibrated.json>]   (fits the model to the scenario's measurements)
   evenfill window <scenario.json> [--json]   (imbalance and gate shear across the process window)
   evenfill materials
+${FIT_MATERIAL_USAGE}
   evenfill schema [--write <path>]
 
 exit codes: 0 done (optimize: converged; the report flags a cutter-size design that misses a
-limit); 1 usage or file error; 2 the scenario has problems, or an unknown option (listed,
-with their JSON paths; as JSON with --json); 3 the simulation or the optimization failed;
+limit); 1 usage or file error; 2 the scenario (fit-material: the CSV) has problems, or an
+unknown option (listed, with their JSON paths or line numbers; as JSON with --json); 3 the
+simulation, the optimization or the fit failed;
 4 optimize ended infeasible, at its iteration limit or cancelled — the report says why.
 
 (with Deno: deno task simulate scenarios/family_four_housing.json)`;
@@ -49,6 +57,7 @@ const OPTIONS: Record<string, readonly string[]> = {
   calibrate: ["json", "factors", "write"],
   window: ["json"],
   materials: [],
+  "fit-material": FIT_MATERIAL_OPTIONS,
   schema: ["write"],
 };
 
@@ -65,7 +74,7 @@ function writeAllSync(out: { writeSync(p: Uint8Array): number }, bytes: Uint8Arr
 function parseArgs(argv: readonly string[]): Args {
   const positional: string[] = [];
   const flags = new Map<string, string | true>();
-  const valued = new Set(["units", "write", "mode", "slopes", "factors"]);
+  const valued = new Set(["units", "write", "mode", "slopes", "factors", ...FIT_MATERIAL_VALUED]);
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i];
     if (a.startsWith("--")) {
@@ -402,6 +411,8 @@ export async function main(argv: readonly string[]): Promise<number> {
       );
       return 0;
     }
+    case "fit-material":
+      return await fitMaterialCommand(args.positional[0], args.flags);
     case "schema": {
       const text = JSON.stringify(scenarioJsonSchema(), null, 2) + "\n";
       const target = args.flags.get("write");
