@@ -7,7 +7,9 @@
  */
 import { MATERIALS } from "./materials/library.ts";
 import { scenarioJsonSchema } from "./model/json_schema.ts";
-import { parseScenarioText, type ScenarioIssue } from "./model/parse_scenario.ts";
+import { parseScenarioText } from "./model/parse_scenario.ts";
+import { MODES, ModeSchema, SLOPE_SOURCES, SlopeSourceSchema } from "./wire/enums.ts";
+import type { ScenarioIssue } from "./wire/issue.ts";
 import type { Scenario } from "./model/scenario_schema.ts";
 import { checkScenario, LIBRARY_MATERIAL_IDS, runScenario } from "./network/simulate_scenario.ts";
 import { calibrate } from "./calibrate/calibrate.ts";
@@ -307,19 +309,24 @@ export async function main(argv: readonly string[]): Promise<number> {
       }
       const mode = args.flags.get("mode");
       if (mode !== undefined) {
-        if (mode !== "new_tool" && mode !== "trim" && mode !== "steel_safe") {
-          console.error(`--mode must be new_tool, trim or steel_safe, got ${mode}`);
+        const known = ModeSchema.safeParse(mode);
+        if (!known.success) {
+          console.error(
+            `--mode must be ${MODES.slice(0, -1).join(", ")} or ${MODES.at(-1)}, got ${mode}`,
+          );
           return 1;
         }
-        read.scenario.goals.mode = mode;
+        read.scenario.goals.mode = known.data;
       }
-      const slopes = args.flags.get("slopes") ?? "tangent";
-      if (slopes !== "tangent" && slopes !== "finite_difference") {
-        console.error(`--slopes must be tangent or finite_difference, got ${slopes}`);
+      const slopes = SlopeSourceSchema.safeParse(args.flags.get("slopes") ?? "tangent");
+      if (!slopes.success) {
+        console.error(
+          `--slopes must be ${SLOPE_SOURCES.join(" or ")}, got ${args.flags.get("slopes")}`,
+        );
         return 1;
       }
       const result = await optimizeBalance(read.scenario, {
-        slopes,
+        slopes: slopes.data,
         onProgress: (i) =>
           console.error(
             `iteration ${i.iteration}: ${i.accepted ? "accepted" : "rejected"}, imbalance ${
@@ -365,7 +372,7 @@ export async function main(argv: readonly string[]): Promise<number> {
       const fit = calibrate(wire, read.scenario.measurements, { factors });
       if (!fit.ok) {
         if (fit.code === "invalid_measurements") {
-          printIssues(file!, fit.issues.map((i) => ({ ...i, path: [], code: fit.code })));
+          printIssues(file!, fit.issues);
           return 2;
         }
         console.error(`Calibration failed: ${fit.message}`);

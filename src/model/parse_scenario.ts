@@ -1,17 +1,8 @@
 import type { z } from "zod";
+import { pathText, type ScenarioIssue, scenarioIssue, zodIssues } from "../wire/issue.ts";
 import { type Scenario, ScenarioSchema } from "./scenario_schema.ts";
 
-/** One problem found in a scenario: where (JSON path), a stable code, and a plain message. */
-export interface ScenarioIssue {
-  /** JSON path of the offending field, e.g. `["gates", 2, "thickness_mm"]`. */
-  path: (string | number)[];
-  /** The same path as text, e.g. `gates[2].thickness_mm` (`$` for the root). */
-  at: string;
-  /** Stable machine-readable code. */
-  code: string;
-  /** What is wrong, in plain words. */
-  message: string;
-}
+export { pathText, type ScenarioIssue } from "../wire/issue.ts";
 
 /** Result of parsing: the scenario with defaults applied, or the list of issues. */
 export type ParseScenarioResult =
@@ -27,97 +18,26 @@ export interface ParseScenarioOptions {
 /** Ids the network gives the feed element and the injection point; no user id may take them. */
 export const RESERVED_IDS: ReadonlySet<string> = new Set(["inlet", "sprue", "hot_drop"]);
 
-/** Render a JSON path as `a[0].b`. */
-export function pathText(path: readonly (string | number | symbol)[]): string {
-  if (path.length === 0) return "$";
-  let text = "";
-  for (const part of path) {
-    if (typeof part === "number") text += `[${part}]`;
-    else text += text === "" ? String(part) : `.${String(part)}`;
-  }
-  return text;
-}
+const issue = scenarioIssue;
 
-function issue(path: (string | number)[], code: string, message: string): ScenarioIssue {
-  return { path, at: pathText(path), code, message };
-}
-
-type ZodIssueLike = {
-  code: string;
-  path: PropertyKey[];
-  message: string;
-  expected?: string;
-  received?: string;
-  keys?: string[];
-  errors?: ZodIssueLike[][];
-  options?: unknown[];
-};
-
+/** The schema library's issues in the scenario's own words. */
 function fromZod(error: z.ZodError): ScenarioIssue[] {
-  return (error.issues as unknown as ZodIssueLike[]).flatMap((i) => plainIssues(i, []));
-}
-
-/** The schema library's issue in plain words, its path made absolute. */
-function plainIssues(i: ZodIssueLike, prefix: (string | number)[]): ScenarioIssue[] {
-  const path = [...prefix, ...i.path.map((p) => (typeof p === "symbol" ? String(p) : p))] as (
-    | string
-    | number
-  )[];
-  const last = path[path.length - 1];
-  if (i.code === "invalid_union") {
-    if (last === "injection") {
-      return [issue(
-        path,
-        "injection_form",
-        "injection must give exactly one of flow_rate_cm3_s (cm³/s) or fill_time_s (s)",
-      )];
-    }
-    const discriminator = /Expected (.*)$/.exec(i.message);
-    if (discriminator && /discriminator/i.test(i.message)) {
-      const allowed = discriminator[1].replaceAll("'", "").split(" | ").join(", ");
-      return [issue(path, "unknown_kind", `${String(last)} must be one of ${allowed}`)];
-    }
-    // Report the alternative that came closest (fewest problems), in its own words.
-    // An alternative of the wrong type altogether (a string where an object was given) says
-    // nothing; of the others, the closest (fewest problems) in its own words.
-    const branches = (i.errors ?? []).filter((b) =>
-      b.length > 0 && !(b.length === 1 && b[0].path.length === 0 && b[0].code === "invalid_type")
-    );
-    if (branches.length > 0) {
-      const closest = branches.reduce((a, b) => (b.length < a.length ? b : a));
-      return closest.flatMap((inner) => plainIssues(inner, path));
-    }
-    if (last === "material") {
-      return [issue(
-        path,
-        "unknown_material",
-        "material must be a library id (see `evenfill materials`) or an inline material object",
-      )];
-    }
-    return [issue(path, i.code, `${String(last ?? "the scenario")} has none of the allowed forms`)];
-  }
-  if (i.code === "invalid_type") {
-    if (i.received === "undefined" || /received undefined/.test(i.message)) {
-      return [issue(path, "missing", `${String(last)} is missing`)];
-    }
-    const expected = i.expected ?? /expected (\w+)/.exec(i.message)?.[1] ?? "another type";
-    return [issue(path, i.code, `${String(last)} must be ${article(expected)} ${expected}`)];
-  }
-  if (i.code === "unrecognized_keys") {
-    const keys = i.keys ?? [];
-    return [issue(
-      path,
-      i.code,
-      `unknown field${keys.length === 1 ? "" : "s"} ${
-        keys.map((k) => `"${k}"`).join(", ")
-      } (the fields are listed in public/schema/scenario.schema.json)`,
-    )];
-  }
-  return [issue(path, i.code, i.message.replace(/^Invalid input: /, ""))];
-}
-
-function article(word: string): string {
-  return /^[aeiou]/.test(word) ? "an" : "a";
+  return zodIssues(error, {
+    unionWords: {
+      injection: {
+        code: "injection_form",
+        message: "injection must give exactly one of flow_rate_cm3_s (cm³/s) or fill_time_s (s)",
+      },
+    },
+    unionFallback: {
+      material: {
+        code: "unknown_material",
+        message:
+          "material must be a library id (see `evenfill materials`) or an inline material object",
+      },
+    },
+    unknownFieldsHint: "(the fields are listed in public/schema/scenario.schema.json)",
+  });
 }
 
 /**

@@ -1,6 +1,7 @@
 import { z } from "zod";
 import { MaterialSchema } from "./material_schema.ts";
 import { MeasurementsSchema } from "./measurements_schema.ts";
+import { ModeSchema } from "../wire/enums.ts";
 
 /**
  * The scenario file, wire format `evenfill.scenario/1`. Units are in the field
@@ -179,7 +180,7 @@ export const CavitySchema = z.object({
 }).strict();
 
 export const GoalsSchema = z.object({
-  mode: z.enum(["new_tool", "trim", "steel_safe"]).default("new_tool").describe(
+  mode: ModeSchema.default("new_tool").describe(
     "new_tool: free sizes within bounds; trim: an existing tool, runners may shrink; steel_safe: only enlarge",
   ),
   max_imbalance_percent: z.number().min(0).max(100).default(3),

@@ -1,13 +1,18 @@
 import type { BalanceIteration, BalanceOutcome } from "../optimize/balance.ts";
 import { type Change, changeList, dualSize } from "../optimize/change_list.ts";
 import { m3ToCm3, mToInch, mToMm, paToMpa } from "../model/units.ts";
+import {
+  type Continuous,
+  type Iteration,
+  OPTIMIZATION_FORMAT,
+  type OptimizationResult,
+} from "../wire/optimization.ts";
 import { resultJson } from "./result_json.ts";
 
-/** Wire format of an optimization (`evenfill.optimization/1`). */
-export const OPTIMIZATION_FORMAT = "evenfill.optimization/1";
+export { OPTIMIZATION_FORMAT } from "../wire/optimization.ts";
 
 /** One SLP iteration on the wire: the optimization's history and a job's progress. */
-export function iterationJson(i: BalanceIteration) {
+export function iterationJson(i: BalanceIteration): Iteration {
   return {
     iteration: i.iteration,
     accepted: i.accepted,
@@ -27,7 +32,10 @@ export interface OptimizationJsonOptions {
 }
 
 /** The optimization JSON of product.md, with the change list in order of work. */
-export function optimizationJson(outcome: BalanceOutcome, options: OptimizationJsonOptions = {}) {
+export function optimizationJson(
+  outcome: BalanceOutcome,
+  options: OptimizationJsonOptions = {},
+): OptimizationResult {
   const changes = options.changes ?? changeList(outcome);
   const history = options.history ?? false;
   return {
@@ -73,7 +81,7 @@ export function optimizationJson(outcome: BalanceOutcome, options: OptimizationJ
  * was simulated: its imbalance, peak feed pressure, runner volume, the limits it breaks and
  * its sizes. With `cutters: "continuous"` it is the after design.
  */
-export function continuousJson(outcome: BalanceOutcome) {
+export function continuousJson(outcome: BalanceOutcome): Continuous {
   const c = outcome.continuous;
   return {
     imbalance_percent: Number(c.imbalancePercent.toFixed(4)),

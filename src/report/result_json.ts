@@ -1,17 +1,23 @@
 import type { ElementGeometry } from "../network/feed_network.ts";
 import type { ScenarioRun } from "../network/simulate_scenario.ts";
 import { kgToG, kToC, m3ToCm3, mToMm, nToKn, paToMpa } from "../model/units.ts";
+import { RESULT_FORMAT, type SimulationResult } from "../wire/result.ts";
 
-/** Wire format of one simulation (`evenfill.result/1`); units in the field names. */
-export const RESULT_FORMAT = "evenfill.result/1";
+export { RESULT_FORMAT } from "../wire/result.ts";
 
 const round = (
   x: number,
   digits = 6,
 ) => (Number.isFinite(x) ? Number(x.toPrecision(digits)) : null);
 
-/** The result JSON of product.md ("Result"), with stable field names. */
-export function resultJson(run: ScenarioRun, options: { history?: boolean } = {}) {
+/**
+ * The result JSON of product.md ("Result"), with stable field names: a value of the
+ * wire type ({@link SimulationResult}, schema `wire/result.ts`).
+ */
+export function resultJson(
+  run: ScenarioRun,
+  options: { history?: boolean } = {},
+): SimulationResult {
   const { fill, network, scenario, material, freeze } = run;
   const shearLimit = scenario.goals.gate_shear_limit_1_s ?? material.maxShearRate;
   const machinePressure = scenario.machine.max_injection_pressure_MPa;
@@ -100,7 +106,7 @@ export function resultJson(run: ScenarioRun, options: { history?: boolean } = {}
       })),
     },
     warnings: run.warnings,
-    cautions: run.cautions,
+    cautions: [...run.cautions],
     model: {
       thermal: run.process.isothermal ? "isothermal" : "full",
       viscous_heating: run.process.isothermal
@@ -143,7 +149,7 @@ export function resultJson(run: ScenarioRun, options: { history?: boolean } = {}
 }
 
 /** The type of {@link resultJson}'s output. */
-export type ResultJson = ReturnType<typeof resultJson>;
+export type ResultJson = SimulationResult;
 
 /**
  * How far melt travels through an element along its flow path, m: a channel's length, a

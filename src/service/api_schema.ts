@@ -6,14 +6,28 @@
  */
 import { z } from "zod";
 import { MaterialSchema } from "../model/material_schema.ts";
+import {
+  IssueSchema,
+  JobErrorSchema,
+  JobKindSchema,
+  JobProgressSchema,
+  JobStatusSchema,
+  ModeSchema,
+  OptimizationSchema,
+  SlopeSourceSchema,
+} from "../wire/mod.ts";
 
-/** One problem in a request, with its JSON path. */
-export const IssueSchema = z.object({
-  at: z.string().describe("JSON path as text, e.g. gates[2].thickness_mm ($ for the root)"),
-  path: z.array(z.union([z.string(), z.number()])),
-  code: z.string(),
-  message: z.string(),
-});
+export {
+  IssueSchema,
+  JobEndEventSchema,
+  JobErrorSchema,
+  JobKindSchema,
+  JobProgressSchema,
+  JobStateEventSchema,
+  JobStatusSchema,
+  OptimizationSchema,
+  ResultSchema,
+} from "../wire/mod.ts";
 
 /** Every error response. */
 export const ErrorSchema = z.object({
@@ -80,33 +94,17 @@ export const ValidationSchema = z.object({
   issues: z.array(IssueSchema).optional(),
 });
 
-/** Job kinds; `test_spin` (a deliberately endless job) only when test jobs are enabled. */
-export const JobKindSchema = z.enum(["optimize", "test_spin"]);
-
 export const JobSubmitSchema = z.object({
   kind: JobKindSchema,
   scenario: z.unknown().describe("evenfill.scenario/1 JSON"),
-  mode: z.enum(["new_tool", "trim", "steel_safe"]).optional().describe(
+  mode: ModeSchema.optional().describe(
     "overrides goals.mode of the scenario",
   ),
   scenario_id: z.string().max(100).optional().describe("the saved scenario this job is about"),
-  slopes: z.enum(["tangent", "finite_difference"]).optional().describe(
+  slopes: SlopeSourceSchema.optional().describe(
     "where the optimizer's slopes come from: the simulation's tangent (default) or one extra simulation per size",
   ),
 });
-
-export const JobStatusSchema = z.enum(["queued", "running", "done", "failed", "cancelled"]);
-
-export const JobProgressSchema = z.object({
-  iteration: z.number().int(),
-  accepted: z.boolean(),
-  imbalance_percent: z.number(),
-  feed_pressure_peak_MPa: z.number(),
-  runner_volume_cm3: z.number(),
-  simulations: z.number().int(),
-});
-
-export const JobErrorSchema = z.object({ code: z.string(), message: z.string() });
 
 export const JobAcceptedSchema = z.object({
   id: z.string(),
@@ -131,18 +129,13 @@ export const JobSummarySchema = z.object({
 export const JobListSchema = z.object({ jobs: z.array(JobSummarySchema) });
 
 export const JobSchema = JobSummarySchema.extend({
-  mode: z.string().nullable(),
-  slopes: z.string().nullable(),
+  mode: ModeSchema.nullable(),
+  slopes: SlopeSourceSchema.nullable(),
   scenario_id: z.string().nullable(),
   time_limit_s: z.number(),
-  result: z.record(z.string(), z.unknown()).nullable().describe(
+  result: OptimizationSchema.nullable().describe(
     "evenfill.optimization/1 JSON with the before/after fill history",
   ),
 });
 
 export const CancelSchema = z.object({ id: z.string(), status: JobStatusSchema });
-
-/** Result JSON of one simulation (evenfill.result/1); fields documented in product.md. */
-export const ResultSchema = z.object({ format: z.literal("evenfill.result/1") }).catchall(
-  z.unknown(),
-);

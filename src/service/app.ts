@@ -8,12 +8,13 @@
 import { nanoid } from "nanoid";
 import type { z } from "zod";
 import { MATERIALS } from "../materials/library.ts";
-import { pathText, type ScenarioIssue } from "../model/parse_scenario.ts";
+import { type ScenarioIssue, scenarioIssue, zodIssues } from "../wire/issue.ts";
+import type { OptimizationResult } from "../wire/optimization.ts";
 import type { Scenario } from "../model/scenario_schema.ts";
 import type { runScenario } from "../network/simulate_scenario.ts";
 import { checkScenario } from "../network/simulate_scenario.ts";
 import { type JobRecord, type JobSummary, type Store, StoreBusyError } from "../store/store.ts";
-import { JobSubmitSchema } from "./api_schema.ts";
+import { type JobSchema, JobSubmitSchema, type JobSummarySchema } from "./api_schema.ts";
 import { isLoopback, type ServiceConfig } from "./config.ts";
 import { openApiDocument } from "./openapi.ts";
 import { jobEvents } from "./job_events.ts";
@@ -116,13 +117,6 @@ function errorResponse(e: HttpError): Response {
   const error: Record<string, unknown> = { code: e.code, message: e.message };
   if (e.issues) error.issues = e.issues;
   return json({ error }, e.status, e.headers);
-}
-
-function zodIssues(error: z.ZodError): ScenarioIssue[] {
-  return error.issues.map((i) => {
-    const path = i.path.map((p) => (typeof p === "symbol" ? String(p) : p));
-    return { path, at: pathText(path), code: i.code, message: i.message };
-  });
 }
 
 /** Limits of {@link readJson}. */
@@ -247,12 +241,7 @@ async function readJson(request: Request, limits: ReadJsonLimits): Promise<unkno
       400,
       "json_too_deep",
       `Request body nests arrays and objects deeper than ${limits.maxDepth} levels`,
-      [{
-        path: [],
-        at: "$",
-        code: "json_too_deep",
-        message: `Nested deeper than ${limits.maxDepth} levels`,
-      }],
+      [scenarioIssue([], "json_too_deep", `Nested deeper than ${limits.maxDepth} levels`)],
     );
   }
   try {
@@ -260,7 +249,7 @@ async function readJson(request: Request, limits: ReadJsonLimits): Promise<unkno
   } catch (error) {
     const detail = error instanceof Error ? error.message : String(error);
     throw new HttpError(400, "invalid_json", `Request body is not valid JSON: ${detail}`, [
-      { path: [], at: "$", code: "invalid_json", message: `Not valid JSON: ${detail}` },
+      scenarioIssue([], "invalid_json", `Not valid JSON: ${detail}`),
     ]);
   }
 }
@@ -315,7 +304,7 @@ function loadDemos(dir: string): Demo[] {
   return demos.sort((a, b) => a.id.localeCompare(b.id));
 }
 
-function jobSummary(job: JobSummary) {
+function jobSummary(job: JobSummary): z.infer<typeof JobSummarySchema> {
   return {
     id: job.id,
     kind: job.kind,
@@ -331,15 +320,19 @@ function jobSummary(job: JobSummary) {
   };
 }
 
-function jobView(job: JobRecord) {
-  const input = (job.input ?? {}) as { mode?: string; slopes?: string; scenario_id?: string };
+function jobView(job: JobRecord): z.infer<typeof JobSchema> {
+  // The input passed JobSubmitSchema when it was queued.
+  const input = (job.input ?? {}) as Pick<
+    z.infer<typeof JobSubmitSchema>,
+    "mode" | "slopes" | "scenario_id"
+  >;
   return {
     ...jobSummary(job),
     mode: input.mode ?? null,
     slopes: input.slopes ?? null,
     scenario_id: input.scenario_id ?? null,
     time_limit_s: job.time_limit_ms / 1000,
-    result: job.result ?? null,
+    result: (job.result ?? null) as OptimizationResult | null,
   };
 }
 
@@ -496,12 +489,7 @@ export function createApp(options: AppOptions): Handler {
     const submit = parsed.data;
     if (submit.kind === "test_spin" && !config.enableTestJobs) {
       throw new HttpError(400, "invalid_request", "Job kind test_spin is only enabled for tests", [
-        {
-          path: ["kind"],
-          at: "kind",
-          code: "unknown_kind",
-          message: "test_spin is a test-only job kind",
-        },
+        scenarioIssue(["kind"], "unknown_kind", "test_spin is a test-only job kind"),
       ]);
     }
     const scenario = validScenario(submit.scenario);

@@ -1,4 +1,11 @@
-import { type JobStatus, type JobStore, StoreBusyError } from "../store/store.ts";
+import { type JobStore, StoreBusyError } from "../store/store.ts";
+import {
+  FINAL_JOB_STATUSES as FINAL,
+  type JobEndEvent,
+  type JobProgress,
+  type JobStateEvent,
+  type JobStatus,
+} from "../wire/mod.ts";
 
 /** Options of {@link jobEvents}. */
 export interface JobEventsOptions {
@@ -12,7 +19,12 @@ export interface JobEventsOptions {
   onClose?: () => void;
 }
 
-const FINAL: ReadonlySet<JobStatus> = new Set(["done", "failed", "cancelled"]);
+/** Each event's data, by event name (schemas in `wire/job.ts`). */
+interface JobEventData {
+  state: JobStateEvent;
+  progress: JobProgress;
+  end: JobEndEvent;
+}
 
 /**
  * A Server-Sent Events response following one job: `state` ({status}) on every
@@ -36,7 +48,7 @@ export function jobEvents(store: JobStore, id: string, options: JobEventsOptions
       let status: JobStatus | undefined;
       let progressSeq = -1;
       let lastWrite = Date.now();
-      const send = (event: string, data: unknown) => {
+      const send = <E extends keyof JobEventData>(event: E, data: JobEventData[E]) => {
         controller.enqueue(
           encoder.encode(`id: ${++eventId}\nevent: ${event}\ndata: ${JSON.stringify(data)}\n\n`),
         );

@@ -1,13 +1,58 @@
 import { z } from "zod";
 import { scenarioJsonSchema } from "../model/json_schema.ts";
+import * as wire from "../wire/mod.ts";
 import * as api from "./api_schema.ts";
 
 type Schema = Record<string, unknown>;
 
-function component(schema: z.ZodType, io: "input" | "output" = "output"): Schema {
-  const json = z.toJSONSchema(schema, { io, target: "draft-2020-12", unrepresentable: "any" });
-  delete (json as Schema).$schema;
-  return json as Schema;
+const JSON_SCHEMA = { target: "draft-2020-12", unrepresentable: "any" } as const;
+
+/** The API's zod schemas, by component name; one nested in another becomes a `$ref`. */
+const COMPONENTS: Record<string, z.ZodType> = {
+  Error: api.ErrorSchema,
+  Issue: api.IssueSchema,
+  Health: api.HealthSchema,
+  MaterialList: api.MaterialListSchema,
+  DemoList: api.DemoListSchema,
+  ScenarioHead: api.ScenarioHeadSchema,
+  ScenarioList: api.ScenarioListSchema,
+  SavedScenario: api.SavedScenarioSchema,
+  RevisionList: api.RevisionListSchema,
+  Revision: api.RevisionSchema,
+  Validation: api.ValidationSchema,
+  Result: wire.ResultSchema,
+  Optimization: wire.OptimizationSchema,
+  Mode: wire.ModeSchema,
+  SlopeSource: wire.SlopeSourceSchema,
+  JobKind: wire.JobKindSchema,
+  JobStatus: wire.JobStatusSchema,
+  JobError: wire.JobErrorSchema,
+  JobProgress: wire.JobProgressSchema,
+  JobStateEvent: wire.JobStateEventSchema,
+  JobEndEvent: wire.JobEndEventSchema,
+  JobAccepted: api.JobAcceptedSchema,
+  JobSummary: api.JobSummarySchema,
+  JobList: api.JobListSchema,
+  Job: api.JobSchema,
+  Cancel: api.CancelSchema,
+};
+
+/** Each component's JSON Schema (draft 2020-12), generated from its zod schema. */
+export function componentSchemas(): Record<string, Schema> {
+  const registry = z.registry<{ id: string }>();
+  for (const [id, schema] of Object.entries(COMPONENTS)) registry.add(schema, { id });
+  const generated = z.toJSONSchema(registry, {
+    ...JSON_SCHEMA,
+    io: "output",
+    uri: (id) => `#/components/schemas/${id}`,
+  }).schemas as Record<string, Schema>;
+  const submit = z.toJSONSchema(api.JobSubmitSchema, { ...JSON_SCHEMA, io: "input" }) as Schema;
+  const schemas: Record<string, Schema> = { ...generated, JobSubmit: submit };
+  for (const schema of Object.values(schemas)) {
+    delete schema.$schema;
+    delete schema.$id;
+  }
+  return schemas;
 }
 
 const ref = (name: string) => ({ $ref: `#/components/schemas/${name}` });
@@ -24,33 +69,16 @@ const idParam = (name: string, description: string) => ({
 
 /**
  * The OpenAPI 3.1 document of the service, its schemas generated from the zod
- * schemas in `api_schema.ts` and the scenario schema.
+ * schemas of the wire formats (`wire/`), of the API (`api_schema.ts`) and of the scenario.
  */
 export function openApiDocument(version: string): Schema {
   const schemas: Record<string, Schema> = {
-    Error: component(api.ErrorSchema),
-    Issue: component(api.IssueSchema),
-    Health: component(api.HealthSchema),
-    MaterialList: component(api.MaterialListSchema),
-    DemoList: component(api.DemoListSchema),
+    ...componentSchemas(),
     Scenario: (() => {
       const s = { ...scenarioJsonSchema() };
       delete s.$schema;
       return s;
     })(),
-    ScenarioHead: component(api.ScenarioHeadSchema),
-    ScenarioList: component(api.ScenarioListSchema),
-    SavedScenario: component(api.SavedScenarioSchema),
-    RevisionList: component(api.RevisionListSchema),
-    Revision: component(api.RevisionSchema),
-    Validation: component(api.ValidationSchema),
-    Result: component(api.ResultSchema),
-    JobSubmit: component(api.JobSubmitSchema, "input"),
-    JobAccepted: component(api.JobAcceptedSchema),
-    JobList: component(api.JobListSchema),
-    Job: component(api.JobSchema),
-    JobProgress: component(api.JobProgressSchema),
-    Cancel: component(api.CancelSchema),
   };
   const scenarioBody = {
     required: true,
@@ -222,12 +250,22 @@ export function openApiDocument(version: string): Schema {
       "/api/jobs/{id}/events": {
         get: {
           summary:
-            "Server-Sent Events: `state` {status}, `progress` (JobProgress), final `end` {status, error}",
+            "Server-Sent Events: `state` (JobStateEvent), `progress` (JobProgress), final `end` (JobEndEvent)",
           parameters: [jobId],
           responses: {
             200: {
-              description: "event stream",
-              content: { "text/event-stream": { schema: { type: "string" } } },
+              description:
+                "event stream; each event's `data` is JSON, its schema by event name in x-event-data",
+              content: {
+                "text/event-stream": {
+                  schema: { type: "string" },
+                  "x-event-data": {
+                    state: ref("JobStateEvent"),
+                    progress: ref("JobProgress"),
+                    end: ref("JobEndEvent"),
+                  },
+                },
+              },
             },
             404: notFound,
           },

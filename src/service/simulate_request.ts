@@ -1,6 +1,8 @@
-import { parseScenario, type ScenarioIssue } from "../model/parse_scenario.ts";
+import { parseScenario } from "../model/parse_scenario.ts";
 import { LIBRARY_MATERIAL_IDS, runScenario } from "../network/simulate_scenario.ts";
 import { resultJson } from "../report/result_json.ts";
+import type { ScenarioIssue } from "../wire/issue.ts";
+import type { SimulationResult } from "../wire/result.ts";
 
 /** Options of {@link simulateRequest}. */
 export interface SimulateRequestOptions {
@@ -20,7 +22,7 @@ export interface SimulateRequestOptions {
  * log, never for the client.
  */
 export type SimulateReply =
-  | { ok: true; result: unknown }
+  | { ok: true; result: SimulationResult }
   | {
     ok: false;
     status: number;

@@ -7,6 +7,7 @@
  *
  * @module
  */
+import type { JobError, JobKind, JobProgress, JobStatus } from "../wire/mod.ts";
 
 /** A saved scenario's head: its latest revision. */
 export interface ScenarioHead {
@@ -27,27 +28,8 @@ export interface ScenarioRevision {
   scenario: unknown;
 }
 
-/** Life cycle of a job. */
-export type JobStatus = "queued" | "running" | "done" | "failed" | "cancelled";
-
-/** Kinds of job the workers run. `test_spin` exists only when test jobs are enabled. */
-export type JobKind = "optimize" | "test_spin";
-
-/** Latest progress of a running optimization, wire names. */
-export interface JobProgress {
-  iteration: number;
-  accepted: boolean;
-  imbalance_percent: number;
-  feed_pressure_peak_MPa: number;
-  runner_volume_cm3: number;
-  simulations: number;
-}
-
-/** A job's failure, with a stable code. */
-export interface JobError {
-  code: string;
-  message: string;
-}
+/** The job wire types (`wire/`), for the store's users. */
+export type { JobError, JobKind, JobProgress, JobStatus } from "../wire/mod.ts";
 
 /** Everything stored about a job. */
 export interface JobRecord {

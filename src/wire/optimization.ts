@@ -1,0 +1,91 @@
+/**
+ * The optimization JSON (`evenfill.optimization/1`, built by
+ * `report/optimization_report.ts`): before and after results, the continuous
+ * optimum, the change list in order of work and the iteration history.
+ *
+ * @module
+ */
+import { z } from "zod";
+import { OptimizationStatusSchema, SlopeSourceSchema } from "./enums.ts";
+import { ResultSchema } from "./result.ts";
+
+/** Wire format of an optimization. */
+export const OPTIMIZATION_FORMAT = "evenfill.optimization/1";
+
+/** Which dimension of a runner or gate a size is. */
+export const DimensionSchema = z.enum(["diameter", "thickness"]);
+
+/**
+ * One SLP iteration: an entry of the optimization's history and, as it runs, a job's
+ * progress.
+ */
+export const IterationSchema = z.object({
+  iteration: z.number().int(),
+  accepted: z.boolean(),
+  imbalance_percent: z.number(),
+  feed_pressure_peak_MPa: z.number(),
+  runner_volume_cm3: z.number(),
+  simulations: z.number().int().describe("simulations so far"),
+});
+/** {@link IterationSchema}. */
+export type Iteration = z.infer<typeof IterationSchema>;
+
+/** One entry of the change list, in order of work. */
+export const ChangeSchema = z.object({
+  element: z.string(),
+  kind: z.enum(["runner", "gate"]),
+  section: z.string().describe("the section in words, e.g. round, tunnel oval"),
+  dimension: DimensionSchema,
+  from_mm: z.number(),
+  to_mm: z.number(),
+  from_in: z.number(),
+  to_in: z.number(),
+  cutter: z.string(),
+  steel_safe: z.boolean().describe("true: steel is removed (enlarge); false: steel must be added"),
+  mold_half: z.enum(["fixed", "moving", "both"]),
+  step: z.number().int().describe("order of work, from 1"),
+  after_step: z.object({
+    imbalance_percent: z.number(),
+    feed_pressure_peak_MPa: z.number(),
+    runner_volume_cm3: z.number(),
+    limits_met: z.boolean(),
+  }).describe("the tool simulated with this change and every one before it"),
+});
+/** {@link ChangeSchema}. */
+export type Change = z.infer<typeof ChangeSchema>;
+
+/** The continuous optimum (before cutter snapping) as simulated. */
+export const ContinuousSchema = z.object({
+  imbalance_percent: z.number(),
+  feed_pressure_peak_MPa: z.number(),
+  runner_volume_cm3: z.number(),
+  limits_met: z.boolean(),
+  violations: z.array(z.string()),
+  sizes: z.array(z.object({
+    element: z.string(),
+    dimension: DimensionSchema,
+    size_mm: z.number(),
+  })),
+});
+/** {@link ContinuousSchema}. */
+export type Continuous = z.infer<typeof ContinuousSchema>;
+
+/** `evenfill.optimization/1`. */
+export const OptimizationSchema = z.object({
+  format: z.literal(OPTIMIZATION_FORMAT),
+  status: OptimizationStatusSchema,
+  reason: z.string(),
+  would_need: z.array(z.string()).describe(
+    "what would make it feasible (linear model, confirm by simulation)",
+  ),
+  snapping: z.string().nullable().describe("how the cutter sizes were chosen"),
+  simulations: z.number().int(),
+  slopes: SlopeSourceSchema,
+  before: ResultSchema,
+  continuous: ContinuousSchema,
+  after: ResultSchema,
+  changes: z.array(ChangeSchema),
+  iterations: z.array(IterationSchema.extend({ trust_radius: z.number() })),
+}).describe("evenfill.optimization/1: before/after, the change list, the iteration history");
+/** {@link OptimizationSchema}: the type of `optimizationJson`'s output. */
+export type OptimizationResult = z.infer<typeof OptimizationSchema>;
