@@ -57,10 +57,88 @@ export function frozenAt(
   );
 }
 
+/** A branch law and the inputs it was built from (see {@link BranchLawCache}). */
+interface KeptLaw {
+  temperature: number;
+  pressure: number;
+  delta: number;
+  volume: number;
+  law: (flow: number) => ChannelFlow;
+}
+
+/**
+ * The last law built for each branch of one fill (element × side), with its inputs. A branch
+ * law is a pure function of its element, the melt temperature and pressure its flow curve is
+ * taken at, its frozen layer and its filled volume; when all four are the same as last time
+ * the same law (with its memory of recent flows, {@link recentFlows}) serves again.
+ */
+export type BranchLawCache = (KeptLaw | undefined)[];
+
+/** An empty cache for a network of `elementCount` elements. */
+export function branchLawCache(elementCount: number): BranchLawCache {
+  return new Array<KeptLaw | undefined>(3 * elementCount).fill(undefined);
+}
+
+/** How many recent (flow, result) pairs a cached law remembers. */
+const RECENT = 4;
+
+/**
+ * `law` remembering its last {@link RECENT} results: a flow it has seen (the same float, same
+ * sign of zero) gets the same result object back. Callers never mutate a ChannelFlow.
+ */
+export function recentFlows(law: (flow: number) => ChannelFlow): (flow: number) => ChannelFlow {
+  const flows = new Float64Array(RECENT);
+  const results: ChannelFlow[] = [];
+  let count = 0;
+  let next = 0;
+  return (flow) => {
+    for (let i = 0; i < count; i++) {
+      const f = flows[i];
+      if (f === flow && (f !== 0 || 1 / f === 1 / flow)) return results[i];
+    }
+    const result = law(flow);
+    flows[next] = flow;
+    results[next] = result;
+    next = (next + 1) % RECENT;
+    if (count < RECENT) count++;
+    return result;
+  };
+}
+
 function curveFor(ctx: FillContext, state: FillState, e: NetworkElement): FlowCurve {
   return ctx.process.isothermal
     ? ctx.isothermalCurve
     : ctx.melt.curveAt(state.temperature[e.index], Math.max(0, state.meanPressure[e.index]));
+}
+
+/**
+ * {@link branchLaw} for the network's own element, through `cache`: the law kept for the branch
+ * when its inputs are unchanged, else a new one (kept). Same numbers as {@link branchLaw}.
+ */
+export function cachedBranchLaw(
+  ctx: FillContext,
+  state: FillState,
+  branch: Branch,
+  at: { t: number; volumes: Float64Array; cache: BranchLawCache },
+): (flow: number) => ChannelFlow {
+  const { t, volumes, cache } = at;
+  const e = ctx.elements[branch.element];
+  const temperature = ctx.process.isothermal ? NaN : state.temperature[e.index];
+  const pressure = ctx.process.isothermal ? NaN : Math.max(0, state.meanPressure[e.index]);
+  const delta = frozenAt(ctx, state, e, t, branch.side);
+  const volume = branch.side === -1
+    ? e.volume
+    : Math.min(Math.max(volumes[2 * e.index + branch.side], 0), e.volume);
+  const slot = 3 * e.index + branch.side + 1;
+  const kept = cache[slot];
+  if (
+    kept !== undefined && kept.delta === delta && kept.volume === volume &&
+    (ctx.process.isothermal ||
+      (kept.temperature === temperature && kept.pressure === pressure))
+  ) return kept.law;
+  const law = recentFlows(lawOf(ctx, state, { e, side: branch.side, delta, volume }));
+  cache[slot] = { temperature, pressure, delta, volume, law };
+  return law;
 }
 
 /**
@@ -77,12 +155,22 @@ export function branchLaw(
   element?: NetworkElement,
 ): (flow: number) => ChannelFlow {
   const e = element ?? ctx.elements[branch.element];
-  const curve = curveFor(ctx, state, e);
   const delta = frozenAt(ctx, state, e, t, branch.side);
-  const g = e.geometry;
-  const v = branch.side === -1
+  const volume = branch.side === -1
     ? e.volume
     : Math.min(Math.max(volumes[2 * e.index + branch.side], 0), e.volume);
+  return lawOf(ctx, state, { e, side: branch.side, delta, volume });
+}
+
+/** The law of element `e` filled from `side` with `volume` (m³) and frozen layer `delta` (m). */
+function lawOf(
+  ctx: FillContext,
+  state: FillState,
+  at: { e: NetworkElement; side: -1 | 0 | 1; delta: number; volume: number },
+): (flow: number) => ChannelFlow {
+  const { e, side, delta, volume: v } = at;
+  const curve = curveFor(ctx, state, e);
+  const g = e.geometry;
   const fraction = v / e.volume;
   switch (g.type) {
     case "uniform": {
@@ -91,8 +179,8 @@ export function branchLaw(
       return uniformChannelLaw({ section, length, curve });
     }
     case "tapered": {
-      const [entry, exit] = branch.side === 1 ? [g.exit, g.entry] : [g.entry, g.exit];
-      const filledLength = branch.side === -1
+      const [entry, exit] = side === 1 ? [g.exit, g.entry] : [g.entry, g.exit];
+      const filledLength = side === -1
         ? g.length
         : Math.max(taperedFilledLength(entry, exit, g.length, v), MIN_FILLED_FRACTION * g.length);
       const open = (s: Section) => (delta > 0 ? shrinkSection(s, delta) : s);

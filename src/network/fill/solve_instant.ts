@@ -1,7 +1,7 @@
 import type { ChannelFlow } from "../../physics/mod.ts";
 import { type HydraulicElement, solveHydraulics } from "../hydraulic_solve.ts";
 import type { Assembly } from "./assemble.ts";
-import { branchLaw } from "./channel_laws.ts";
+import { type BranchLawCache, branchLawCache, cachedBranchLaw } from "./channel_laws.ts";
 import type { FillContext } from "./context.ts";
 import { type FillState, isFull } from "./fill_state.ts";
 
@@ -34,6 +34,9 @@ export function solveStats(): SolveStats {
   };
 }
 
+/** The branch laws kept between the solves of one fill (`cachedBranchLaw`). */
+const lawCaches = new WeakMap<FillContext, BranchLawCache>();
+
 /**
  * Assemble the flow laws of `assembly` at `t` with filled volumes `volumes` and solve the
  * nodal network (`solveHydraulics`: injection rate in at the inlet, 0 Pa at every front).
@@ -54,7 +57,10 @@ export function solveInstant(
     fillDeadEnds(ctx, state, pressure);
     return { assembly, flows: new Float64Array(0), pressure, channel: [] };
   }
-  const laws = assembly.branches.map((br) => branchLaw(ctx, state, br, t, volumes));
+  let cache = lawCaches.get(ctx);
+  if (!cache) lawCaches.set(ctx, cache = branchLawCache(ctx.elements.length));
+  const keep = { t, volumes, cache };
+  const laws = assembly.branches.map((br) => cachedBranchLaw(ctx, state, br, keep));
   const fixedPressure = new Map<number, number>();
   let next = assembly.nodeCount;
   const hydraulic: HydraulicElement[] = assembly.branches.map((br, k) => {
@@ -63,15 +69,7 @@ export function solveInstant(
       to = next++;
       fixedPressure.set(to, 0);
     } else to = assembly.local[br.b];
-    const law = laws[k];
-    return {
-      from: assembly.local[br.a],
-      to,
-      law: (flow: number) => {
-        const c = law(flow);
-        return { pressureDrop: c.pressureDrop, dPressureDropDFlow: c.dPressureDropDFlow };
-      },
-    };
+    return { from: assembly.local[br.a], to, law: laws[k] };
   });
   const solution = solveHydraulics(
     {
