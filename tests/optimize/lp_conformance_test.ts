@@ -1,9 +1,10 @@
 /**
  * Conformance of both LP adapters against LPs with published or hand-derived
- * optima. Every case runs on both adapters. javascript-lp-solver is allowed to
- * fail (design/platform.md "LP solvers" documents wrong answers on degenerate
- * LPs), but only by a non-optimal status: whenever it says "optimal" the answer
- * must match the reference.
+ * optima. Every case runs on both adapters. On programs feasible by construction
+ * both must say "optimal" with the reference objective; on infeasible and unbounded
+ * programs neither may say "optimal". javascript-lp-solver 1.0.3 is known to us
+ * (our own runs, no published source) to have returned δ = 0 as "optimal" on
+ * degenerate LPs without the adapter's safeguards, which the last cases replay.
  */
 import assert from "node:assert/strict";
 import { assertClose } from "../assert_close.ts";
@@ -66,27 +67,19 @@ function expectOptimal(
 }
 
 /**
- * Where javascript-lp-solver may fail: either optimal and right, or any
- * non-optimal status. Returns the status for reporting.
+ * A program feasible by construction (every case passed here has a feasible point written into
+ * it, e.g. δ = 0): "optimal" with the reference objective is the only acceptable answer —
+ * "infeasible" would be wrong, and an error would be a failure of the adapter.
  */
-function expectOptimalOrRefused(
+function expectOptimalOnFeasible(
   solver: LpSolver,
   r: LpResult,
   expected: { objective: number },
   tolerance: { rel?: number; abs?: number },
-): string {
-  if (r.status === "optimal") {
-    assertClose(r.objective, expected.objective, {
-      ...tolerance,
-      what: `${solver.name} objective`,
-    });
-    return "optimal";
-  }
-  assert(
-    r.status === "error" || r.status === "infeasible",
-    `${solver.name}: unexpected ${r.status}`,
-  );
-  return r.status === "error" ? r.code : r.status;
+): void {
+  assert.equal(r.status, "optimal", `${solver.name} on a feasible program: ${JSON.stringify(r)}`);
+  if (r.status !== "optimal") return;
+  assertClose(r.objective, expected.objective, { ...tolerance, what: `${solver.name} objective` });
 }
 
 // Chvátal, *Linear Programming* (Freeman, 1983), ch. 2 opening example:
@@ -259,7 +252,7 @@ Deno.test("unbounded LPs: HiGHS says unbounded, javascript-lp-solver never optim
 // and at the optimum), −1 ≤ δ ≤ 1. Vertices of {δ1 ≤ … ≤ δn} ∩ [−1, 1]ⁿ are the step vectors
 // (−1,…,−1, 1,…,1); for w = (3, −1, 2, −5, 1) the best step starts at k = 5: δ = (−1,−1,−1,−1, 1),
 // w·δ = −3 + 1 − 2 + 5 + 1 = 2, so the optimum is −2, not 0 (hand-derived by enumerating the 6 steps).
-Deno.test("degenerate chain LP: HiGHS finds −2, javascript-lp-solver never a wrong optimal", async () => {
+Deno.test("degenerate chain LP: both adapters find −2", async () => {
   const w = [3, -1, 2, -5, 1];
   const lp: LinearProgram = {
     sense: "minimize",
@@ -274,7 +267,8 @@ Deno.test("degenerate chain LP: HiGHS finds −2, javascript-lp-solver never a w
   expectOptimal(highs, await highs.solve(lp), { objective: -2, x: [-1, -1, -1, -1, 1] }, {
     abs: 1e-9,
   });
-  expectOptimalOrRefused(simplexJs, await simplexJs.solve(lp), { objective: -2 }, { abs: 1e-6 });
+  // Feasible by construction: δ = 0 meets every row.
+  expectOptimalOnFeasible(simplexJs, await simplexJs.solve(lp), { objective: -2 }, { abs: 1e-6 });
 });
 
 /**
@@ -350,28 +344,24 @@ Deno.test("SLP-shaped random family (seeded, 50 variables): HiGHS passes an inde
   }
 });
 
-Deno.test("SLP-shaped random family: javascript-lp-solver agrees with HiGHS or refuses", async () => {
-  let agreed = 0;
+Deno.test("SLP-shaped random family: javascript-lp-solver agrees with HiGHS", async () => {
   for (let seed = 1; seed <= 10; seed++) {
     const lp = slpProgram(seed, 30, 20);
     const reference = optimal(await highs.solve(lp), `seed ${seed}`);
-    const status = expectOptimalOrRefused(
+    // Feasible by construction: δ = 0 with slacks s_i = max(0, −h_i) and the tie row met by δ_2.
+    expectOptimalOnFeasible(
       simplexJs,
       await simplexJs.solve(lp),
       { objective: reference.objective },
       { rel: 1e-6, abs: 1e-6 },
     );
-    if (status === "optimal") agreed++;
   }
-  // Not a pass condition on the library's quality; the loop above is the check.
-  console.log(`javascript-lp-solver optimal and agreeing on ${agreed}/10 SLP-shaped LPs`);
 });
 
-// Degenerate random family as in design/platform.md: min c·δ, G·δ ≤ 0 (all active at 0),
+// Degenerate random family: min c·δ, G·δ ≤ 0 (all active at 0),
 // |δ| ≤ 1. The optimum is < 0 whenever some δ ≠ 0 in the cone has c·δ < 0; HiGHS must find a
-// KKT-certified optimum (independent check); javascript-lp-solver must not return δ = 0 as optimal.
-Deno.test("degenerate random family: HiGHS certified, javascript-lp-solver never a wrong optimal", async () => {
-  const refused: string[] = [];
+// KKT-certified optimum (independent check); javascript-lp-solver must find the same optimum.
+Deno.test("degenerate random family: HiGHS certified, javascript-lp-solver agrees", async () => {
   for (let seed = 100; seed < 110; seed++) {
     const rand = random(seed);
     const n = 12;
@@ -386,9 +376,9 @@ Deno.test("degenerate random family: HiGHS certified, javascript-lp-solver never
     const r = optimal(await highs.solve(lp), `seed ${seed}`);
     assertClose(kktGap(lp, r), 0, { abs: 1e-9, what: `KKT gap seed ${seed}` });
     assert(r.objective < -1e-3, `seed ${seed}: optimum ${r.objective} should be < 0`);
-    refused.push(expectOptimalOrRefused(simplexJs, await simplexJs.solve(lp), r, { rel: 1e-6 }));
+    // Feasible by construction: δ = 0 meets every row G·δ ≤ 0.
+    expectOptimalOnFeasible(simplexJs, await simplexJs.solve(lp), r, { rel: 1e-6 });
   }
-  console.log(`javascript-lp-solver on degenerate family: ${refused.join(", ")}`);
 });
 
 Deno.test("certifyOptimality rejects a feasible non-optimal point and certifies the optimum", () => {
@@ -475,8 +465,8 @@ async function assertRejectsRange(f: () => Promise<unknown>): Promise<void> {
   assert(caught instanceof RangeError, `expected RangeError, got ${String(caught)}`);
 }
 
-// design/platform.md "LP solvers": javascript-lp-solver 1.0.3 returned δ = 0 as "optimal" on
-// degenerate LPs (15 of 15), some violating constraints. With the adapter's variable shifting
+// Without the adapter's safeguards javascript-lp-solver 1.0.3 returned δ = 0 as "optimal" on
+// degenerate LPs (15 of 15 in our own runs), some violating constraints. With the adapter's variable shifting
 // the real library solved the families above, so its safeguards are exercised here with a
 // stand-in that replays those two failure modes.
 Deno.test("javascript-lp-solver adapter turns a wrong 'optimal' into check_failed", async () => {

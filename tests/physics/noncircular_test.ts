@@ -254,6 +254,9 @@ Deno.test("Kozicki constants: circle and slit exact, a + b = fRe/16", () => {
   close(sq.b, 0.6771, 2e-3, "square b");
 });
 
-Deno.test("noncircular report", () => {
-  console.log(report.map((r) => "  " + r).join("\n"));
-});
+// The deviations each case saw, printed on request (EVENFILL_REPORT=1); not a check.
+if (Deno.env.get("EVENFILL_REPORT")) {
+  Deno.test("noncircular report", () => {
+    console.log(report.map((r) => "  " + r).join("\n"));
+  });
+}

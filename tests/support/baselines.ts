@@ -48,6 +48,8 @@ export interface BaselineResult {
   firstBalanced?: number;
   /** Simulations run when a design first met every limit (absent: never). */
   firstFeasible?: number;
+  /** Nelder–Mead only: the penalty objective it minimised, at `x`. */
+  objective?: number;
 }
 
 /** Branching exponent: D_feed = D_branch · N^(1/3) (Lee & Stevenson, J. Reinf. Plast. Compos. 1998). */
@@ -663,5 +665,6 @@ export function nelderMead(space: DesignSpace, options: NelderMeadOptions = {}):
     reason: entry?.evaluation === undefined ? "simulation_failed" : result.reason,
     firstBalanced,
     firstFeasible,
+    objective: entry?.value,
   };
 }
