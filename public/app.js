@@ -13,22 +13,55 @@
     if (token) sessionStorage.setItem(TOKEN_KEY, token);
     else sessionStorage.removeItem(TOKEN_KEY);
   }
-  async function call(method, url, body) {
+  var TIMEOUTS_MS = {
+    /** Listings, health, a scenario, a job's state. */
+    read: 8e3,
+    /** Validation, saving, starting or cancelling a job. */
+    write: 15e3,
+    /** A synchronous simulation (the service's own limit is 10 s by default, plus the trip). */
+    simulate: 3e4
+  };
+  var unreachable = /* @__PURE__ */ new Set();
+  function onServiceUnreachable(listener) {
+    unreachable.add(listener);
+    return () => unreachable.delete(listener);
+  }
+  function noAnswerError(error, timeoutMs, cancelled) {
+    const name = error?.name;
+    if (cancelled) return new ApiError(0, "cancelled", "Cancelled.");
+    if (name === "TimeoutError") {
+      return new ApiError(0, "timeout", `The service did not answer within ${Math.round(timeoutMs / 1e3)} s; nothing was changed on the page. Try again, or check that the service is running.`);
+    }
+    return new ApiError(0, "network", "The service cannot be reached: it may be stopped or restarting. The page checks again by itself.");
+  }
+  async function call(method, url, body, options = {}) {
     let response;
     const headers = {};
     if (body !== void 0) headers["content-type"] = "application/json";
     const token = sessionStorage.getItem(TOKEN_KEY);
     if (token && method !== "GET") headers.authorization = `Bearer ${token}`;
+    const timeoutMs = options.timeoutMs ?? (method === "GET" ? TIMEOUTS_MS.read : TIMEOUTS_MS.write);
+    const timeout = AbortSignal.timeout(timeoutMs);
+    const signal = options.signal ? AbortSignal.any([
+      timeout,
+      options.signal
+    ]) : timeout;
     try {
       response = await fetch(url, {
         method,
         headers,
+        signal,
         ...body === void 0 ? {} : {
           body: JSON.stringify(body)
         }
       });
     } catch (error) {
-      throw new ApiError(0, "network", `The service did not answer (${String(error)})`);
+      const cancelled = options.signal?.aborted === true;
+      const failure = noAnswerError(error, timeoutMs, cancelled);
+      if (!cancelled) {
+        for (const listener of unreachable) listener();
+      }
+      throw failure;
     }
     if (response.status === 204) return void 0;
     const text = await response.text();
@@ -45,7 +78,9 @@
     return json;
   }
   var api = {
-    health: () => call("GET", "/api/health"),
+    health: (timeoutMs = 3e3) => call("GET", "/api/health", void 0, {
+      timeoutMs
+    }),
     materials: () => call("GET", "/api/materials"),
     demos: () => call("GET", "/api/demos"),
     demo: (id) => call("GET", `/api/demos/${encodeURIComponent(id)}`),
@@ -56,7 +91,12 @@
     revisions: (id) => call("GET", `/api/scenarios/${encodeURIComponent(id)}/revisions`),
     revision: (id, revision) => call("GET", `/api/scenarios/${encodeURIComponent(id)}/revisions/${revision}`),
     validate: (scenario) => call("POST", "/api/validate", scenario),
-    simulate: (scenario) => call("POST", "/api/simulate?history=1", scenario),
+    simulate: (scenario, signal) => call("POST", "/api/simulate?history=1", scenario, {
+      timeoutMs: TIMEOUTS_MS.simulate,
+      ...signal ? {
+        signal
+      } : {}
+    }),
     startJob: (scenario, options = {}) => call("POST", "/api/jobs", {
       kind: "optimize",
       scenario,
@@ -128,6 +168,7 @@
         if (finished) return;
         source?.close();
         source = void 0;
+        watch.onStreamLost?.();
         poll();
       };
     });
@@ -139,8 +180,8 @@
     "#D55E00",
     "#009E73",
     "#CC79A7",
-    "#E69F00",
-    "#56B4E9",
+    "#B07800",
+    "#3C8DC5",
     "#000000"
   ];
   var SERIES_DASHES = [
@@ -348,7 +389,8 @@
     for (const v of options.verticals ?? []) {
       if (!(v.x >= xd.domain[0] && v.x <= xd.domain[1])) continue;
       const x = fmt(xs(v.x));
-      out.push(`<g class="rule"><line x1="${x}" x2="${x}" y1="${margin.top}" y2="${height - margin.bottom}" stroke="#000" stroke-width="1" stroke-dasharray="3 3"/><text x="${x}" y="${height - margin.bottom - 4}" dx="-4" text-anchor="end">${escapeXml(v.label)}</text></g>`);
+      const labelY = v.at === "top" ? margin.top + 11 : height - margin.bottom - 4;
+      out.push(`<g class="rule vertical"${v.mark ? ` data-mark="${escapeXml(v.mark)}" data-x="${v.x}"` : ""}><line x1="${x}" x2="${x}" y1="${margin.top}" y2="${height - margin.bottom}" stroke="#000" stroke-width="${v.mark ? 1.5 : 1}" stroke-dasharray="${v.mark ? "6 2 1 2" : "3 3"}"/><text x="${x}" y="${labelY}" dx="-4" text-anchor="end">${escapeXml(v.label)}</text></g>`);
     }
     const ends = [];
     series.forEach((s) => {
@@ -396,6 +438,7 @@
   // src/model/units.ts
   var M_PER_MM = 1e-3;
   var M_PER_INCH = 0.0254;
+  var M3_PER_CM3 = 1e-6;
   var PA_PER_MPA = 1e6;
   var PA_PER_BAR = 1e5;
   var PA_PER_PSI = 4.4482216152605 / (M_PER_INCH * M_PER_INCH);
@@ -498,8 +541,14 @@
     if (value === 0) return "0";
     const magnitude = Math.floor(Math.log10(Math.abs(value)));
     const decimals = Math.max(0, digits - 1 - magnitude);
-    if (magnitude >= 6 || magnitude < -4) return value.toPrecision(digits);
-    return value.toFixed(Math.min(decimals, 8));
+    if (magnitude < -4) return value.toPrecision(digits);
+    if (decimals === 0) return groupThousands(Math.round(value).toFixed(0));
+    return groupThousands(value.toFixed(Math.min(decimals, 8)));
+  }
+  function groupThousands(text) {
+    const m = /^(-?)(\d+)(\.\d*)?$/.exec(text);
+    if (!m) return text;
+    return m[1] + m[2].replace(/\B(?=(\d{3})+(?!\d))/g, ",") + (m[3] ?? "");
   }
   function formatLength(mm, unit) {
     if (mm === null || mm === void 0 || !Number.isFinite(mm)) return "\u2013";
@@ -509,12 +558,35 @@
   function formatPressure(mpa, units) {
     if (mpa === null || mpa === void 0 || !Number.isFinite(mpa)) return "\u2013";
     const v = pressureFromMpa(mpa, units.pressure);
-    const text = units.pressure === "psi" ? Math.round(v).toString() : formatNumber(v, 3);
+    const text = units.pressure === "psi" ? groupThousands(Math.round(v).toFixed(0)) : formatNumber(v, 3);
     return `${text} ${unitSymbol(units, "pressure")}`;
   }
   function formatForce(kn, units) {
     if (kn === null || kn === void 0 || !Number.isFinite(kn)) return "\u2013";
     return `${formatNumber(forceFromKn(kn, units.force), 3)} ${unitSymbol(units, "force")}`;
+  }
+  var G_PER_OUNCE = 28.349523125;
+  var G_PER_POUND = 453.59237;
+  var CM3_PER_CUBIC_INCH = Math.pow(M_PER_INCH, 3) / M3_PER_CM3;
+  var usUnits = (units) => units.length === "in";
+  function formatVolume(cm3, units, digits = 3) {
+    if (cm3 === null || cm3 === void 0 || !Number.isFinite(cm3)) return "\u2013";
+    return usUnits(units) ? `${formatNumber(cm3 / CM3_PER_CUBIC_INCH, digits)} in\xB3` : `${formatNumber(cm3, digits)} cm\xB3`;
+  }
+  function formatMass(g, units, digits = 3) {
+    if (g === null || g === void 0 || !Number.isFinite(g)) return "\u2013";
+    if (!usUnits(units)) return `${formatNumber(g, digits)} g`;
+    return g >= G_PER_POUND ? `${formatNumber(g / G_PER_POUND, digits)} lb` : `${formatNumber(g / G_PER_OUNCE, digits)} oz`;
+  }
+  function formatTemperature(c, units) {
+    if (c === null || c === void 0 || !Number.isFinite(c)) return "\u2013";
+    const v = temperatureFromC(c, units.temperature);
+    return `${trimZeros(v.toFixed(1))} ${unitSymbol(units, "temperature")}`;
+  }
+  function formatTemperatureRise(k, units) {
+    if (k === null || k === void 0 || !Number.isFinite(k)) return "\u2013";
+    const v = units.temperature === "C" ? k : k * 1.8;
+    return `${trimZeros(v.toFixed(1))} ${units.temperature === "C" ? "K" : "\xB0F"}`;
   }
   function trimZeros(text) {
     return text.includes(".") ? text.replace(/\.?0+$/, "") : text;
@@ -1007,6 +1079,24 @@
       }
     };
   }
+  var DRAWING_SCALES = [
+    10,
+    5,
+    2,
+    1,
+    1 / 2,
+    1 / 5,
+    1 / 10,
+    1 / 20,
+    1 / 50
+  ];
+  function printScale(widthMm, heightMm, box) {
+    const scale = DRAWING_SCALES.find((k) => widthMm * k <= box.maxWidthMm && heightMm * k <= box.maxHeightMm) ?? DRAWING_SCALES[DRAWING_SCALES.length - 1];
+    return {
+      scale,
+      ratio: scale >= 1 ? `${scale}:1` : `1:${Math.round(1 / scale)}`
+    };
+  }
   function segmentBoxDistance(ax, ay, bx, by, box) {
     const n = Math.max(2, Math.ceil(Math.hypot(bx - ax, by - ay) / Math.max(box.hh, 0.5)));
     let best = Infinity;
@@ -1193,7 +1283,7 @@
     }
     for (const c of geo.cavities) {
       const title = `${c.id}${c.name ? ` ${c.name}` : ""}`;
-      const volume = `${formatVolume(c.volume_cm3)} cm\xB3`;
+      const volume = `${formatVolume2(c.volume_cm3)} cm\xB3`;
       const fits = (text2) => c.r * 2 > charWidth * 1.05 * Math.max(text2.length, 3);
       const inside = fits(title) && fits(volume) && c.r > font * 1.4;
       const idInside = !inside && fits(c.id) && c.r > font * 0.8;
@@ -1320,8 +1410,9 @@
     const vy0 = -by1 - pad, vy1 = -by0 + pad + font * 3;
     const stepMm = niceLengthStep(span / 4, unit);
     const sx = vx0 + pad, sy = vy1 - font * 1.2;
+    const printed = options.print ? printScale(vx1 - vx0, vy1 - vy0, options.print) : null;
     const out = [];
-    out.push(`<svg xmlns="http://www.w3.org/2000/svg" class="layout" ${options.id ? `id="${escapeXml(options.id)}" ` : ""}viewBox="${f(vx0)} ${f(vy0)} ${f(vx1 - vx0)} ${f(vy1 - vy0)}" role="img" aria-label="Layout drawing of the runner system">`, `<g font-size="${f(font)}" class="layout-body">`, ...body, ...channels.runner, ...channels.gate, ...feedBody, ...labels, `<g class="scale-bar"><path d="M${f(sx)},${f(sy - font * 0.4)}V${f(sy)}H${f(sx + stepMm)}V${f(sy - font * 0.4)}"/><text class="label" x="${f(sx + stepMm + font * 0.5)}" y="${f(sy)}">${formatLength(stepMm, unit).replace(/\.0+$/, "")} ${unit === "mm" ? "mm" : "in"}</text></g>`, `</g></svg>`);
+    out.push(`<svg xmlns="http://www.w3.org/2000/svg" class="layout" ${options.id ? `id="${escapeXml(options.id)}" ` : ""}viewBox="${f(vx0)} ${f(vy0)} ${f(vx1 - vx0)} ${f(vy1 - vy0)}"${printed ? ` data-scale="${printed.ratio}" style="--print-width:${f((vx1 - vx0) * printed.scale)}mm"` : ""} role="img" aria-label="Layout drawing of the runner system">`, `<g font-size="${f(font)}" class="layout-body">`, ...body, ...channels.runner, ...channels.gate, ...feedBody, ...labels, `<g class="scale-bar"><path d="M${f(sx)},${f(sy - font * 0.4)}V${f(sy)}H${f(sx + stepMm)}V${f(sy - font * 0.4)}"/><text class="label" x="${f(sx + stepMm + font * 0.5)}" y="${f(sy)}">${formatLength(stepMm, unit).replace(/\.0+$/, "")} ${unit === "mm" ? "mm" : "in"}${printed ? ` \xB7 scale ${printed.ratio} printed at 100 %` : ""}</text></g>`, `</g></svg>`);
     return out.join("");
   }
   function freeDirection(geo, nodeId) {
@@ -1352,7 +1443,7 @@
   function layoutKeyText(unit) {
     return `Plan view to scale from the node coordinates; sizes in ${unit === "mm" ? "mm" : "inch"}. \u2300 diameter; t gate thickness \xD7 width. Runners at their true width; cavity circles by volume (placed beyond their gates). Changed elements: dashed outline, before \u2192 after, step number.`;
   }
-  function formatVolume(cm3) {
+  function formatVolume2(cm3) {
     return cm3 >= 100 ? cm3.toFixed(0) : cm3 >= 10 ? cm3.toFixed(1) : cm3.toFixed(2);
   }
   function niceLengthStep(approxMm, unit) {
@@ -1370,17 +1461,55 @@
     const a = Object.entries(attrs).map(([k, v]) => ` data-${k}="${escapeXml(v)}"`).join("");
     return `<td class="num${extraClass ? ` ${extraClass}` : ""}"${a} data-value="${value === null || value === void 0 ? "" : String(value)}">${escapeXml(text)}</td>`;
   }
+  function scrollBox(table) {
+    return `<div class="table-scroll" tabindex="0">${table}</div>`;
+  }
+  function velocityPhase(result) {
+    const history2 = result.history ?? [];
+    const sw = result.switchover_time_s;
+    if (sw === null || sw === void 0 || !Number.isFinite(sw)) return history2;
+    const out = [];
+    for (let k = 0; k < history2.length; k++) {
+      const h = history2[k];
+      const t = h.time_s ?? NaN;
+      if (t <= sw * (1 + 1e-9)) {
+        out.push(h);
+        continue;
+      }
+      const prev = out[out.length - 1];
+      const t0 = prev?.time_s ?? NaN;
+      if (prev && Number.isFinite(t0) && t0 < sw * (1 - 1e-9) && t > t0) {
+        const w = (sw - t0) / (t - t0);
+        const mix = (a, b) => a === null || a === void 0 || b === null || b === void 0 ? null : a + (b - a) * w;
+        out.push({
+          time_s: sw,
+          injected_cm3: mix(prev.injected_cm3, h.injected_cm3),
+          feed_pressure_MPa: mix(prev.feed_pressure_MPa, h.feed_pressure_MPa),
+          clamp_force_kN: mix(prev.clamp_force_kN, h.clamp_force_kN),
+          cavity_fill_percent: h.cavity_fill_percent.map((f, i) => mix(prev.cavity_fill_percent[i], f))
+        });
+      }
+      break;
+    }
+    return out;
+  }
+  function fillsAfterSwitchover(c, result) {
+    const sw = result.switchover_time_s;
+    return typeof sw === "number" && typeof c.fill_time_s === "number" && c.fill_time_s > sw * (1 + 1e-9);
+  }
   function summaryHtml(shown, ctx) {
     const r = primary(shown);
     const b = shown.kind === "optimization" ? shown.result.before : null;
     const u = ctx.units;
     const m = ctx.scenario.machine;
     const target = ctx.scenario.goals?.max_imbalance_percent;
+    const swPercent = ctx.scenario.process?.switchover_percent ?? 98;
     const item = (key, label, value, before, note, raw) => `<div class="figure" data-figure="${key}" data-value="${raw ?? ""}"><dt>${escapeXml(label)}</dt><dd>${before !== null ? `<span class="before">${escapeXml(before)} \u2192</span> ` : ""}<strong>${escapeXml(value)}</strong><small>${escapeXml(note)}</small></dd></div>`;
     const pct = (v) => `${num(v, 3)} %`;
-    return `<dl class="figures">` + item("imbalance", "Fill-time imbalance", pct(r.imbalance_percent), b ? pct(b.imbalance_percent) : null, target !== void 0 ? `target \u2264 ${target} %` : "", r.imbalance_percent) + item("pressure", "Peak injection pressure", formatPressure(r.feed_pressure_peak_MPa, u), b ? formatPressure(b.feed_pressure_peak_MPa, u) : null, `press limit ${formatPressure(m.max_injection_pressure_MPa, u)} (${num(r.machine_pressure_share_percent, 3)} % used)`, r.feed_pressure_peak_MPa) + item("clamp", "Peak clamp force", formatForce(r.clamp_force_peak_kN, u), b ? formatForce(b.clamp_force_peak_kN, u) : null, `press rating ${formatForce(m.clamp_force_kN, u)} (${num(r.clamp_share_percent, 3)} % used)`, r.clamp_force_peak_kN) + item("runner", "Cold runner per shot", `${num(r.runner_mass_g, 3)} g`, b ? `${num(b.runner_mass_g, 3)} g` : null, `${num(r.runner_volume_cm3, 3)} cm\xB3, ${num(r.runner_share_percent, 3)} % of the ${num(r.shot_mass_g, 4)} g shot`, r.runner_mass_g) + item("fill-time", "Fill time", `${num(r.fill_time_s, 3)} s`, b ? `${num(b.fill_time_s, 3)} s` : null, r.freeze?.part_cooling_time_s ? `part cooling \u2248 ${num(r.freeze.part_cooling_time_s, 3)} s` : "", r.fill_time_s) + `</dl>`;
+    const late = r.cavities.filter((c) => fillsAfterSwitchover(c, r));
+    return `<dl class="figures">` + item("imbalance", "Fill-time imbalance", pct(r.imbalance_percent), b ? pct(b.imbalance_percent) : null, target !== void 0 ? `target \u2264 ${target} %` : "", r.imbalance_percent) + item("pressure", "Peak injection pressure (at switchover)", formatPressure(r.feed_pressure_peak_MPa, u), b ? formatPressure(b.feed_pressure_peak_MPa, u) : null, `press limit ${formatPressure(m.max_injection_pressure_MPa, u)} (${num(r.machine_pressure_share_percent, 3)} % used)`, r.feed_pressure_peak_MPa) + item("clamp", "Peak clamp force (at switchover)", formatForce(r.clamp_force_peak_kN, u), b ? formatForce(b.clamp_force_peak_kN, u) : null, `press rating ${formatForce(m.clamp_force_kN, u)} (${num(r.clamp_share_percent, 3)} % used)`, r.clamp_force_peak_kN) + item("runner", "Cold runner per shot", formatMass(r.runner_mass_g, u), b ? formatMass(b.runner_mass_g, u) : null, `${formatVolume(r.runner_volume_cm3, u)}, ${num(r.runner_share_percent, 3)} % of the ${formatMass(r.shot_mass_g, u, 4)} shot`, r.runner_mass_g) + item("switchover", `Switchover (${swPercent} % of the shot)`, `${num(r.switchover_time_s, 3)} s`, b ? `${num(b.switchover_time_s, 3)} s` : null, late.length ? `${late.map((c) => `${c.id} ${num(c.fill_percent_at_switchover, 3)} %`).join(", ")} full then; the hold phase finishes ${late.length === 1 ? "it" : "them"}` : "every cavity full by then", r.switchover_time_s) + item("fill-time", "Fill time (set rate held to the end)", `${num(r.fill_time_s, 3)} s`, b ? `${num(b.fill_time_s, 3)} s` : null, (late.length ? "past switchover: a model figure for balance, not a press time. " : "") + (r.freeze?.part_cooling_time_s ? `Part cooling \u2248 ${num(r.freeze.part_cooling_time_s, 3)} s` : ""), r.fill_time_s) + `</dl>`;
   }
-  function cavityTableHtml(shown) {
+  function cavityTableHtml(shown, units = METRIC_UNITS) {
     const after = primary(shown);
     const before = shown.kind === "optimization" ? shown.result.before : null;
     const beforeById = new Map((before?.cavities ?? []).map((c) => [
@@ -1394,50 +1523,72 @@
       "result"
     ];
     const head2 = (label) => before ? `<th scope="colgroup" colspan="2">${label}</th>` : `<th scope="col">${label}</th>`;
-    const sub = before ? `<tr class="sub">${[
+    const columns = [
       "fill time",
-      "fill %",
+      "fill % at switchover",
+      "fill % first full",
       "gate shear",
       "mass"
-    ].map(() => `<th scope="col">before</th><th scope="col">after</th>`).join("")}</tr>` : "";
+    ];
+    const sub = before ? `<tr class="sub">${columns.map(() => `<th scope="col">before</th><th scope="col">after</th>`).join("")}</tr>` : "";
+    let anyLate = false;
     const rows = after.cavities.map((c) => {
       const bc = beforeById.get(c.id);
+      const resultOf = (w) => w === "before" ? before : after;
       const pair = (field, text, cls) => which.map((w) => {
         const x = w === "before" ? bc : c;
         if (!x) return "<td>\u2013</td>";
-        return cell(x[field], text(x), {
+        const r = resultOf(w);
+        return cell(x[field], text(x, r), {
           cavity: c.id,
           field: String(field),
           which: w
-        }, cls ? cls(x) : "");
+        }, cls ? cls(x, r) : "");
       }).join("");
       const shear = (x) => {
         const ratio = x.gate_shear_rate_peak_1_s !== null && x.gate_shear_limit_1_s ? x.gate_shear_rate_peak_1_s / x.gate_shear_limit_1_s : null;
         return `${num(x.gate_shear_rate_peak_1_s, 3)} (${ratio === null ? "\u2013" : Math.round(ratio * 100)} %)`;
       };
       const over = (x) => x.gate_shear_rate_peak_1_s !== null && x.gate_shear_limit_1_s !== null && x.gate_shear_rate_peak_1_s > x.gate_shear_limit_1_s ? "over" : "";
-      return `<tr data-cavity="${escapeXml(c.id)}"><th scope="row">${escapeXml(c.id)}${c.name ? ` <span class="muted">${escapeXml(c.name)}</span>` : ""}</th>` + pair("fill_time_s", (x) => num(x.fill_time_s, 4)) + pair("fill_percent_at_first_full", (x) => num(x.fill_percent_at_first_full, 4)) + pair("gate_shear_rate_peak_1_s", shear, over) + pair("mass_g", (x) => num(x.mass_g, 4)) + `<td class="num">${num(c.gate_shear_limit_1_s, 3)}</td></tr>`;
+      const late = (x, r) => {
+        const isLate = fillsAfterSwitchover(x, r);
+        anyLate ||= isLate;
+        return isLate ? "late" : "";
+      };
+      return `<tr data-cavity="${escapeXml(c.id)}"><th scope="row">${escapeXml(c.id)}${c.name ? ` <span class="muted">${escapeXml(c.name)}</span>` : ""}</th>` + pair("fill_time_s", (x) => num(x.fill_time_s, 4), late) + pair("fill_percent_at_switchover", (x) => num(x.fill_percent_at_switchover, 4)) + pair("fill_percent_at_first_full", (x) => num(x.fill_percent_at_first_full, 4)) + pair("gate_shear_rate_peak_1_s", shear, over) + pair("mass_g", (x) => formatMass(x.mass_g, units, 4)) + `<td class="num">${num(c.gate_shear_limit_1_s, 3)}</td></tr>`;
     }).join("");
-    return `<table class="data cavities" id="cavity-table"><caption>Per cavity${before ? ": before \u2192 after" : ""}</caption><thead><tr><th scope="col" rowspan="${before ? 2 : 1}">cavity</th>${head2("fill time, s")}${head2("fill % when the first is full")}${head2("gate shear peak, 1/s (share of limit)")}${head2("part mass, g")}<th scope="col" rowspan="${before ? 2 : 1}">gate shear limit, 1/s</th></tr>${sub}</thead><tbody>${rows}</tbody></table><p class="note">Shear over the resin's limit is marked <span class="over-key">\u25B2 over</span>.</p>`;
+    return scrollBox(`<table class="data cavities" id="cavity-table"><caption>Per cavity${before ? ": before \u2192 after" : ""}</caption><thead><tr><th scope="col" rowspan="${before ? 2 : 1}">cavity</th>${head2("fill time, s")}${head2("fill % at switchover")}${head2("fill % when the first is full")}${head2("gate shear peak, 1/s (share of limit)")}${head2("part mass")}<th scope="col" rowspan="${before ? 2 : 1}">gate shear limit, 1/s</th></tr>${sub}</thead><tbody>${rows}</tbody></table>`) + `<p class="note">Shear over the resin's limit is marked <span class="over-key">\u25B2 over</span>.${anyLate ? ` <span class="late-key">\u2021</span> fills after switchover: the time assumes the set flow rate held on, which the press does not do; the hold phase fills the rest.` : ""}</p>`;
   }
   function changeSizeText(c, side, units) {
     const mm = side === "from" ? c.from_mm : c.to_mm;
-    const inch = side === "from" ? c.from_in : c.to_in;
-    return units.length === "mm" ? `${formatLength(mm, "mm")} mm (${inch.toFixed(4)} in)` : `${inch.toFixed(4)} in (${formatLength(mm, "mm")} mm)`;
+    return units.length === "mm" ? `${formatLength(mm, "mm")} mm (${formatLength(mm, "in")} in)` : `${formatLength(mm, "in")} in (${formatLength(mm, "mm")} mm)`;
   }
+  var STEEL_WORDS = (c) => c.steel_safe ? "enlarge (steel-safe)" : "<strong>ADD STEEL</strong> (weld or insert)";
   function changeTableHtml(changes, units, options = {}) {
-    const caption = options.sheet ? "" : `<caption>Changes in order of work (each step simulated with every step before it)</caption>`;
-    if (changes.length === 0) {
-      return `<p class="empty" id="${escapeXml(options.id ?? "change-table")}">No change proposed.</p>`;
+    const id = escapeXml(options.id ?? "change-table");
+    if (changes.length === 0) return `<p class="empty" id="${id}">No change proposed.</p>`;
+    const sizes = (c) => `<td class="num" data-field="from" data-mm="${c.from_mm}">${escapeXml(changeSizeText(c, "from", units))}</td><td class="num" data-field="to" data-mm="${c.to_mm}"><strong>${escapeXml(changeSizeText(c, "to", units))}</strong></td>`;
+    if (options.sheet) {
+      const rows2 = changes.map((c) => `<tr data-step="${c.step}" data-element="${escapeXml(c.element)}"><td class="num step">${c.step}</td><th scope="row">${escapeXml(c.element)} <span class="muted">${escapeXml(c.kind)} ${escapeXml(c.dimension)}</span></th>` + sizes(c) + `<td data-field="cutter">${escapeXml(c.cutter)}</td><td data-field="steel">${escapeXml(c.mold_half)}; ${STEEL_WORDS(c)}</td><td class="num" data-field="imbalance" data-value="${c.after_step.imbalance_percent}">${num(c.after_step.imbalance_percent, 3)} %${c.after_step.limits_met ? "" : " (limits not met yet)"}</td><td class="tick-box" aria-label="done">\u2610</td></tr>`).join("");
+      return `<table class="data changes sheet-steps" id="${id}"><thead><tr><th scope="col">step</th><th scope="col">element</th><th scope="col">before</th><th scope="col">cut to</th><th scope="col">cutter</th><th scope="col">half; steel</th><th scope="col">imbalance after</th><th scope="col">done</th></tr></thead><tbody>${rows2}</tbody></table>`;
     }
     const rows = changes.map((c) => {
       const t = c.after_step;
-      return `<tr data-step="${c.step}" data-element="${escapeXml(c.element)}"><td class="num step">${c.step}</td><th scope="row">${escapeXml(c.element)}</th><td>${escapeXml(c.kind)}, ${escapeXml(c.section)}</td><td>${escapeXml(c.dimension)}</td><td class="num" data-field="from" data-mm="${c.from_mm}" data-in="${c.from_in}">${escapeXml(changeSizeText(c, "from", units))}</td><td class="num" data-field="to" data-mm="${c.to_mm}" data-in="${c.to_in}"><strong>${escapeXml(changeSizeText(c, "to", units))}</strong></td><td data-field="cutter">${escapeXml(c.cutter)}</td><td data-field="steel">${c.steel_safe ? "enlarge (steel-safe)" : "<strong>ADD STEEL</strong> (weld or insert)"}</td><td>${escapeXml(c.mold_half)}</td><td class="num" data-field="imbalance" data-value="${t.imbalance_percent}">${num(t.imbalance_percent, 3)} %</td><td class="num" data-field="pressure" data-value="${t.feed_pressure_peak_MPa}">${escapeXml(formatPressure(t.feed_pressure_peak_MPa, units))}</td><td class="num" data-field="runner" data-value="${t.runner_volume_cm3}">${num(t.runner_volume_cm3, 3)}</td><td>${t.limits_met ? "yes" : "no"}</td>` + (options.sheet ? `<td class="tick-box" aria-label="done">\u2610</td>` : "") + `</tr>`;
+      return `<tr data-step="${c.step}" data-element="${escapeXml(c.element)}"><td class="num step">${c.step}</td><th scope="row">${escapeXml(c.element)}</th><td>${escapeXml(c.kind)}, ${escapeXml(c.section)}</td><td>${escapeXml(c.dimension)}</td>` + sizes(c) + `<td data-field="cutter">${escapeXml(c.cutter)}</td><td data-field="steel">${STEEL_WORDS(c)}</td><td>${escapeXml(c.mold_half)}</td><td class="num" data-field="imbalance" data-value="${t.imbalance_percent}">${num(t.imbalance_percent, 3)} %</td><td class="num" data-field="pressure" data-value="${t.feed_pressure_peak_MPa}">${escapeXml(formatPressure(t.feed_pressure_peak_MPa, units))}</td><td class="num" data-field="runner" data-value="${t.runner_volume_cm3}">${escapeXml(formatVolume(t.runner_volume_cm3, units))}</td><td>${t.limits_met ? "yes" : "no"}</td></tr>`;
     }).join("");
-    return `<table class="data changes" id="${escapeXml(options.id ?? "change-table")}">` + caption + `<thead><tr><th scope="col">step</th><th scope="col">element</th><th scope="col">what</th><th scope="col">size</th><th scope="col">before</th><th scope="col">after</th><th scope="col">cutter</th><th scope="col">steel</th><th scope="col">mold half</th><th scope="col">imbalance after</th><th scope="col">peak pressure after</th><th scope="col">runner after, cm\xB3</th><th scope="col">limits met</th>` + (options.sheet ? `<th scope="col">done</th>` : "") + `</tr></thead><tbody>${rows}</tbody></table>`;
+    return scrollBox(`<table class="data changes" id="${id}"><caption>Changes in order of work (each step simulated with every step before it)</caption><thead><tr><th scope="col">step</th><th scope="col">element</th><th scope="col">what</th><th scope="col">size</th><th scope="col">before</th><th scope="col">after</th><th scope="col">cutter</th><th scope="col">steel</th><th scope="col">mold half</th><th scope="col">imbalance after</th><th scope="col">peak pressure after</th><th scope="col">runner after</th><th scope="col">limits met</th></tr></thead><tbody>${rows}</tbody></table>`);
+  }
+  function chartEnd(results) {
+    const ends = results.flatMap((r) => {
+      const phase = r ? velocityPhase(r) : [];
+      return phase.length ? [
+        phase[phase.length - 1].time_s ?? 0
+      ] : [];
+    });
+    return Math.max(...ends, 1e-3);
   }
   function fillChartSvg(result, options) {
-    const history2 = result.history ?? [];
+    const history2 = velocityPhase(result);
     const series = result.cavities.map((c, k) => {
       const points = [];
       for (const h of history2) {
@@ -1448,20 +1599,31 @@
         ]);
         if (fill >= 100) break;
       }
+      const last = points[points.length - 1]?.[1] ?? NaN;
+      const label = last < 100 - 1e-6 && Number.isFinite(last) ? `${c.id} ${num(c.fill_percent_at_switchover ?? last, 3)} %` : c.id;
       return {
-        label: c.id,
+        label,
         style: k,
         points
       };
     });
     const firstFull = Math.min(...result.cavities.map((c) => c.fill_time_s ?? Infinity));
+    const sw = result.switchover_time_s;
+    const verticals = [];
+    if (Number.isFinite(firstFull)) verticals.push({
+      x: firstFull,
+      label: "first full"
+    });
+    if (typeof sw === "number") {
+      verticals.push({
+        x: sw,
+        label: `switchover${options.switchoverPercent ? ` (${options.switchoverPercent} %)` : ""}`,
+        at: "top",
+        mark: "switchover"
+      });
+    }
     return lineChart(series, {
-      verticals: Number.isFinite(firstFull) ? [
-        {
-          x: firstFull,
-          label: "first full"
-        }
-      ] : [],
+      verticals,
       title: options.title,
       xLabel: "time, s",
       yLabel: "cavity fill, %",
@@ -1480,7 +1642,7 @@
       ...options.id ? {
         id: options.id
       } : {}
-    });
+    }).replace(/^<svg /, `<svg data-switchover="${sw ?? ""}" `);
   }
   function pathProfiles(result) {
     return (result.paths ?? []).map((p) => {
@@ -1554,7 +1716,8 @@
     const before = shown.kind === "optimization" ? shown.result.before : null;
     const m = ctx.scenario.machine;
     const frac = ctx.scenario.goals?.max_pressure_fraction ?? 0.8;
-    const hist = (r, f) => (r.history ?? []).map((h) => [
+    const swPercent = ctx.scenario.process?.switchover_percent;
+    const hist = (r, f) => velocityPhase(r).map((h) => [
       h.time_s ?? NaN,
       f(h)
     ]);
@@ -1577,7 +1740,7 @@
       });
     }
     pSeries.push({
-      label: before ? "after" : "feed",
+      label: before ? "after" : "nozzle",
       style: 0,
       points: hist(after, (h) => p(h.feed_pressure_MPa))
     });
@@ -1586,11 +1749,31 @@
       style: 1,
       points: hist(after, (h) => k(h.clamp_force_kN))
     });
+    const xMax = chartEnd([
+      before,
+      after
+    ]);
+    const verticals = [
+      before,
+      after
+    ].flatMap((r) => typeof r?.switchover_time_s === "number" ? [
+      {
+        x: r.switchover_time_s,
+        label: r === before ? "" : `switchover${swPercent ? ` (${swPercent} %)` : ""}`,
+        at: "top",
+        mark: "switchover"
+      }
+    ] : []);
     const pressure = lineChart(pSeries, {
       labelFaint: true,
-      title: "Injection pressure at the nozzle",
+      title: "Injection pressure at the nozzle, filling",
       xLabel: "time, s",
       yLabel: `pressure, ${unitSymbol(u, "pressure")}`,
+      xDomain: [
+        0,
+        xMax
+      ],
+      verticals,
       rules: [
         {
           y: p(m.max_injection_pressure_MPa),
@@ -1607,9 +1790,14 @@
     });
     const clamp = lineChart(kSeries, {
       labelFaint: true,
-      title: "Clamp force (cavities + runner)",
+      title: "Clamp force (cavities + runner), filling",
       xLabel: "time, s",
       yLabel: `force, ${unitSymbol(u, "force")}`,
+      xDomain: [
+        0,
+        xMax
+      ],
+      verticals,
       rules: [
         {
           y: k(m.clamp_force_kN),
@@ -1622,6 +1810,39 @@
     });
     return pressure + clamp;
   }
+  function elementTableHtml(result, units, meltTemperature_C, options = {}) {
+    const freeze = new Map((result.freeze?.entries ?? []).map((f) => [
+      f.id,
+      f
+    ]));
+    const hold = options.holdTime_s ?? null;
+    const rows = result.elements.filter((e) => e.kind !== "cavity").map((e) => {
+      const f = freeze.get(e.id);
+      const rise = meltTemperature_C !== null && typeof e.melt_temperature_end_C === "number" ? e.melt_temperature_end_C - meltTemperature_C : null;
+      const freezeTime = f?.freeze_time_s ?? null;
+      const gateOpen = e.kind === "gate" && hold !== null && freezeTime !== null && freezeTime > hold;
+      const gateShut = e.kind === "gate" && hold !== null && freezeTime !== null && freezeTime <= hold;
+      return `<tr data-element="${escapeXml(e.id)}" data-kind="${escapeXml(e.kind)}"><th scope="row">${escapeXml(e.id)} <span class="muted">${escapeXml(kindWord(e.kind))}</span></th>` + cell(e.pressure_drop_end_MPa, formatPressure(e.pressure_drop_end_MPa, units), {
+        field: "pressure_drop_end_MPa"
+      }) + cell(e.wall_shear_rate_peak_1_s, num(e.wall_shear_rate_peak_1_s, 3), {
+        field: "wall_shear_rate_peak_1_s"
+      }) + cell(rise, `${formatTemperatureRise(rise, units)}${typeof e.melt_temperature_end_C === "number" ? ` (${formatTemperature(e.melt_temperature_end_C, units)})` : ""}`, {
+        field: "melt_temperature_rise"
+      }) + cell(e.frozen_layer_end_mm, `${formatLength(e.frozen_layer_end_mm, units.length)} ${unitSymbol(units, "length")}${e.frozen_shut ? " \u2014 frozen shut" : ""}`, {
+        field: "frozen_layer_end_mm"
+      }, e.frozen_shut ? "over" : "") + cell(freezeTime, `${num(freezeTime, 3)} s${gateOpen ? " \u2014 still open when the hold ends" : gateShut ? " \u2014 seals within the hold" : ""}`, {
+        field: "freeze_time_s"
+      }, gateOpen ? "over" : "") + `</tr>`;
+    }).join("");
+    return scrollBox(`<table class="data elements" id="element-table"><caption>Per runner and gate${hold !== null ? ` (hold time ${num(hold, 3)} s)` : ""}</caption><thead><tr><th scope="col">element</th><th scope="col">pressure drop at switchover</th><th scope="col">wall shear peak, 1/s</th><th scope="col">melt heating (leaving it)</th><th scope="col">frozen layer at switchover</th><th scope="col">freeze time</th></tr></thead><tbody>${rows}</tbody></table>`) + `<p class="note">Heating is the adiabatic upper bound; a gate should seal within the hold time, or melt can flow back out of the part (a check of the times, not of the packing).</p>`;
+  }
+  function kindWord(kind) {
+    return {
+      feed: "sprue / drop",
+      runner: "runner",
+      gate: "gate"
+    }[kind] ?? kind;
+  }
   function warningsHtml(result) {
     if (result.warnings.length === 0) return `<p class="empty">No warnings.</p>`;
     return `<ul class="warnings">${result.warnings.map((w) => `<li class="${escapeXml(w.severity ?? "warning")}" data-code="${escapeXml(w.code)}"><span class="sev">${w.severity === "info" ? "note" : "warning"}</span> ${escapeXml(w.message)}</li>`).join("")}</ul>`;
@@ -1633,14 +1854,25 @@
     converged: "Goals met",
     infeasible: "Goals not reachable within the limits",
     iteration_limit: "Stopped at the iteration limit",
-    cancelled: "Cancelled"
+    cancelled: "Cancelled \u2014 best design so far"
+  };
+  var STATUS_MEANING = {
+    converged: "These sizes meet every goal set on the Scenario tab.",
+    infeasible: "No sizes inside the limits meet every goal; these are the closest the search found.",
+    iteration_limit: "The search used all its rounds; these are the best sizes it found, not a proven best.",
+    cancelled: "The search was stopped before it finished; these are the best sizes it had reached."
   };
   var SLOPE_WORDS = {
     tangent: "carried by each simulation (tangent)",
     finite_difference: "by finite differences (one simulation per size)"
   };
   function verdictHtml(opt) {
-    return `<div class="verdict" data-status="${escapeXml(opt.status)}"><p><strong>${escapeXml(STATUS_WORDS[opt.status] ?? opt.status)}</strong> \u2014 ${escapeXml(opt.reason)}</p>` + (opt.would_need.length ? `<p>What would make it reachable (a linear estimate, confirm by simulation):</p><ul>${opt.would_need.map((w) => `<li>${escapeXml(w)}</li>`).join("")}</ul>` : "") + (opt.snapping ? `<p class="muted">Cutters: ${escapeXml(opt.snapping)}</p>` : "") + (opt.simulations !== void 0 ? `<p class="muted">${opt.simulations} fill simulations${opt.slopes ? `; slopes ${SLOPE_WORDS[opt.slopes] ?? escapeXml(opt.slopes)}` : ""}.</p>` : "") + `</div>`;
+    const internals = [
+      `<p>${escapeXml(opt.reason)}</p>`,
+      opt.snapping ? `<p>Cutters: ${escapeXml(opt.snapping)}</p>` : "",
+      opt.simulations !== void 0 ? `<p>${opt.simulations} fill simulations${opt.slopes ? `; slopes ${SLOPE_WORDS[opt.slopes] ?? escapeXml(opt.slopes)}` : ""}.</p>` : ""
+    ].join("");
+    return `<div class="verdict" data-status="${escapeXml(opt.status)}"><p><strong>${escapeXml(STATUS_WORDS[opt.status] ?? opt.status)}</strong> \u2014 ${escapeXml(STATUS_MEANING[opt.status] ?? "")}</p>` + (opt.would_need.length ? `<p>What would make it reachable (a first estimate; simulate to confirm):</p><ul>${opt.would_need.map((w) => `<li>${escapeXml(w)}</li>`).join("")}</ul>` : "") + `<details class="advanced"><summary>Advanced: the optimizer's own account</summary>${internals}</details></div>`;
   }
   function seriesKeyHtml(ids) {
     return `<ul class="series-key">${ids.map((id, k) => {
@@ -1648,19 +1880,24 @@
       return `<li><svg width="34" height="12" aria-hidden="true"><line x1="1" y1="6" x2="26" y2="6" stroke="${s.colour}" stroke-width="2"${s.dash ? ` stroke-dasharray="${s.dash}"` : ""}/>${markerSvg(s.marker, 29, 6, 6, s.colour)}</svg>${escapeXml(id)}</li>`;
     }).join("")}</ul>`;
   }
+  function staleBannerHtml(what) {
+    return `<p class="stale-banner" role="alert" data-stale="true"><strong>Out of date \u2014 run again.</strong> The scenario in the editor has changed since this ${escapeXml(what)} was made; its numbers belong to the earlier scenario.</p>`;
+  }
   function changeSheetHtml(opt, options) {
     const b = opt.before, a = opt.after;
     const u = options.units;
     const row = (label, x, y) => `<tr><th scope="row">${escapeXml(label)}</th><td class="num">${escapeXml(x)}</td><td class="num">${escapeXml(y)}</td></tr>`;
-    return `<article class="sheet" id="sheet"><header class="sheet-head"><div><p class="kicker">evenfill \xB7 change sheet</p><h2>${escapeXml(options.toolName)}</h2>${options.scenarioLabel ? `<p class="muted">${escapeXml(options.scenarioLabel)}</p>` : ""}</div><dl><dt>Date</dt><dd id="sheet-date">${escapeXml(options.date)}</dd><dt>Status</dt><dd>${escapeXml(opt.status)}</dd><dt>Units</dt><dd>${u.length === "mm" ? "mm (inch beside)" : "inch (mm beside)"}, ${escapeXml(unitSymbol(u, "pressure"))}</dd></dl></header><section class="sheet-layout"><h3>Layout (after; changed elements dashed, with their step)</h3>${options.layout}</section><section><h3>Changes in order of work</h3><p class="muted">Each step was simulated with every step before it. Cut one step, shoot and weigh short shots, compare with the predicted effect, then decide on the next.</p>${changeTableHtml(opt.changes, u, {
+    const fill = (label, value = "") => `<tr><th scope="row">${escapeXml(label)}</th><td${value ? "" : ' class="fill-in"'}>${escapeXml(value)}</td></tr>`;
+    const at = options.switchoverPercent ? ` (at switchover, ${options.switchoverPercent} %)` : "";
+    return `<article class="sheet${options.stale ? " stale" : ""}" id="sheet" data-stale="${options.stale ? "true" : "false"}">` + (options.stale ? staleBannerHtml("change sheet") : "") + `<header class="sheet-head"><div class="sheet-title"><p class="kicker">evenfill \xB7 change sheet</p><h2>${escapeXml(options.toolName)}</h2>${options.scenarioLabel ? `<p class="muted">${escapeXml(options.scenarioLabel)}</p>` : ""}<p class="sheet-status"><strong>${escapeXml(STATUS_WORDS[opt.status] ?? opt.status)}</strong> \u2014 ${escapeXml(STATUS_MEANING[opt.status] ?? "")}</p></div><table class="rev-block" aria-label="Tool, press, resin lot and revision">` + fill("Tool no.") + fill("Press") + fill("Resin lot") + fill("Revision") + fill("Date", options.date).replace("<td>", '<td id="sheet-date">') + (options.scenarioCode ? fill("Scenario check", options.scenarioCode) : "") + fill("Units", `${u.length === "mm" ? "mm (inch beside)" : "inch (mm beside)"}, ${unitSymbol(u, "pressure")}`) + `</table></header><div class="sheet-grid"><section class="sheet-layout"><h3>Layout after the changes</h3>${options.layout}</section><div class="sheet-side"><section class="sheet-steps"><h3>Steps in order of work</h3><p class="muted small">Cut one step, shoot and weigh short shots, compare with the predicted imbalance, then decide on the next. Each step was simulated with every step before it.</p>${changeTableHtml(opt.changes, u, {
       id: "sheet-changes",
       sheet: true
-    })}</section><section class="sheet-effect"><h3>Predicted effect</h3><table class="data compact"><thead><tr><th></th><th scope="col">before</th><th scope="col">after all steps</th></tr></thead><tbody>` + row("fill-time imbalance", `${num(b.imbalance_percent)} %`, `${num(a.imbalance_percent)} %`) + row("peak injection pressure", formatPressure(b.feed_pressure_peak_MPa, u), formatPressure(a.feed_pressure_peak_MPa, u)) + row("peak clamp force", formatForce(b.clamp_force_peak_kN, u), formatForce(a.clamp_force_peak_kN, u)) + row("cold runner", `${num(b.runner_mass_g)} g`, `${num(a.runner_mass_g)} g`) + `</tbody></table>${verdictHtml(opt)}</section><section class="sheet-cautions"><h3>Cautions</h3>${cautionsHtml(a)}</section><section class="signoff"><h3>Sign-off</h3><div class="sign-lines">` + [
+    })}</section><section class="sheet-effect"><h3>Predicted effect</h3><table class="data compact"><thead><tr><th></th><th scope="col">before</th><th scope="col">after all steps</th></tr></thead><tbody>` + row("fill-time imbalance", `${num(b.imbalance_percent)} %`, `${num(a.imbalance_percent)} %`) + row(`peak injection pressure${at}`, formatPressure(b.feed_pressure_peak_MPa, u), formatPressure(a.feed_pressure_peak_MPa, u)) + row(`peak clamp force${at}`, formatForce(b.clamp_force_peak_kN, u), formatForce(a.clamp_force_peak_kN, u)) + row("cold runner", formatMass(b.runner_mass_g, u), formatMass(a.runner_mass_g, u)) + `</tbody></table></section><section class="sheet-cautions"><h3>Cautions</h3>${cautionsHtml(a)}</section><section class="signoff"><h3>Sign-off</h3><div class="sign-lines">` + [
       "Designed by",
       "Checked by",
       "Toolmaker",
       "Trial shot approved"
-    ].map((who) => `<div class="sign"><span class="line"></span><span>${escapeXml(who)} \u2014 name, date</span></div>`).join("") + `</div></section></article>`;
+    ].map((who) => `<div class="sign"><span class="line"></span><span>${escapeXml(who)} \u2014 name, date</span></div>`).join("") + `</div></section></div></div></article>`;
   }
 
   // src/page/scenario_form.ts
@@ -1743,6 +1980,91 @@
     return s;
   }
 
+  // src/page/scenario_hash.ts
+  function fnv1a(text, seed) {
+    let h = seed >>> 0;
+    for (let k = 0; k < text.length; k++) {
+      h ^= text.charCodeAt(k);
+      h = Math.imul(h, 16777619) >>> 0;
+    }
+    return h >>> 0;
+  }
+  function canonicalScenario(text) {
+    try {
+      return JSON.stringify(JSON.parse(text));
+    } catch {
+      return text;
+    }
+  }
+  function scenarioHash(text) {
+    const c = canonicalScenario(text);
+    return fnv1a(c, 2166136261).toString(16).padStart(8, "0") + fnv1a(c, 2654435769).toString(16).padStart(8, "0");
+  }
+
+  // src/page/service_health.ts
+  var HealthMonitor = class {
+    #state = "unknown";
+    #timer;
+    #checking = null;
+    #stopped = false;
+    #options;
+    constructor(options) {
+      this.#options = {
+        upIntervalMs: 5e3,
+        downIntervalMs: 2e3,
+        setTimer: (run, ms) => setTimeout(run, ms),
+        clearTimer: (id) => clearTimeout(id),
+        ...options
+      };
+    }
+    /** The state after the latest check. */
+    get state() {
+      return this.#state;
+    }
+    /** Check now (coalesced with a check in flight), then keep checking on the interval. */
+    checkNow() {
+      if (this.#stopped) return Promise.resolve();
+      if (this.#checking) return this.#checking;
+      if (this.#timer !== void 0) this.#options.clearTimer(this.#timer);
+      this.#timer = void 0;
+      this.#checking = (async () => {
+        let ok = false;
+        try {
+          ok = await this.#options.check();
+        } catch {
+          ok = false;
+        }
+        this.#checking = null;
+        this.#set(ok ? "up" : "down");
+        this.#schedule();
+      })();
+      return this.#checking;
+    }
+    /** Something found no service: check at once. */
+    suspect() {
+      void this.checkNow();
+    }
+    /** Stop checking. */
+    stop() {
+      this.#stopped = true;
+      if (this.#timer !== void 0) this.#options.clearTimer(this.#timer);
+      this.#timer = void 0;
+    }
+    #set(next) {
+      const previous = this.#state;
+      this.#state = next;
+      if (next !== previous) this.#options.onChange(next, previous);
+    }
+    #schedule() {
+      if (this.#stopped) return;
+      const ms = this.#state === "down" ? this.#options.downIntervalMs : this.#options.upIntervalMs;
+      this.#timer = this.#options.setTimer(() => {
+        this.#timer = void 0;
+        void this.checkNow();
+      }, ms);
+    }
+  };
+
   // src/page/main.ts
   var $ = (id) => {
     const el = document.getElementById(id);
@@ -1763,8 +2085,39 @@
     jobId: null,
     progress: [],
     /** Imbalance target of the job being run, %. */
-    runTarget: null
+    runTarget: null,
+    /** Where the shown result came from: the scenario's check code, source and name then. */
+    ran: null,
+    /** The result no longer matches the editor's scenario. */
+    stale: false,
+    /** The simulate request in flight (the Cancel button aborts it). */
+    simulating: null,
+    /** The press's hold time for the gate-freeze check, s (page only; not in the scenario). */
+    holdTime: loadHoldTime()
   };
+  function loadHoldTime() {
+    const v = Number(localStorage.getItem("evenfill.holdTime") ?? "");
+    return Number.isFinite(v) && v > 0 ? v : null;
+  }
+  function rememberRun(scenario, text) {
+    const s = scenario;
+    state.ranScenario = scenario;
+    state.ran = {
+      hash: scenarioHash(text),
+      sourceLabel: sourceLabel(),
+      meltTemperature_C: s.process?.melt_temperature_C ?? null,
+      switchoverPercent: s.process?.switchover_percent ?? 98
+    };
+    state.stale = false;
+  }
+  function checkStale() {
+    const stale = state.ran !== null && scenarioHash(editor().value) !== state.ran.hash;
+    document.body.dataset.stale = String(stale);
+    if (stale !== state.stale) {
+      state.stale = stale;
+      renderResults();
+    }
+  }
   function loadUnits() {
     try {
       return parseDisplayUnits(JSON.parse(localStorage.getItem("evenfill.units") ?? "null"));
@@ -1842,6 +2195,7 @@
   function setEditorText(text) {
     editor().value = text;
     renderGutter();
+    checkStale();
     const value = checkEditor();
     if (value !== null) validateOnService(text, value);
   }
@@ -1853,6 +2207,7 @@
   var validation = 0;
   function onEditorChange() {
     renderGutter();
+    checkStale();
     if (checkTimer !== void 0) clearTimeout(checkTimer);
     checkTimer = setTimeout(() => {
       const value = checkEditor();
@@ -2208,40 +2563,48 @@
       say(`${error.message} (${error.code})`, "error");
       return;
     }
-    say(String(error), "error");
+    say(`Something went wrong on the page: ${error instanceof Error ? error.message : String(error)}. Reload the page if it persists.`, "error");
   }
-  function setBusy(busy, job = false) {
+  function setBusy(busy, cancellable = false) {
     $("simulate").disabled = busy;
     $("optimize").disabled = busy;
-    $("cancel").disabled = !(busy && job);
+    $("cancel").disabled = !(busy && cancellable);
     $("run-slopes").disabled = busy;
   }
   async function simulate() {
     const scenario = editorScenarioOr("Nothing sent: the JSON is not valid (see the editor).");
     if (scenario === null) return;
-    setBusy(true);
+    const text = editor().value;
+    const abort = new AbortController();
+    state.simulating = abort;
+    setBusy(true, true);
     $("run-state").textContent = "Simulating\u2026";
     try {
-      const result = await api.simulate(scenario);
+      const result = await api.simulate(scenario, abort.signal);
       state.shown = {
         kind: "simulation",
         result
       };
-      state.ranScenario = scenario;
+      rememberRun(scenario, text);
+      checkStale();
       renderResults();
       $("run-state").textContent = "Simulation done.";
       say("Simulation done.", "ok");
       showTab("results");
     } catch (error) {
-      $("run-state").textContent = "Simulation failed.";
-      report(error);
+      const cancelled = error instanceof ApiError && error.code === "cancelled";
+      $("run-state").textContent = cancelled ? "Simulation cancelled." : "Simulation failed.";
+      if (cancelled) say("Simulation cancelled.");
+      else report(error);
     } finally {
+      state.simulating = null;
       setBusy(false);
     }
   }
   async function optimize() {
     const scenario = editorScenarioOr("Nothing sent: the JSON is not valid (see the editor).");
     if (scenario === null) return;
+    const text = editor().value;
     setBusy(true);
     state.progress = [];
     const goals = scenario.goals;
@@ -2268,7 +2631,8 @@
             state.progress.push(p);
           }
           renderProgress();
-        }
+        },
+        onStreamLost: () => health.suspect()
       });
       $("run-panel").dataset.job = job.status;
       if (job.status === "done" && job.result) {
@@ -2276,14 +2640,28 @@
           kind: "optimization",
           result: job.result
         };
-        state.ranScenario = scenario;
+        rememberRun(scenario, text);
+        checkStale();
         renderResults();
         const words = STATUS_WORDS[job.result.status] ?? job.result.status;
         $("run-state").textContent = `Optimization done: ${words}.`;
         say(`Optimization done: ${words}.`, "ok");
         showTab("results");
+      } else if (job.status === "cancelled" && job.result) {
+        state.shown = {
+          kind: "optimization",
+          result: {
+            ...job.result,
+            status: "cancelled"
+          }
+        };
+        rememberRun(scenario, text);
+        checkStale();
+        renderResults();
+        $("run-state").textContent = "Optimization cancelled \u2014 best design so far shown.";
+        say("Optimization cancelled \u2014 the best design so far is on the Results tab.");
       } else if (job.status === "cancelled") {
-        $("run-state").textContent = "Optimization cancelled.";
+        $("run-state").textContent = "Optimization cancelled before it reached a design.";
         say("Optimization cancelled.");
       } else {
         const message = typeof job.error === "string" ? job.error : job.error?.message ?? "unknown error";
@@ -2332,6 +2710,10 @@
     $("simulate").addEventListener("click", simulate);
     $("optimize").addEventListener("click", optimize);
     $("cancel").addEventListener("click", async () => {
+      if (state.simulating) {
+        state.simulating.abort();
+        return;
+      }
       if (!state.jobId) return;
       try {
         await api.cancelJob(state.jobId);
@@ -2340,56 +2722,133 @@
         report(error);
       }
     });
-    $("print").addEventListener("click", () => globalThis.print());
+    $("print").addEventListener("click", () => {
+      if (state.stale) {
+        say("The sheet is out of date: it prints marked so. Run again for a current sheet.", "error");
+      }
+      globalThis.print();
+    });
+    $("results-body").addEventListener("change", (e) => {
+      const input = e.target;
+      if (input.id !== "hold-time") return;
+      const v = Number(input.value);
+      state.holdTime = input.value.trim() !== "" && Number.isFinite(v) && v > 0 ? v : null;
+      localStorage.setItem("evenfill.holdTime", state.holdTime === null ? "" : String(v));
+      renderResults();
+    });
   }
   function renderResults() {
-    const shown = state.shown, scenario = state.ranScenario;
+    const shown = state.shown, scenario = state.ranScenario, ran = state.ran;
     const results = $("results-body");
     const sheet = $("sheet-body");
-    if (!shown || !scenario) {
+    if (!shown || !scenario || !ran) {
       results.innerHTML = `<p class="empty">No result yet: simulate or optimize on the Run tab.</p>`;
       sheet.innerHTML = `<p class="empty">The change sheet comes from an optimization: run one on the Run tab.</p>`;
       return;
     }
+    const u = state.units;
     const ctx = {
       scenario,
-      units: state.units
+      units: u
     };
     const r = primary(shown);
     const opt = shown.kind === "optimization" ? shown.result : null;
     const changes = opt?.changes ?? [];
-    const layout = (id) => layoutSvg(scenario, {
-      lengthUnit: state.units.length,
+    const layout = (id, print) => layoutSvg(scenario, {
+      lengthUnit: u.length,
       changes,
-      id
+      id,
+      ...print ? {
+        print
+      } : {}
     });
-    const xMax = Math.max(...[
+    const xMax = chartEnd([
       opt?.before,
       r
-    ].flatMap((x) => (x?.history ?? []).map((h) => h.time_s ?? 0)), 1e-3);
+    ]);
     const ids = r.cavities.map((c) => `${c.id}${c.name ? ` ${c.name}` : ""}`);
-    results.innerHTML = `<h2 class="run-title">${escapeXml(scenario.name)} <small>${opt ? "optimization" : "simulation"}${r.material ? ` \xB7 ${escapeXml(r.material.name)}` : ""}</small></h2>` + (opt ? verdictHtml(opt) : "") + summaryHtml(shown, ctx) + `<section class="block"><h3>Layout${opt ? " after the changes" : ""}</h3>${layout("results-layout")}<p class="note">${escapeXml(layoutKeyText(state.units.length))}</p></section><section class="block"><h3>Fill history</h3>${seriesKeyHtml(ids)}<div class="charts">${opt ? fillChartSvg(opt.before, {
+    const sw = ran.switchoverPercent;
+    const kindWords = opt ? opt.status === "cancelled" ? "optimization, cancelled \u2014 best design so far" : "optimization" : "simulation";
+    results.dataset.stale = String(state.stale);
+    results.innerHTML = (state.stale ? staleBannerHtml("result") : "") + `<h2 class="run-title">${escapeXml(scenario.name)} <small>${escapeXml(kindWords)}${r.material ? ` \xB7 ${escapeXml(r.material.name)}` : ""} \xB7 ${escapeXml(ran.sourceLabel)}</small></h2>` + (opt ? verdictHtml(opt) : "") + summaryHtml(shown, ctx) + `<section class="block"><h3>Layout${opt ? " after the changes" : ""}</h3>${layout("results-layout")}<p class="note">${escapeXml(layoutKeyText(u.length))}</p></section><section class="block"><h3>Filling, up to switchover</h3>${seriesKeyHtml(ids)}<div class="charts">${opt ? fillChartSvg(opt.before, {
       title: "Before",
       id: "fill-before",
-      xMax
+      xMax,
+      switchoverPercent: sw
     }) + fillChartSvg(opt.after, {
       title: "After",
       id: "fill-after",
-      xMax
+      xMax,
+      switchoverPercent: sw
     }) : fillChartSvg(r, {
       title: "Cavity fill",
       id: "fill-result",
-      xMax
-    })}</div></section><section class="block">${cavityTableHtml(shown)}</section>` + (opt ? `<section class="block"><h3>Change list</h3>${changeTableHtml(changes, state.units, {
+      xMax,
+      switchoverPercent: sw
+    })}</div><p class="note">The charts end at switchover (${sw} % of the shot volume), where the press changes from filling at the set rate to holding pressure. A cavity still filling then ends at its fill % at switchover; the hold phase fills the rest.</p></section><section class="block">${cavityTableHtml(shown, u)}</section>` + (opt ? `<section class="block"><h3>Change list</h3>${changeTableHtml(changes, u, {
       id: "change-table"
-    })}</section>` : "") + `<section class="block"><h3>Pressure along each flow path</h3>${seriesKeyHtml(ids)}<div class="charts">${pathPressureSvg(shown, ctx)}</div></section><section class="block"><h3>Against the press</h3><div class="charts">${pressChartsSvg(shown, ctx)}</div><p class="muted">Estimates: the press maker's limits and local safety practice come first.</p></section><section class="block two"><div><h3>Warnings</h3>${warningsHtml(r)}</div><div><h3>Cautions</h3>${cautionsHtml(r)}</div></section>`;
+    })}</section>` : "") + `<section class="block"><h3>Runners and gates</h3><p class="hold"><label for="hold-time">Hold time on the press, s</label> <input id="hold-time" type="number" min="0" step="any" inputmode="decimal" value="${state.holdTime ?? ""}"> <span class="muted small">not in the scenario: enter it to check each gate seals within it</span></p>${elementTableHtml(r, u, ran.meltTemperature_C, {
+      holdTime_s: state.holdTime
+    })}</section><section class="block"><h3>Pressure along each flow path</h3>${seriesKeyHtml(ids)}<div class="charts">${pathPressureSvg(shown, ctx)}</div></section><section class="block"><h3>Against the press</h3><div class="charts">${pressChartsSvg(shown, ctx)}</div><p class="muted">Filling only, to switchover: the peaks are the figures above. Estimates: the press maker's limits and local safety practice come first.</p></section><section class="block two"><div><h3>Warnings</h3>${warningsHtml(r)}</div><div><h3>Cautions</h3>${cautionsHtml(r)}</div></section>`;
     sheet.innerHTML = opt ? changeSheetHtml(opt, {
       toolName: scenario.name,
       date: (/* @__PURE__ */ new Date()).toISOString().slice(0, 10),
-      layout: layout("sheet-layout") + `<p class="note">${escapeXml(layoutKeyText(state.units.length))}</p>`,
-      units: state.units,
-      scenarioLabel: `${sourceLabel()}; mode ${scenario.goals?.mode ?? "new_tool"}; material ${opt.after.material?.name ?? ""}`
+      layout: layout("sheet-layout", {
+        maxWidthMm: 150,
+        maxHeightMm: 118
+      }),
+      units: u,
+      scenarioLabel: `${ran.sourceLabel}; mode ${scenario.goals?.mode ?? "new_tool"}; material ${opt.after.material?.name ?? ""}`,
+      scenarioCode: ran.hash.slice(0, 8),
+      stale: state.stale,
+      switchoverPercent: sw
     }) : `<p class="empty">The change sheet comes from an optimization: run one on the Run tab.</p>`;
+    $("print").textContent = state.stale ? "Print (marked out of date)" : "Print the change sheet";
+  }
+  var health = new HealthMonitor({
+    check: async () => {
+      try {
+        await api.health();
+        return true;
+      } catch {
+        return false;
+      }
+    },
+    onChange: showServiceState
+  });
+  function showServiceState(now, before) {
+    const el = $("service-state");
+    document.body.dataset.service = now;
+    if (now === "down") {
+      el.hidden = false;
+      el.dataset.kind = "error";
+      el.textContent = "The service is not answering (stopped or restarting?). What is on the page stays; checking, saving and running wait until it is back. Checking every 2 s.";
+      if (state.jobId) {
+        $("run-state").textContent = "The service is not answering: the optimization's state is unknown until it is back.";
+        $("run-panel").dataset.job = "unknown";
+      }
+    } else if (now === "up" && before === "down") {
+      el.hidden = false;
+      el.dataset.kind = "ok";
+      el.textContent = "The service is back.";
+      if (document.body.dataset.ready !== "true") void loadStart();
+    }
+  }
+  async function loadStart() {
+    try {
+      const about = await api.health();
+      $("version").textContent = about.version ? `service ${about.version}` : "";
+      await refreshLists();
+      if (state.source.kind === "none") {
+        const first = state.demos[0];
+        if (first) await openSource(`demo:${first.id}`);
+        $("source").value = first ? `demo:${first.id}` : "";
+      }
+      document.body.dataset.ready = "true";
+    } catch (error) {
+      report(error);
+      document.body.dataset.ready = "error";
+    }
   }
   async function start() {
     setupTabs();
@@ -2401,18 +2860,9 @@
     setBusy(false);
     renderResults();
     renderProgress();
-    try {
-      const health = await api.health();
-      $("version").textContent = health.version ? `service ${health.version}` : "";
-      await refreshLists();
-      const first = state.demos[0];
-      if (first) await openSource(`demo:${first.id}`);
-      $("source").value = first ? `demo:${first.id}` : "";
-      document.body.dataset.ready = "true";
-    } catch (error) {
-      report(error);
-      document.body.dataset.ready = "error";
-    }
+    onServiceUnreachable(() => health.suspect());
+    await loadStart();
+    void health.checkNow();
   }
   start();
 })();

@@ -37,20 +37,79 @@ export function setAccessToken(token: string | null) {
   else sessionStorage.removeItem(TOKEN_KEY);
 }
 
-async function call<T>(method: string, url: string, body?: unknown): Promise<T> {
+/** How long a request may take before the page gives up on it, ms. */
+export const TIMEOUTS_MS = {
+  /** Listings, health, a scenario, a job's state. */
+  read: 8_000,
+  /** Validation, saving, starting or cancelling a job. */
+  write: 15_000,
+  /** A synchronous simulation (the service's own limit is 10 s by default, plus the trip). */
+  simulate: 30_000,
+} as const;
+
+/** Options of one API call. */
+export interface CallOptions {
+  /** Give up after this many ms (default by method: {@link TIMEOUTS_MS}). */
+  timeoutMs?: number;
+  /** Cancels the request (the Cancel button). */
+  signal?: AbortSignal;
+}
+
+/** Listeners told when a request could not reach the service at all (not an HTTP error). */
+const unreachable = new Set<() => void>();
+
+/** Call `listener` whenever a request finds no service (network error or time-out). */
+export function onServiceUnreachable(listener: () => void): () => void {
+  unreachable.add(listener);
+  return () => unreachable.delete(listener);
+}
+
+/** The error of a request that got no answer, in plain words. */
+export function noAnswerError(error: unknown, timeoutMs: number, cancelled: boolean): ApiError {
+  const name = (error as { name?: string } | null)?.name;
+  if (cancelled) return new ApiError(0, "cancelled", "Cancelled.");
+  if (name === "TimeoutError") {
+    return new ApiError(
+      0,
+      "timeout",
+      `The service did not answer within ${
+        Math.round(timeoutMs / 1000)
+      } s; nothing was changed on the page. Try again, or check that the service is running.`,
+    );
+  }
+  return new ApiError(
+    0,
+    "network",
+    "The service cannot be reached: it may be stopped or restarting. The page checks again by itself.",
+  );
+}
+
+async function call<T>(
+  method: string,
+  url: string,
+  body?: unknown,
+  options: CallOptions = {},
+): Promise<T> {
   let response: Response;
   const headers: Record<string, string> = {};
   if (body !== undefined) headers["content-type"] = "application/json";
   const token = sessionStorage.getItem(TOKEN_KEY);
   if (token && method !== "GET") headers.authorization = `Bearer ${token}`;
+  const timeoutMs = options.timeoutMs ?? (method === "GET" ? TIMEOUTS_MS.read : TIMEOUTS_MS.write);
+  const timeout = AbortSignal.timeout(timeoutMs);
+  const signal = options.signal ? AbortSignal.any([timeout, options.signal]) : timeout;
   try {
     response = await fetch(url, {
       method,
       headers,
+      signal,
       ...(body === undefined ? {} : { body: JSON.stringify(body) }),
     });
   } catch (error) {
-    throw new ApiError(0, "network", `The service did not answer (${String(error)})`);
+    const cancelled = options.signal?.aborted === true;
+    const failure = noAnswerError(error, timeoutMs, cancelled);
+    if (!cancelled) { for (const listener of unreachable) listener(); }
+    throw failure;
   }
   if (response.status === 204) return undefined as T;
   const text = await response.text();
@@ -78,7 +137,8 @@ async function call<T>(method: string, url: string, body?: unknown): Promise<T> 
 
 /** The service's endpoints used by the page. */
 export const api = {
-  health: () => call<{ status: string; version?: string }>("GET", "/api/health"),
+  health: (timeoutMs = 3_000) =>
+    call<{ status: string; version?: string }>("GET", "/api/health", undefined, { timeoutMs }),
   materials: () => call<{ materials: MaterialEntry[] }>("GET", "/api/materials"),
   demos: () => call<{ demos: DemoEntry[] }>("GET", "/api/demos"),
   demo: (id: string) => call<unknown>("GET", `/api/demos/${encodeURIComponent(id)}`),
@@ -104,8 +164,11 @@ export const api = {
     ),
   validate: (scenario: unknown) =>
     call<{ ok: boolean; issues?: Issue[] }>("POST", "/api/validate", scenario),
-  simulate: (scenario: unknown) =>
-    call<SimulationResult>("POST", "/api/simulate?history=1", scenario),
+  simulate: (scenario: unknown, signal?: AbortSignal) =>
+    call<SimulationResult>("POST", "/api/simulate?history=1", scenario, {
+      timeoutMs: TIMEOUTS_MS.simulate,
+      ...(signal ? { signal } : {}),
+    }),
   startJob: (scenario: unknown, options: { mode?: string; slopes?: string } = {}) =>
     call<{ id: string; status: string }>("POST", "/api/jobs", {
       kind: "optimize",
@@ -121,6 +184,8 @@ export const api = {
 export interface JobWatch {
   onState?: (status: string) => void;
   onProgress?: (progress: JobProgress) => void;
+  /** The event stream closed before the job ended (the service may be gone). */
+  onStreamLost?: () => void;
 }
 
 /**
@@ -184,6 +249,7 @@ export function watchJob(id: string, watch: JobWatch): Promise<Job> {
       if (finished) return;
       source?.close();
       source = undefined;
+      watch.onStreamLost?.();
       poll();
     };
   });

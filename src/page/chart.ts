@@ -8,14 +8,14 @@
  * @module
  */
 
-/** Okabe–Ito colours, ordered for contrast on white (the yellow is left out). */
+/** Okabe–Ito hues, ordered for contrast on white (the yellow is left out), each ≥ 3:1 on white. */
 export const SERIES_COLOURS = [
   "#0072B2", // blue
   "#D55E00", // vermillion
   "#009E73", // bluish green
   "#CC79A7", // reddish purple
-  "#E69F00", // orange
-  "#56B4E9", // sky blue
+  "#B07800", // orange, darkened from #E69F00 to 3:1 on white (WCAG 2.1, 1.4.11)
+  "#3C8DC5", // sky blue, darkened from #56B4E9 to 3:1 on white (WCAG 2.1, 1.4.11)
   "#000000", // black
 ] as const;
 
@@ -190,8 +190,11 @@ export interface LineChartOptions {
   /** Fixed y domain (default: from the data and rules). */
   yDomain?: [number, number];
   rules?: ChartRule[];
-  /** Vertical reference lines (an instant, e.g. "first cavity full"). */
-  verticals?: { x: number; label: string }[];
+  /**
+   * Vertical reference lines (an instant, e.g. "first cavity full"); `at` puts the label at
+   * the top or the bottom of the plot (default bottom), `mark` names it (`data-mark`).
+   */
+  verticals?: { x: number; label: string; at?: "top" | "bottom"; mark?: string }[];
   /** Label faint series at their ends too (default false). */
   labelFaint?: boolean;
   /** x values are whole numbers (iterations): ticks at integers only (default false). */
@@ -306,13 +309,16 @@ export function lineChart(series: ChartSeries[], options: LineChartOptions): str
   for (const v of options.verticals ?? []) {
     if (!(v.x >= xd.domain[0] && v.x <= xd.domain[1])) continue;
     const x = fmt(xs(v.x));
+    const labelY = v.at === "top" ? margin.top + 11 : height - margin.bottom - 4;
     out.push(
-      `<g class="rule"><line x1="${x}" x2="${x}" y1="${margin.top}" y2="${
+      `<g class="rule vertical"${
+        v.mark ? ` data-mark="${escapeXml(v.mark)}" data-x="${v.x}"` : ""
+      }><line x1="${x}" x2="${x}" y1="${margin.top}" y2="${
         height - margin.bottom
-      }" stroke="#000" stroke-width="1" stroke-dasharray="3 3"/>` +
-        `<text x="${x}" y="${height - margin.bottom - 4}" dx="-4" text-anchor="end">${
-          escapeXml(v.label)
-        }</text></g>`,
+      }" stroke="#000" stroke-width="${v.mark ? 1.5 : 1}" stroke-dasharray="${
+        v.mark ? "6 2 1 2" : "3 3"
+      }"/>` +
+        `<text x="${x}" y="${labelY}" dx="-4" text-anchor="end">${escapeXml(v.label)}</text></g>`,
     );
   }
   // series

@@ -1,5 +1,6 @@
 import {
   cToF,
+  M3_PER_CM3,
   M_PER_INCH,
   M_PER_MM,
   N_PER_KN,
@@ -97,16 +98,24 @@ export function temperatureToC(value: number, unit: TemperatureUnit): number {
 }
 
 /**
- * Round for display to `digits` significant figures, without exponent for
- * everyday magnitudes; a missing value prints as an en dash.
+ * Round for display to `digits` significant figures, once, with thousands separators
+ * ("21,339"); never an exponent. A missing value prints as an en dash.
  */
 export function formatNumber(value: number | null | undefined, digits = 3): string {
   if (value === null || value === undefined || !Number.isFinite(value)) return "–";
   if (value === 0) return "0";
   const magnitude = Math.floor(Math.log10(Math.abs(value)));
   const decimals = Math.max(0, digits - 1 - magnitude);
-  if (magnitude >= 6 || magnitude < -4) return value.toPrecision(digits);
-  return value.toFixed(Math.min(decimals, 8));
+  if (magnitude < -4) return value.toPrecision(digits);
+  if (decimals === 0) return groupThousands(Math.round(value).toFixed(0));
+  return groupThousands(value.toFixed(Math.min(decimals, 8)));
+}
+
+/** "1234567.5" → "1,234,567.5": commas between groups of three integer digits. */
+export function groupThousands(text: string): string {
+  const m = /^(-?)(\d+)(\.\d*)?$/.exec(text);
+  if (!m) return text;
+  return m[1] + m[2].replace(/\B(?=(\d{3})+(?!\d))/g, ",") + (m[3] ?? "");
 }
 
 /** Decimals used for a length: mm to 0.01, inch to 0.0001 (a toolroom's habit). */
@@ -120,7 +129,9 @@ export function formatLength(mm: number | null | undefined, unit: LengthUnit): s
 export function formatPressure(mpa: number | null | undefined, units: DisplayUnits): string {
   if (mpa === null || mpa === undefined || !Number.isFinite(mpa)) return "–";
   const v = pressureFromMpa(mpa, units.pressure);
-  const text = units.pressure === "psi" ? Math.round(v).toString() : formatNumber(v, 3);
+  const text = units.pressure === "psi"
+    ? groupThousands(Math.round(v).toFixed(0))
+    : formatNumber(v, 3);
   return `${text} ${unitSymbol(units, "pressure")}`;
 }
 
@@ -128,6 +139,64 @@ export function formatPressure(mpa: number | null | undefined, units: DisplayUni
 export function formatForce(kn: number | null | undefined, units: DisplayUnits): string {
   if (kn === null || kn === undefined || !Number.isFinite(kn)) return "–";
   return `${formatNumber(forceFromKn(kn, units.force), 3)} ${unitSymbol(units, "force")}`;
+}
+
+/**
+ * Avoirdupois ounce and pound, grams (exact: 1 lb = 0.45359237 kg, 1 oz = lb/16; NIST SP 811,
+ * appendix B.8). The page's only masses outside model/units.ts: shown, never computed with.
+ */
+export const G_PER_OUNCE = 28.349523125;
+/** Avoirdupois pound, grams (exact; NIST SP 811, appendix B.8). */
+export const G_PER_POUND = 453.59237;
+/** Cubic inch, cm³ (exact from 1 in = 25.4 mm). */
+export const CM3_PER_CUBIC_INCH = Math.pow(M_PER_INCH, 3) / M3_PER_CM3;
+
+/** US units follow the length choice: inch → in³, oz or lb, in³/s. */
+const usUnits = (units: DisplayUnits) => units.length === "in";
+
+/** A volume (given in cm³) with its unit: cm³, or in³ with US units; three figures. */
+export function formatVolume(cm3: number | null | undefined, units: DisplayUnits, digits = 3) {
+  if (cm3 === null || cm3 === undefined || !Number.isFinite(cm3)) return "–";
+  return usUnits(units)
+    ? `${formatNumber(cm3 / CM3_PER_CUBIC_INCH, digits)} in³`
+    : `${formatNumber(cm3, digits)} cm³`;
+}
+
+/** A mass (given in g) with its unit: g, or oz (lb from 1 lb up) with US units; three figures. */
+export function formatMass(g: number | null | undefined, units: DisplayUnits, digits = 3) {
+  if (g === null || g === undefined || !Number.isFinite(g)) return "–";
+  if (!usUnits(units)) return `${formatNumber(g, digits)} g`;
+  return g >= G_PER_POUND
+    ? `${formatNumber(g / G_PER_POUND, digits)} lb`
+    : `${formatNumber(g / G_PER_OUNCE, digits)} oz`;
+}
+
+/** A flow rate (given in cm³/s) with its unit: cm³/s, or in³/s with US units. */
+export function formatFlowRate(cm3PerS: number | null | undefined, units: DisplayUnits) {
+  if (cm3PerS === null || cm3PerS === undefined || !Number.isFinite(cm3PerS)) return "–";
+  return usUnits(units)
+    ? `${formatNumber(cm3PerS / CM3_PER_CUBIC_INCH, 3)} in³/s`
+    : `${formatNumber(cm3PerS, 3)} cm³/s`;
+}
+
+/** A length (given in mm) with its unit symbol, rounded once (mm to 0.01, inch to 0.0001). */
+export function formatLengthWithUnit(mm: number | null | undefined, units: DisplayUnits): string {
+  const text = formatLength(mm, units.length);
+  return text === "–" ? text : `${text} ${unitSymbol(units, "length")}`;
+}
+
+/** A temperature (given in °C) with its unit, to a tenth of a degree at most. */
+export function formatTemperature(c: number | null | undefined, units: DisplayUnits): string {
+  if (c === null || c === undefined || !Number.isFinite(c)) return "–";
+  const v = temperatureFromC(c, units.temperature);
+  return `${trimZeros(v.toFixed(1))} ${unitSymbol(units, "temperature")}`;
+}
+
+/** A temperature difference (given in K) with its unit (°C or °F steps). */
+export function formatTemperatureRise(k: number | null | undefined, units: DisplayUnits): string {
+  if (k === null || k === undefined || !Number.isFinite(k)) return "–";
+  const v = units.temperature === "C" ? k : k * 1.8;
+  return `${trimZeros(v.toFixed(1))} ${units.temperature === "C" ? "K" : "°F"}`;
 }
 
 function trimZeros(text: string): string {

@@ -234,6 +234,27 @@ export interface LayoutSvgOptions {
   changes?: DrawingChange[];
   /** id of the SVG element. */
   id?: string;
+  /**
+   * Print to a true scale within this box, mm: the drawing gets the largest scale of
+   * {@link DRAWING_SCALES} that fits, its printed width (`--print-width`) and the ratio
+   * written beside the scale bar.
+   */
+  print?: { maxWidthMm: number; maxHeightMm: number };
+}
+
+/** Drawing scales (printed : true size), the recommended ones of ISO 5455:1979, largest first. */
+export const DRAWING_SCALES = [10, 5, 2, 1, 1 / 2, 1 / 5, 1 / 10, 1 / 20, 1 / 50] as const;
+
+/** The largest recommended scale at which a `widthMm` × `heightMm` drawing fits the box. */
+export function printScale(
+  widthMm: number,
+  heightMm: number,
+  box: { maxWidthMm: number; maxHeightMm: number },
+): { scale: number; ratio: string } {
+  const scale =
+    DRAWING_SCALES.find((k) => widthMm * k <= box.maxWidthMm && heightMm * k <= box.maxHeightMm) ??
+      DRAWING_SCALES[DRAWING_SCALES.length - 1];
+  return { scale, ratio: scale >= 1 ? `${scale}:1` : `1:${Math.round(1 / scale)}` };
 }
 
 /** A label to place: its lines, and the box centres to try, best first (mm, y up). */
@@ -542,13 +563,16 @@ export function layoutSvg(scenario: DrawingScenario, options: LayoutSvgOptions =
   const vy0 = -by1 - pad, vy1 = -by0 + pad + font * 3; // y flipped; room for the scale bar
   const stepMm = niceLengthStep(span / 4, unit);
   const sx = vx0 + pad, sy = vy1 - font * 1.2;
+  const printed = options.print ? printScale(vx1 - vx0, vy1 - vy0, options.print) : null;
   const out: string[] = [];
   out.push(
     `<svg xmlns="http://www.w3.org/2000/svg" class="layout" ${
       options.id ? `id="${escapeXml(options.id)}" ` : ""
-    }viewBox="${f(vx0)} ${f(vy0)} ${f(vx1 - vx0)} ${
-      f(vy1 - vy0)
-    }" role="img" aria-label="Layout drawing of the runner system">`,
+    }viewBox="${f(vx0)} ${f(vy0)} ${f(vx1 - vx0)} ${f(vy1 - vy0)}"${
+      printed
+        ? ` data-scale="${printed.ratio}" style="--print-width:${f((vx1 - vx0) * printed.scale)}mm"`
+        : ""
+    } role="img" aria-label="Layout drawing of the runner system">`,
     `<g font-size="${f(font)}" class="layout-body">`,
     ...body,
     ...channels.runner,
@@ -559,7 +583,9 @@ export function layoutSvg(scenario: DrawingScenario, options: LayoutSvgOptions =
       f(sy - font * 0.4)
     }"/><text class="label" x="${f(sx + stepMm + font * 0.5)}" y="${f(sy)}">${
       formatLength(stepMm, unit).replace(/\.0+$/, "")
-    } ${unit === "mm" ? "mm" : "in"}</text></g>`,
+    } ${unit === "mm" ? "mm" : "in"}${
+      printed ? ` · scale ${printed.ratio} printed at 100 %` : ""
+    }</text></g>`,
     `</g></svg>`,
   );
   return out.join("");

@@ -6,7 +6,7 @@
  *
  * @module
  */
-import { api, ApiError, setAccessToken, watchJob } from "./api.ts";
+import { api, ApiError, onServiceUnreachable, setAccessToken, watchJob } from "./api.ts";
 import { escapeXml as esc, lineChart } from "./chart.ts";
 import {
   type DisplayUnits,
@@ -22,6 +22,8 @@ import {
   cavityTableHtml,
   changeSheetHtml,
   changeTableHtml,
+  chartEnd,
+  elementTableHtml,
   fillChartSvg,
   pathPressureSvg,
   pressChartsSvg,
@@ -29,12 +31,15 @@ import {
   type ScenarioForViews,
   seriesKeyHtml,
   type Shown,
+  staleBannerHtml,
   STATUS_WORDS,
   summaryHtml,
   verdictHtml,
   warningsHtml,
 } from "./results_view.ts";
 import { applyFormField, type FormValues, readForm } from "./scenario_form.ts";
+import { scenarioHash } from "./scenario_hash.ts";
+import { HealthMonitor, type ServiceState } from "./service_health.ts";
 import type { DemoEntry, JobProgress, MaterialEntry, SavedEntry } from "./wire.ts";
 
 const $ = <T extends HTMLElement = HTMLElement>(id: string): T => {
@@ -62,7 +67,53 @@ const state = {
   progress: [] as JobProgress[],
   /** Imbalance target of the job being run, %. */
   runTarget: null as number | null,
+  /** Where the shown result came from: the scenario's check code, source and name then. */
+  ran: null as RunRecord | null,
+  /** The result no longer matches the editor's scenario. */
+  stale: false,
+  /** The simulate request in flight (the Cancel button aborts it). */
+  simulating: null as AbortController | null,
+  /** The press's hold time for the gate-freeze check, s (page only; not in the scenario). */
+  holdTime: loadHoldTime(),
 };
+
+/** What a result came from, fixed when it was run (not when it is shown). */
+interface RunRecord {
+  hash: string;
+  sourceLabel: string;
+  meltTemperature_C: number | null;
+  switchoverPercent: number;
+}
+
+function loadHoldTime(): number | null {
+  const v = Number(localStorage.getItem("evenfill.holdTime") ?? "");
+  return Number.isFinite(v) && v > 0 ? v : null;
+}
+
+/** Remember which scenario (text, source) a result shown from now on belongs to. */
+function rememberRun(scenario: unknown, text: string) {
+  const s = scenario as {
+    process?: { melt_temperature_C?: number; switchover_percent?: number };
+  };
+  state.ranScenario = scenario as ScenarioForViews;
+  state.ran = {
+    hash: scenarioHash(text),
+    sourceLabel: sourceLabel(),
+    meltTemperature_C: s.process?.melt_temperature_C ?? null,
+    switchoverPercent: s.process?.switchover_percent ?? 98,
+  };
+  state.stale = false;
+}
+
+/** Compare the editor with the shown result's scenario; re-render when that changes. */
+function checkStale() {
+  const stale = state.ran !== null && scenarioHash(editor().value) !== state.ran.hash;
+  document.body.dataset.stale = String(stale);
+  if (stale !== state.stale) {
+    state.stale = stale;
+    renderResults();
+  }
+}
 
 function loadUnits(): DisplayUnits {
   try {
@@ -140,6 +191,7 @@ const editor = () => $<HTMLTextAreaElement>("scenario-text");
 function setEditorText(text: string) {
   editor().value = text;
   renderGutter();
+  checkStale();
   const value = checkEditor();
   if (value !== null) validateOnService(text, value);
 }
@@ -150,6 +202,7 @@ let validation = 0;
 
 function onEditorChange() {
   renderGutter();
+  checkStale();
   if (checkTimer !== undefined) clearTimeout(checkTimer);
   checkTimer = setTimeout(() => {
     const value = checkEditor();
@@ -563,34 +616,46 @@ function report(error: unknown) {
     say(`${error.message} (${error.code})`, "error");
     return;
   }
-  say(String(error), "error");
+  say(
+    `Something went wrong on the page: ${
+      error instanceof Error ? error.message : String(error)
+    }. Reload the page if it persists.`,
+    "error",
+  );
 }
 
 // ---------- run ----------
-function setBusy(busy: boolean, job = false) {
+function setBusy(busy: boolean, cancellable = false) {
   $<HTMLButtonElement>("simulate").disabled = busy;
   $<HTMLButtonElement>("optimize").disabled = busy;
-  $<HTMLButtonElement>("cancel").disabled = !(busy && job);
+  $<HTMLButtonElement>("cancel").disabled = !(busy && cancellable);
   $<HTMLSelectElement>("run-slopes").disabled = busy;
 }
 
 async function simulate() {
   const scenario = editorScenarioOr("Nothing sent: the JSON is not valid (see the editor).");
   if (scenario === null) return;
-  setBusy(true);
+  const text = editor().value;
+  const abort = new AbortController();
+  state.simulating = abort;
+  setBusy(true, true);
   $("run-state").textContent = "Simulating…";
   try {
-    const result = await api.simulate(scenario);
+    const result = await api.simulate(scenario, abort.signal);
     state.shown = { kind: "simulation", result };
-    state.ranScenario = scenario as ScenarioForViews;
+    rememberRun(scenario, text);
+    checkStale();
     renderResults();
     $("run-state").textContent = "Simulation done.";
     say("Simulation done.", "ok");
     showTab("results");
   } catch (error) {
-    $("run-state").textContent = "Simulation failed.";
-    report(error);
+    const cancelled = error instanceof ApiError && error.code === "cancelled";
+    $("run-state").textContent = cancelled ? "Simulation cancelled." : "Simulation failed.";
+    if (cancelled) say("Simulation cancelled.");
+    else report(error);
   } finally {
+    state.simulating = null;
     setBusy(false);
   }
 }
@@ -598,6 +663,7 @@ async function simulate() {
 async function optimize() {
   const scenario = editorScenarioOr("Nothing sent: the JSON is not valid (see the editor).");
   if (scenario === null) return;
+  const text = editor().value;
   setBusy(true);
   state.progress = [];
   const goals = (scenario as { goals?: { max_imbalance_percent?: number } }).goals;
@@ -623,18 +689,28 @@ async function optimize() {
         }
         renderProgress();
       },
+      onStreamLost: () => health.suspect(),
     });
     $("run-panel").dataset.job = job.status;
     if (job.status === "done" && job.result) {
       state.shown = { kind: "optimization", result: job.result };
-      state.ranScenario = scenario as ScenarioForViews;
+      rememberRun(scenario, text);
+      checkStale();
       renderResults();
       const words = STATUS_WORDS[job.result.status] ?? job.result.status;
       $("run-state").textContent = `Optimization done: ${words}.`;
       say(`Optimization done: ${words}.`, "ok");
       showTab("results");
+    } else if (job.status === "cancelled" && job.result) {
+      // the job wrote the best design it had reached before it stopped
+      state.shown = { kind: "optimization", result: { ...job.result, status: "cancelled" } };
+      rememberRun(scenario, text);
+      checkStale();
+      renderResults();
+      $("run-state").textContent = "Optimization cancelled — best design so far shown.";
+      say("Optimization cancelled — the best design so far is on the Results tab.");
     } else if (job.status === "cancelled") {
-      $("run-state").textContent = "Optimization cancelled.";
+      $("run-state").textContent = "Optimization cancelled before it reached a design.";
       say("Optimization cancelled.");
     } else {
       const message = typeof job.error === "string"
@@ -689,6 +765,10 @@ function setupRun() {
   $("simulate").addEventListener("click", simulate);
   $("optimize").addEventListener("click", optimize);
   $("cancel").addEventListener("click", async () => {
+    if (state.simulating) {
+      state.simulating.abort();
+      return;
+    }
     if (!state.jobId) return;
     try {
       await api.cancelJob(state.jobId);
@@ -697,62 +777,91 @@ function setupRun() {
       report(error);
     }
   });
-  $("print").addEventListener("click", () => globalThis.print());
+  $("print").addEventListener("click", () => {
+    if (state.stale) {
+      say("The sheet is out of date: it prints marked so. Run again for a current sheet.", "error");
+    }
+    globalThis.print();
+  });
+  $("results-body").addEventListener("change", (e) => {
+    const input = e.target as HTMLInputElement;
+    if (input.id !== "hold-time") return;
+    const v = Number(input.value);
+    state.holdTime = input.value.trim() !== "" && Number.isFinite(v) && v > 0 ? v : null;
+    localStorage.setItem("evenfill.holdTime", state.holdTime === null ? "" : String(v));
+    renderResults();
+  });
 }
 
 // ---------- results ----------
 function renderResults() {
-  const shown = state.shown, scenario = state.ranScenario;
+  const shown = state.shown, scenario = state.ranScenario, ran = state.ran;
   const results = $("results-body");
   const sheet = $("sheet-body");
-  if (!shown || !scenario) {
+  if (!shown || !scenario || !ran) {
     results.innerHTML = `<p class="empty">No result yet: simulate or optimize on the Run tab.</p>`;
     sheet.innerHTML =
       `<p class="empty">The change sheet comes from an optimization: run one on the Run tab.</p>`;
     return;
   }
-  const ctx = { scenario, units: state.units };
+  const u = state.units;
+  const ctx = { scenario, units: u };
   const r = primary(shown);
   const opt = shown.kind === "optimization" ? shown.result : null;
   const changes = opt?.changes ?? [];
-  const layout = (id: string) =>
+  const layout = (id: string, print?: { maxWidthMm: number; maxHeightMm: number }) =>
     layoutSvg(scenario as unknown as Parameters<typeof layoutSvg>[0], {
-      lengthUnit: state.units.length,
+      lengthUnit: u.length,
       changes,
       id,
+      ...(print ? { print } : {}),
     });
-  const xMax = Math.max(
-    ...[opt?.before, r].flatMap((x) => (x?.history ?? []).map((h) => h.time_s ?? 0)),
-    0.001,
-  );
+  const xMax = chartEnd([opt?.before, r]);
   const ids = r.cavities.map((c) => `${c.id}${c.name ? ` ${c.name}` : ""}`);
-  results.innerHTML =
-    `<h2 class="run-title">${esc(scenario.name)} <small>${opt ? "optimization" : "simulation"}${
+  const sw = ran.switchoverPercent;
+  const kindWords = opt
+    ? opt.status === "cancelled" ? "optimization, cancelled — best design so far" : "optimization"
+    : "simulation";
+  results.dataset.stale = String(state.stale);
+  results.innerHTML = (state.stale ? staleBannerHtml("result") : "") +
+    `<h2 class="run-title">${esc(scenario.name)} <small>${esc(kindWords)}${
       r.material ? ` · ${esc(r.material.name)}` : ""
-    }</small></h2>` +
+    } · ${esc(ran.sourceLabel)}</small></h2>` +
     (opt ? verdictHtml(opt) : "") +
     summaryHtml(shown, ctx) +
     `<section class="block"><h3>Layout${opt ? " after the changes" : ""}</h3>${
       layout("results-layout")
-    }<p class="note">${esc(layoutKeyText(state.units.length))}</p></section>` +
-    `<section class="block"><h3>Fill history</h3>${seriesKeyHtml(ids)}<div class="charts">${
+    }<p class="note">${esc(layoutKeyText(u.length))}</p></section>` +
+    `<section class="block"><h3>Filling, up to switchover</h3>${
+      seriesKeyHtml(ids)
+    }<div class="charts">${
       opt
-        ? fillChartSvg(opt.before, { title: "Before", id: "fill-before", xMax }) +
-          fillChartSvg(opt.after, { title: "After", id: "fill-after", xMax })
-        : fillChartSvg(r, { title: "Cavity fill", id: "fill-result", xMax })
-    }</div></section>` +
-    `<section class="block">${cavityTableHtml(shown)}</section>` +
+        ? fillChartSvg(opt.before, {
+          title: "Before",
+          id: "fill-before",
+          xMax,
+          switchoverPercent: sw,
+        }) +
+          fillChartSvg(opt.after, { title: "After", id: "fill-after", xMax, switchoverPercent: sw })
+        : fillChartSvg(r, { title: "Cavity fill", id: "fill-result", xMax, switchoverPercent: sw })
+    }</div><p class="note">The charts end at switchover (${sw} % of the shot volume), where the press changes from filling at the set rate to holding pressure. A cavity still filling then ends at its fill % at switchover; the hold phase fills the rest.</p></section>` +
+    `<section class="block">${cavityTableHtml(shown, u)}</section>` +
     (opt
       ? `<section class="block"><h3>Change list</h3>${
-        changeTableHtml(changes, state.units, { id: "change-table" })
+        changeTableHtml(changes, u, { id: "change-table" })
       }</section>`
       : "") +
+    `<section class="block"><h3>Runners and gates</h3><p class="hold"><label for="hold-time">Hold time on the press, s</label> <input id="hold-time" type="number" min="0" step="any" inputmode="decimal" value="${
+      state.holdTime ?? ""
+    }"> <span class="muted small">not in the scenario: enter it to check each gate seals within it</span></p>${
+      elementTableHtml(r, u, ran.meltTemperature_C, { holdTime_s: state.holdTime })
+    }</section>` +
     `<section class="block"><h3>Pressure along each flow path</h3>${
       seriesKeyHtml(ids)
     }<div class="charts">${pathPressureSvg(shown, ctx)}</div></section>` +
     `<section class="block"><h3>Against the press</h3><div class="charts">${
       pressChartsSvg(shown, ctx)
-    }</div><p class="muted">Estimates: the press maker's limits and local safety practice come first.</p></section>` +
+    }</div><p class="muted">Filling only, to switchover: the peaks are the figures above. Estimates: the press maker's limits and local safety practice come first.</p></section>` +
     `<section class="block two"><div><h3>Warnings</h3>${
       warningsHtml(r)
     }</div><div><h3>Cautions</h3>${cautionsHtml(r)}</div></section>`;
@@ -760,17 +869,73 @@ function renderResults() {
     ? changeSheetHtml(opt, {
       toolName: scenario.name,
       date: new Date().toISOString().slice(0, 10),
-      layout: layout("sheet-layout") +
-        `<p class="note">${esc(layoutKeyText(state.units.length))}</p>`,
-      units: state.units,
-      scenarioLabel: `${sourceLabel()}; mode ${scenario.goals?.mode ?? "new_tool"}; material ${
+      layout: layout("sheet-layout", { maxWidthMm: 150, maxHeightMm: 118 }),
+      units: u,
+      scenarioLabel: `${ran.sourceLabel}; mode ${scenario.goals?.mode ?? "new_tool"}; material ${
         opt.after.material?.name ?? ""
       }`,
+      scenarioCode: ran.hash.slice(0, 8),
+      stale: state.stale,
+      switchoverPercent: sw,
     })
     : `<p class="empty">The change sheet comes from an optimization: run one on the Run tab.</p>`;
+  $<HTMLButtonElement>("print").textContent = state.stale
+    ? "Print (marked out of date)"
+    : "Print the change sheet";
+}
+
+// ---------- service health ----------
+const health = new HealthMonitor({
+  check: async () => {
+    try {
+      await api.health();
+      return true;
+    } catch {
+      return false;
+    }
+  },
+  onChange: showServiceState,
+});
+
+function showServiceState(now: ServiceState, before: ServiceState) {
+  const el = $("service-state");
+  document.body.dataset.service = now;
+  if (now === "down") {
+    el.hidden = false;
+    el.dataset.kind = "error";
+    el.textContent =
+      "The service is not answering (stopped or restarting?). What is on the page stays; checking, saving and running wait until it is back. Checking every 2 s.";
+    if (state.jobId) {
+      $("run-state").textContent =
+        "The service is not answering: the optimization's state is unknown until it is back.";
+      $("run-panel").dataset.job = "unknown";
+    }
+  } else if (now === "up" && before === "down") {
+    el.hidden = false;
+    el.dataset.kind = "ok";
+    el.textContent = "The service is back.";
+    if (document.body.dataset.ready !== "true") void loadStart();
+  }
 }
 
 // ---------- start ----------
+async function loadStart() {
+  try {
+    const about = await api.health();
+    $("version").textContent = about.version ? `service ${about.version}` : "";
+    await refreshLists();
+    if (state.source.kind === "none") {
+      const first = state.demos[0];
+      if (first) await openSource(`demo:${first.id}`);
+      $<HTMLSelectElement>("source").value = first ? `demo:${first.id}` : "";
+    }
+    document.body.dataset.ready = "true";
+  } catch (error) {
+    report(error);
+    document.body.dataset.ready = "error";
+  }
+}
+
 async function start() {
   setupTabs();
   setupUnits();
@@ -781,18 +946,9 @@ async function start() {
   setBusy(false);
   renderResults();
   renderProgress();
-  try {
-    const health = await api.health();
-    $("version").textContent = health.version ? `service ${health.version}` : "";
-    await refreshLists();
-    const first = state.demos[0];
-    if (first) await openSource(`demo:${first.id}`);
-    $<HTMLSelectElement>("source").value = first ? `demo:${first.id}` : "";
-    document.body.dataset.ready = "true";
-  } catch (error) {
-    report(error);
-    document.body.dataset.ready = "error";
-  }
+  onServiceUnreachable(() => health.suspect());
+  await loadStart();
+  void health.checkNow();
 }
 
 start();

@@ -4,13 +4,24 @@ import {
   forceFromKn,
   formatForce,
   formatLength,
+  formatMass,
   formatNumber,
   formatPressure,
+  formatTemperature,
+  formatTemperatureRise,
+  formatVolume,
   lengthFromMm,
+  METRIC_UNITS,
   pressureFromMpa,
   unitSymbol,
 } from "./display_units.ts";
-import type { CavityResult, ChangeEntry, OptimizationResult, SimulationResult } from "./wire.ts";
+import type {
+  CavityResult,
+  ChangeEntry,
+  HistorySample,
+  OptimizationResult,
+  SimulationResult,
+} from "./wire.ts";
 
 /**
  * The result views as HTML strings: summary, per-cavity table, change list,
@@ -32,6 +43,7 @@ export interface ScenarioForViews {
   name: string;
   machine: { max_injection_pressure_MPa: number; clamp_force_kN: number };
   goals?: { max_pressure_fraction?: number; max_imbalance_percent?: number; mode?: string };
+  process?: { switchover_percent?: number };
   feed: { node: string; length_mm: number };
   nodes: { id: string; x_mm: number; y_mm: number }[];
   runners?: { id: string; from: string; to: string; length_mm?: number }[];
@@ -63,6 +75,57 @@ function cell(
   }">${esc(text)}</td>`;
 }
 
+/** A table in its own horizontal scroll box, so a narrow screen never scrolls the page. */
+export function scrollBox(table: string): string {
+  return `<div class="table-scroll" tabindex="0">${table}</div>`;
+}
+
+/**
+ * The fill history of the velocity phase: the samples up to switchover, ending exactly on it
+ * (interpolated linearly between the two samples around it when none falls on it). The
+ * simulation carries on past switchover at the set flow rate, which the press does not do;
+ * the page draws only this part. Without a switchover time, the whole history.
+ */
+export function velocityPhase(result: SimulationResult): HistorySample[] {
+  const history = result.history ?? [];
+  const sw = result.switchover_time_s;
+  if (sw === null || sw === undefined || !Number.isFinite(sw)) return history;
+  const out: HistorySample[] = [];
+  for (let k = 0; k < history.length; k++) {
+    const h = history[k];
+    const t = h.time_s ?? NaN;
+    if (t <= sw * (1 + 1e-9)) {
+      out.push(h);
+      continue;
+    }
+    const prev = out[out.length - 1];
+    const t0 = prev?.time_s ?? NaN;
+    if (prev && Number.isFinite(t0) && t0 < sw * (1 - 1e-9) && t > t0) {
+      const w = (sw - t0) / (t - t0);
+      const mix = (a: number | null | undefined, b: number | null | undefined) =>
+        a === null || a === undefined || b === null || b === undefined ? null : a + (b - a) * w;
+      out.push({
+        time_s: sw,
+        injected_cm3: mix(prev.injected_cm3, h.injected_cm3),
+        feed_pressure_MPa: mix(prev.feed_pressure_MPa, h.feed_pressure_MPa),
+        clamp_force_kN: mix(prev.clamp_force_kN, h.clamp_force_kN),
+        cavity_fill_percent: h.cavity_fill_percent.map((f, i) =>
+          mix(prev.cavity_fill_percent[i], f)
+        ),
+      });
+    }
+    break;
+  }
+  return out;
+}
+
+/** True when a cavity fills only after switchover (its fill time is the model's continuation). */
+export function fillsAfterSwitchover(c: CavityResult, result: SimulationResult): boolean {
+  const sw = result.switchover_time_s;
+  return typeof sw === "number" && typeof c.fill_time_s === "number" &&
+    c.fill_time_s > sw * (1 + 1e-9);
+}
+
 /** Headline numbers: imbalance, pressure vs press, clamp vs press, runner share. */
 export function summaryHtml(shown: Shown, ctx: RunContext): string {
   const r = primary(shown);
@@ -70,18 +133,20 @@ export function summaryHtml(shown: Shown, ctx: RunContext): string {
   const u = ctx.units;
   const m = ctx.scenario.machine;
   const target = ctx.scenario.goals?.max_imbalance_percent;
+  const swPercent = ctx.scenario.process?.switchover_percent ?? 98;
   const item = (
     key: string,
     label: string,
     value: string,
     before: string | null,
     note: string,
-    raw: number | null,
+    raw: number | null | undefined,
   ) =>
     `<div class="figure" data-figure="${key}" data-value="${raw ?? ""}"><dt>${esc(label)}</dt><dd>${
       before !== null ? `<span class="before">${esc(before)} →</span> ` : ""
     }<strong>${esc(value)}</strong><small>${esc(note)}</small></dd></div>`;
   const pct = (v: number | null | undefined) => `${num(v, 3)} %`;
+  const late = r.cavities.filter((c) => fillsAfterSwitchover(c, r));
   return `<dl class="figures">` +
     item(
       "imbalance",
@@ -93,7 +158,7 @@ export function summaryHtml(shown: Shown, ctx: RunContext): string {
     ) +
     item(
       "pressure",
-      "Peak injection pressure",
+      "Peak injection pressure (at switchover)",
       formatPressure(r.feed_pressure_peak_MPa, u),
       b ? formatPressure(b.feed_pressure_peak_MPa, u) : null,
       `press limit ${formatPressure(m.max_injection_pressure_MPa, u)} (${
@@ -103,7 +168,7 @@ export function summaryHtml(shown: Shown, ctx: RunContext): string {
     ) +
     item(
       "clamp",
-      "Peak clamp force",
+      "Peak clamp force (at switchover)",
       formatForce(r.clamp_force_peak_kN, u),
       b ? formatForce(b.clamp_force_peak_kN, u) : null,
       `press rating ${formatForce(m.clamp_force_kN, u)} (${num(r.clamp_share_percent, 3)} % used)`,
@@ -112,56 +177,71 @@ export function summaryHtml(shown: Shown, ctx: RunContext): string {
     item(
       "runner",
       "Cold runner per shot",
-      `${num(r.runner_mass_g, 3)} g`,
-      b ? `${num(b.runner_mass_g, 3)} g` : null,
-      `${num(r.runner_volume_cm3, 3)} cm³, ${num(r.runner_share_percent, 3)} % of the ${
-        num(r.shot_mass_g, 4)
-      } g shot`,
+      formatMass(r.runner_mass_g, u),
+      b ? formatMass(b.runner_mass_g, u) : null,
+      `${formatVolume(r.runner_volume_cm3, u)}, ${num(r.runner_share_percent, 3)} % of the ${
+        formatMass(r.shot_mass_g, u, 4)
+      } shot`,
       r.runner_mass_g,
     ) +
     item(
+      "switchover",
+      `Switchover (${swPercent} % of the shot)`,
+      `${num(r.switchover_time_s, 3)} s`,
+      b ? `${num(b.switchover_time_s, 3)} s` : null,
+      late.length
+        ? `${
+          late.map((c) => `${c.id} ${num(c.fill_percent_at_switchover, 3)} %`).join(", ")
+        } full then; the hold phase finishes ${late.length === 1 ? "it" : "them"}`
+        : "every cavity full by then",
+      r.switchover_time_s,
+    ) +
+    item(
       "fill-time",
-      "Fill time",
+      "Fill time (set rate held to the end)",
       `${num(r.fill_time_s, 3)} s`,
       b ? `${num(b.fill_time_s, 3)} s` : null,
-      r.freeze?.part_cooling_time_s
-        ? `part cooling ≈ ${num(r.freeze.part_cooling_time_s, 3)} s`
-        : "",
+      (late.length ? "past switchover: a model figure for balance, not a press time. " : "") +
+        (r.freeze?.part_cooling_time_s
+          ? `Part cooling ≈ ${num(r.freeze.part_cooling_time_s, 3)} s`
+          : ""),
       r.fill_time_s,
     ) +
     `</dl>`;
 }
 
 /** The per-cavity table; with an optimization, before and after side by side. */
-export function cavityTableHtml(shown: Shown): string {
+export function cavityTableHtml(shown: Shown, units: DisplayUnits = METRIC_UNITS): string {
   const after = primary(shown);
   const before = shown.kind === "optimization" ? shown.result.before : null;
   const beforeById = new Map((before?.cavities ?? []).map((c) => [c.id, c]));
   const which = before ? ["before", "after"] as const : ["result"] as const;
   const head2 = (label: string) =>
     before ? `<th scope="colgroup" colspan="2">${label}</th>` : `<th scope="col">${label}</th>`;
+  const columns = ["fill time", "fill % at switchover", "fill % first full", "gate shear", "mass"];
   const sub = before
     ? `<tr class="sub">${
-      ["fill time", "fill %", "gate shear", "mass"].map(() =>
-        `<th scope="col">before</th><th scope="col">after</th>`
-      ).join("")
+      columns.map(() => `<th scope="col">before</th><th scope="col">after</th>`).join("")
     }</tr>`
     : "";
+  let anyLate = false;
   const rows = after.cavities.map((c) => {
     const bc = beforeById.get(c.id);
+    const resultOf = (w: string) => w === "before" ? before! : after;
     const pair = (
       field: keyof CavityResult,
-      text: (x: CavityResult) => string,
-      cls?: (x: CavityResult) => string,
+      text: (x: CavityResult, r: SimulationResult) => string,
+      cls?: (x: CavityResult, r: SimulationResult) => string,
     ) =>
       which.map((w) => {
         const x = w === "before" ? bc : c;
         if (!x) return "<td>–</td>";
-        return cell(x[field] as number | null, text(x), {
+        const r = resultOf(w);
+        return cell(x[field] as number | null, text(x, r), {
           cavity: c.id,
           field: String(field),
           which: w,
-        }, cls ? cls(x) : "");
+        }, cls ? cls(x, r) : "");
       }).join("");
     const shear = (x: CavityResult) => {
       const ratio = x.gate_shear_rate_peak_1_s !== null && x.gate_shear_limit_1_s
@@ -176,47 +256,88 @@ export function cavityTableHtml(shown: Shown): string {
         x.gate_shear_rate_peak_1_s > x.gate_shear_limit_1_s
         ? "over"
         : "";
+    const late = (x: CavityResult, r: SimulationResult) => {
+      const isLate = fillsAfterSwitchover(x, r);
+      anyLate ||= isLate;
+      return isLate ? "late" : "";
+    };
     return `<tr data-cavity="${esc(c.id)}"><th scope="row">${esc(c.id)}${
       c.name ? ` <span class="muted">${esc(c.name)}</span>` : ""
     }</th>` +
-      pair("fill_time_s", (x) => num(x.fill_time_s, 4)) +
+      pair("fill_time_s", (x) => num(x.fill_time_s, 4), late) +
+      pair("fill_percent_at_switchover", (x) => num(x.fill_percent_at_switchover, 4)) +
       pair("fill_percent_at_first_full", (x) => num(x.fill_percent_at_first_full, 4)) +
       pair("gate_shear_rate_peak_1_s", shear, over) +
-      pair("mass_g", (x) => num(x.mass_g, 4)) +
+      pair("mass_g", (x) => formatMass(x.mass_g, units, 4)) +
       `<td class="num">${num(c.gate_shear_limit_1_s, 3)}</td></tr>`;
   }).join("");
-  return `<table class="data cavities" id="cavity-table"><caption>Per cavity${
-    before ? ": before → after" : ""
-  }</caption><thead><tr><th scope="col" rowspan="${before ? 2 : 1}">cavity</th>${
-    head2("fill time, s")
-  }${head2("fill % when the first is full")}${head2("gate shear peak, 1/s (share of limit)")}${
-    head2("part mass, g")
-  }<th scope="col" rowspan="${
-    before ? 2 : 1
-  }">gate shear limit, 1/s</th></tr>${sub}</thead><tbody>${rows}</tbody></table>` +
-    `<p class="note">Shear over the resin's limit is marked <span class="over-key">▲ over</span>.</p>`;
+  return scrollBox(
+    `<table class="data cavities" id="cavity-table"><caption>Per cavity${
+      before ? ": before → after" : ""
+    }</caption><thead><tr><th scope="col" rowspan="${before ? 2 : 1}">cavity</th>${
+      head2("fill time, s")
+    }${head2("fill % at switchover")}${head2("fill % when the first is full")}${
+      head2("gate shear peak, 1/s (share of limit)")
+    }${head2("part mass")}<th scope="col" rowspan="${
+      before ? 2 : 1
+    }">gate shear limit, 1/s</th></tr>${sub}</thead><tbody>${rows}</tbody></table>`,
+  ) +
+    `<p class="note">Shear over the resin's limit is marked <span class="over-key">▲ over</span>.${
+      anyLate
+        ? ` <span class="late-key">‡</span> fills after switchover: the time assumes the set flow rate held on, which the press does not do; the hold phase fills the rest.`
+        : ""
+    }</p>`;
 }
 
-/** Text of a change's size in the chosen unit, with the other unit beside (toolroom habit). */
+/** Text of a change's size in the chosen unit, the other beside; each rounded once from mm. */
 export function changeSizeText(c: ChangeEntry, side: "from" | "to", units: DisplayUnits): string {
   const mm = side === "from" ? c.from_mm : c.to_mm;
-  const inch = side === "from" ? c.from_in : c.to_in;
   return units.length === "mm"
-    ? `${formatLength(mm, "mm")} mm (${inch.toFixed(4)} in)`
-    : `${inch.toFixed(4)} in (${formatLength(mm, "mm")} mm)`;
+    ? `${formatLength(mm, "mm")} mm (${formatLength(mm, "in")} in)`
+    : `${formatLength(mm, "in")} in (${formatLength(mm, "mm")} mm)`;
 }
 
-/** The ordered change list with before/after in mm and inch, cutter and the effect of each step. */
+const STEEL_WORDS = (c: ChangeEntry) =>
+  c.steel_safe ? "enlarge (steel-safe)" : "<strong>ADD STEEL</strong> (weld or insert)";
+
+/**
+ * The ordered change list. On Results: every column, in its own scroll box. On the sheet
+ * (`sheet: true`): the toolmaker's columns only (step, element, before → after, cutter, mold
+ * half and steel, imbalance after the step, a tick box), narrow enough for one printed page.
+ */
 export function changeTableHtml(
   changes: ChangeEntry[],
   units: DisplayUnits,
   options: { id?: string; sheet?: boolean } = {},
 ): string {
-  const caption = options.sheet
-    ? ""
-    : `<caption>Changes in order of work (each step simulated with every step before it)</caption>`;
-  if (changes.length === 0) {
-    return `<p class="empty" id="${esc(options.id ?? "change-table")}">No change proposed.</p>`;
+  const id = esc(options.id ?? "change-table");
+  if (changes.length === 0) return `<p class="empty" id="${id}">No change proposed.</p>`;
+  const sizes = (c: ChangeEntry) =>
+    `<td class="num" data-field="from" data-mm="${c.from_mm}">${
+      esc(changeSizeText(c, "from", units))
+    }</td>` +
+    `<td class="num" data-field="to" data-mm="${c.to_mm}"><strong>${
+      esc(changeSizeText(c, "to", units))
+    }</strong></td>`;
+  if (options.sheet) {
+    const rows = changes.map((c) =>
+      `<tr data-step="${c.step}" data-element="${esc(c.element)}">` +
+      `<td class="num step">${c.step}</td>` +
+      `<th scope="row">${esc(c.element)} <span class="muted">${esc(c.kind)} ${
+        esc(c.dimension)
+      }</span></th>` + sizes(c) +
+      `<td data-field="cutter">${esc(c.cutter)}</td>` +
+      `<td data-field="steel">${esc(c.mold_half)}; ${STEEL_WORDS(c)}</td>` +
+      `<td class="num" data-field="imbalance" data-value="${c.after_step.imbalance_percent}">${
+        num(c.after_step.imbalance_percent, 3)
+      } %${c.after_step.limits_met ? "" : " (limits not met yet)"}</td>` +
+      `<td class="tick-box" aria-label="done">☐</td></tr>`
+    ).join("");
+    return `<table class="data changes sheet-steps" id="${id}"><thead><tr>` +
+      `<th scope="col">step</th><th scope="col">element</th><th scope="col">before</th>` +
+      `<th scope="col">cut to</th><th scope="col">cutter</th><th scope="col">half; steel</th>` +
+      `<th scope="col">imbalance after</th><th scope="col">done</th>` +
+      `</tr></thead><tbody>${rows}</tbody></table>`;
   }
   const rows = changes.map((c) => {
     const t = c.after_step;
@@ -224,17 +345,9 @@ export function changeTableHtml(
       `<td class="num step">${c.step}</td>` +
       `<th scope="row">${esc(c.element)}</th>` +
       `<td>${esc(c.kind)}, ${esc(c.section)}</td>` +
-      `<td>${esc(c.dimension)}</td>` +
-      `<td class="num" data-field="from" data-mm="${c.from_mm}" data-in="${c.from_in}">${
-        esc(changeSizeText(c, "from", units))
-      }</td>` +
-      `<td class="num" data-field="to" data-mm="${c.to_mm}" data-in="${c.to_in}"><strong>${
-        esc(changeSizeText(c, "to", units))
-      }</strong></td>` +
+      `<td>${esc(c.dimension)}</td>` + sizes(c) +
       `<td data-field="cutter">${esc(c.cutter)}</td>` +
-      `<td data-field="steel">${
-        c.steel_safe ? "enlarge (steel-safe)" : "<strong>ADD STEEL</strong> (weld or insert)"
-      }</td>` +
+      `<td data-field="steel">${STEEL_WORDS(c)}</td>` +
       `<td>${esc(c.mold_half)}</td>` +
       `<td class="num" data-field="imbalance" data-value="${t.imbalance_percent}">${
         num(t.imbalance_percent, 3)
@@ -243,29 +356,48 @@ export function changeTableHtml(
         esc(formatPressure(t.feed_pressure_peak_MPa, units))
       }</td>` +
       `<td class="num" data-field="runner" data-value="${t.runner_volume_cm3}">${
-        num(t.runner_volume_cm3, 3)
+        esc(formatVolume(t.runner_volume_cm3, units))
       }</td>` +
       `<td>${t.limits_met ? "yes" : "no"}</td>` +
-      (options.sheet ? `<td class="tick-box" aria-label="done">☐</td>` : "") +
       `</tr>`;
   }).join("");
-  return `<table class="data changes" id="${esc(options.id ?? "change-table")}">` + caption +
-    `<thead><tr><th scope="col">step</th><th scope="col">element</th><th scope="col">what</th>` +
-    `<th scope="col">size</th><th scope="col">before</th><th scope="col">after</th>` +
-    `<th scope="col">cutter</th><th scope="col">steel</th><th scope="col">mold half</th>` +
-    `<th scope="col">imbalance after</th><th scope="col">peak pressure after</th>` +
-    `<th scope="col">runner after, cm³</th><th scope="col">limits met</th>` +
-    (options.sheet ? `<th scope="col">done</th>` : "") +
-    `</tr></thead><tbody>${rows}</tbody></table>`;
+  return scrollBox(
+    `<table class="data changes" id="${id}">` +
+      `<caption>Changes in order of work (each step simulated with every step before it)</caption>` +
+      `<thead><tr><th scope="col">step</th><th scope="col">element</th><th scope="col">what</th>` +
+      `<th scope="col">size</th><th scope="col">before</th><th scope="col">after</th>` +
+      `<th scope="col">cutter</th><th scope="col">steel</th><th scope="col">mold half</th>` +
+      `<th scope="col">imbalance after</th><th scope="col">peak pressure after</th>` +
+      `<th scope="col">runner after</th><th scope="col">limits met</th>` +
+      `</tr></thead><tbody>${rows}</tbody></table>`,
+  );
 }
 
-/** Fill % vs time for every cavity of one result, as SVG. */
+/** The x extent (s) the fill and press charts share: up to the later switchover. */
+export function chartEnd(results: (SimulationResult | null | undefined)[]): number {
+  const ends = results.flatMap((r) => {
+    const phase = r ? velocityPhase(r) : [];
+    return phase.length ? [phase[phase.length - 1].time_s ?? 0] : [];
+  });
+  return Math.max(...ends, 0.001);
+}
+
+/**
+ * Fill % vs time for every cavity of one result, as SVG, over the velocity phase: each line
+ * ends where its cavity is full or at switchover, whichever comes first. Switchover is a
+ * marked vertical; a cavity still filling then is labelled with its fill % at switchover.
+ */
 export function fillChartSvg(
   result: SimulationResult,
-  options: { title: string; id?: string; xMax?: number; width?: number },
+  options: {
+    title: string;
+    id?: string;
+    xMax?: number;
+    width?: number;
+    switchoverPercent?: number;
+  },
 ): string {
-  const history = result.history ?? [];
-  // each line ends where its cavity is full, so the marker shows the fill moment
+  const history = velocityPhase(result);
   const series: ChartSeries[] = result.cavities.map((c, k) => {
     const points: [number, number][] = [];
     for (const h of history) {
@@ -273,13 +405,28 @@ export function fillChartSvg(
       points.push([h.time_s ?? NaN, fill]);
       if (fill >= 100) break;
     }
-    return { label: c.id, style: k, points };
+    const last = points[points.length - 1]?.[1] ?? NaN;
+    const label = last < 100 - 1e-6 && Number.isFinite(last)
+      ? `${c.id} ${num(c.fill_percent_at_switchover ?? last, 3)} %`
+      : c.id;
+    return { label, style: k, points };
   });
   const firstFull = Math.min(
     ...result.cavities.map((c) => c.fill_time_s ?? Infinity),
   );
+  const sw = result.switchover_time_s;
+  const verticals: NonNullable<Parameters<typeof lineChart>[1]["verticals"]> = [];
+  if (Number.isFinite(firstFull)) verticals.push({ x: firstFull, label: "first full" });
+  if (typeof sw === "number") {
+    verticals.push({
+      x: sw,
+      label: `switchover${options.switchoverPercent ? ` (${options.switchoverPercent} %)` : ""}`,
+      at: "top",
+      mark: "switchover",
+    });
+  }
   return lineChart(series, {
-    verticals: Number.isFinite(firstFull) ? [{ x: firstFull, label: "first full" }] : [],
+    verticals,
     title: options.title,
     xLabel: "time, s",
     yLabel: "cavity fill, %",
@@ -288,7 +435,7 @@ export function fillChartSvg(
     width: options.width ?? 460,
     height: 270,
     ...(options.id ? { id: options.id } : {}),
-  });
+  }).replace(/^<svg /, `<svg data-switchover="${sw ?? ""}" `);
 }
 
 /**
@@ -350,19 +497,21 @@ export function pathPressureSvg(shown: Shown, ctx: RunContext): string {
   });
 }
 
-/** Feed pressure and clamp force vs time against the press, as two SVG charts. */
+/**
+ * Feed pressure and clamp force vs time against the press, as two SVG charts, over the
+ * velocity phase (to switchover, marked): their highest points are the headline peaks.
+ */
 export function pressChartsSvg(shown: Shown, ctx: RunContext): string {
   const u = ctx.units;
   const after = primary(shown);
   const before = shown.kind === "optimization" ? shown.result.before : null;
   const m = ctx.scenario.machine;
   const frac = ctx.scenario.goals?.max_pressure_fraction ?? 0.8;
-  const hist = (
-    r: SimulationResult,
-    f: (h: NonNullable<SimulationResult["history"]>[number]) => number,
-  ) => (r.history ?? []).map((h) => [h.time_s ?? NaN, f(h)] as [number, number]);
-  const p = (v: number | null) => pressureFromMpa(v ?? NaN, u.pressure);
-  const k = (v: number | null) => forceFromKn(v ?? NaN, u.force);
+  const swPercent = ctx.scenario.process?.switchover_percent;
+  const hist = (r: SimulationResult, f: (h: HistorySample) => number) =>
+    velocityPhase(r).map((h) => [h.time_s ?? NaN, f(h)] as [number, number]);
+  const p = (v: number | null | undefined) => pressureFromMpa(v ?? NaN, u.pressure);
+  const k = (v: number | null | undefined) => forceFromKn(v ?? NaN, u.force);
   const pSeries: ChartSeries[] = [];
   const kSeries: ChartSeries[] = [];
   if (before) {
@@ -380,7 +529,7 @@ export function pressChartsSvg(shown: Shown, ctx: RunContext): string {
     });
   }
   pSeries.push({
-    label: before ? "after" : "feed",
+    label: before ? "after" : "nozzle",
     style: 0,
     points: hist(after, (h) => p(h.feed_pressure_MPa)),
   });
@@ -389,11 +538,24 @@ export function pressChartsSvg(shown: Shown, ctx: RunContext): string {
     style: 1,
     points: hist(after, (h) => k(h.clamp_force_kN)),
   });
+  const xMax = chartEnd([before, after]);
+  const verticals = [before, after].flatMap((r) =>
+    typeof r?.switchover_time_s === "number"
+      ? [{
+        x: r.switchover_time_s,
+        label: r === before ? "" : `switchover${swPercent ? ` (${swPercent} %)` : ""}`,
+        at: "top" as const,
+        mark: "switchover",
+      }]
+      : []
+  );
   const pressure = lineChart(pSeries, {
     labelFaint: true,
-    title: "Injection pressure at the nozzle",
+    title: "Injection pressure at the nozzle, filling",
     xLabel: "time, s",
     yLabel: `pressure, ${unitSymbol(u, "pressure")}`,
+    xDomain: [0, xMax],
+    verticals,
     rules: [
       { y: p(m.max_injection_pressure_MPa), label: "press limit" },
       { y: p(m.max_injection_pressure_MPa * frac), label: `target ${Math.round(frac * 100)} %` },
@@ -404,15 +566,98 @@ export function pressChartsSvg(shown: Shown, ctx: RunContext): string {
   });
   const clamp = lineChart(kSeries, {
     labelFaint: true,
-    title: "Clamp force (cavities + runner)",
+    title: "Clamp force (cavities + runner), filling",
     xLabel: "time, s",
     yLabel: `force, ${unitSymbol(u, "force")}`,
+    xDomain: [0, xMax],
+    verticals,
     rules: [{ y: k(m.clamp_force_kN), label: "press rating" }],
     width: 420,
     height: 260,
     id: "clamp-chart",
   });
   return pressure + clamp;
+}
+
+/** Options of {@link elementTableHtml}. */
+export interface ElementTableOptions {
+  /** The press's hold (pack) time, s, to compare gate freeze times with; none: not compared. */
+  holdTime_s?: number | null;
+}
+
+/**
+ * Every sprue, runner and gate: pressure drop, wall shear, melt temperature rise over the
+ * injection temperature, frozen layer at the end of filling (switchover) and freeze time.
+ * A gate that stays open past the hold time is flagged (melt can flow back out of the part).
+ */
+export function elementTableHtml(
+  result: SimulationResult,
+  units: DisplayUnits,
+  meltTemperature_C: number | null,
+  options: ElementTableOptions = {},
+): string {
+  const freeze = new Map((result.freeze?.entries ?? []).map((f) => [f.id, f]));
+  const hold = options.holdTime_s ?? null;
+  const rows = result.elements.filter((e) => e.kind !== "cavity").map((e) => {
+    const f = freeze.get(e.id);
+    const rise = meltTemperature_C !== null && typeof e.melt_temperature_end_C === "number"
+      ? e.melt_temperature_end_C - meltTemperature_C
+      : null;
+    const freezeTime = f?.freeze_time_s ?? null;
+    const gateOpen = e.kind === "gate" && hold !== null && freezeTime !== null &&
+      freezeTime > hold;
+    const gateShut = e.kind === "gate" && hold !== null && freezeTime !== null &&
+      freezeTime <= hold;
+    return `<tr data-element="${esc(e.id)}" data-kind="${esc(e.kind)}">` +
+      `<th scope="row">${esc(e.id)} <span class="muted">${esc(kindWord(e.kind))}</span></th>` +
+      cell(e.pressure_drop_end_MPa, formatPressure(e.pressure_drop_end_MPa, units), {
+        field: "pressure_drop_end_MPa",
+      }) +
+      cell(e.wall_shear_rate_peak_1_s, num(e.wall_shear_rate_peak_1_s, 3), {
+        field: "wall_shear_rate_peak_1_s",
+      }) +
+      cell(
+        rise,
+        `${formatTemperatureRise(rise, units)}${
+          typeof e.melt_temperature_end_C === "number"
+            ? ` (${formatTemperature(e.melt_temperature_end_C, units)})`
+            : ""
+        }`,
+        { field: "melt_temperature_rise" },
+      ) +
+      cell(
+        e.frozen_layer_end_mm,
+        `${formatLength(e.frozen_layer_end_mm, units.length)} ${unitSymbol(units, "length")}${
+          e.frozen_shut ? " — frozen shut" : ""
+        }`,
+        { field: "frozen_layer_end_mm" },
+        e.frozen_shut ? "over" : "",
+      ) +
+      cell(
+        freezeTime,
+        `${num(freezeTime, 3)} s${
+          gateOpen ? " — still open when the hold ends" : gateShut ? " — seals within the hold" : ""
+        }`,
+        { field: "freeze_time_s" },
+        gateOpen ? "over" : "",
+      ) +
+      `</tr>`;
+  }).join("");
+  return scrollBox(
+    `<table class="data elements" id="element-table"><caption>Per runner and gate${
+      hold !== null ? ` (hold time ${num(hold, 3)} s)` : ""
+    }</caption><thead><tr><th scope="col">element</th><th scope="col">pressure drop at switchover</th>` +
+      `<th scope="col">wall shear peak, 1/s</th><th scope="col">melt heating (leaving it)</th>` +
+      `<th scope="col">frozen layer at switchover</th><th scope="col">freeze time</th>` +
+      `</tr></thead><tbody>${rows}</tbody></table>`,
+  ) +
+    `<p class="note">Heating is the adiabatic upper bound; a gate should seal within the hold time, or melt can flow back out of the part (a check of the times, not of the packing).</p>`;
+}
+
+function kindWord(kind: string): string {
+  return ({ feed: "sprue / drop", runner: "runner", gate: "gate" } as Record<string, string>)[
+    kind
+  ] ?? kind;
 }
 
 /** Warnings (from the result) in plain words; nothing is hidden. */
@@ -437,7 +682,16 @@ export const STATUS_WORDS: Record<string, string> = {
   converged: "Goals met",
   infeasible: "Goals not reachable within the limits",
   iteration_limit: "Stopped at the iteration limit",
-  cancelled: "Cancelled",
+  cancelled: "Cancelled — best design so far",
+};
+
+/** What each status means for the shop, in a sentence. */
+const STATUS_MEANING: Record<string, string> = {
+  converged: "These sizes meet every goal set on the Scenario tab.",
+  infeasible: "No sizes inside the limits meet every goal; these are the closest the search found.",
+  iteration_limit:
+    "The search used all its rounds; these are the best sizes it found, not a proven best.",
+  cancelled: "The search was stopped before it finished; these are the best sizes it had reached.",
 };
 
 const SLOPE_WORDS: Record<string, string> = {
@@ -445,22 +699,29 @@ const SLOPE_WORDS: Record<string, string> = {
   finite_difference: "by finite differences (one simulation per size)",
 };
 
-/** The optimizer's verdict: status, why it stopped, what would be needed, snapping, cost. */
+/**
+ * The optimizer's verdict in plain words; its own account (why it stopped, cutter snapping,
+ * how many simulations, where its slopes came from) sits behind an "advanced" fold.
+ */
 export function verdictHtml(opt: OptimizationResult): string {
+  const internals = [
+    `<p>${esc(opt.reason)}</p>`,
+    opt.snapping ? `<p>Cutters: ${esc(opt.snapping)}</p>` : "",
+    opt.simulations !== undefined
+      ? `<p>${opt.simulations} fill simulations${
+        opt.slopes ? `; slopes ${SLOPE_WORDS[opt.slopes] ?? esc(opt.slopes)}` : ""
+      }.</p>`
+      : "",
+  ].join("");
   return `<div class="verdict" data-status="${esc(opt.status)}"><p><strong>${
     esc(STATUS_WORDS[opt.status] ?? opt.status)
-  }</strong> — ${esc(opt.reason)}</p>` +
+  }</strong> — ${esc(STATUS_MEANING[opt.status] ?? "")}</p>` +
     (opt.would_need.length
-      ? `<p>What would make it reachable (a linear estimate, confirm by simulation):</p><ul>${
+      ? `<p>What would make it reachable (a first estimate; simulate to confirm):</p><ul>${
         opt.would_need.map((w) => `<li>${esc(w)}</li>`).join("")
       }</ul>`
       : "") +
-    (opt.snapping ? `<p class="muted">Cutters: ${esc(opt.snapping)}</p>` : "") +
-    (opt.simulations !== undefined
-      ? `<p class="muted">${opt.simulations} fill simulations${
-        opt.slopes ? `; slopes ${SLOPE_WORDS[opt.slopes] ?? esc(opt.slopes)}` : ""
-      }.</p>`
-      : "") +
+    `<details class="advanced"><summary>Advanced: the optimizer's own account</summary>${internals}</details>` +
     `</div>`;
 }
 
@@ -484,9 +745,26 @@ export interface ChangeSheetOptions {
   layout: string;
   units: DisplayUnits;
   scenarioLabel?: string;
+  /** Short check code of the scenario the result came from (printed in the revision block). */
+  scenarioCode?: string;
+  /** The scenario has changed since: the sheet says "out of date — run again" on every print. */
+  stale?: boolean;
+  /** Switchover, % of the shot (for the "at switchover" wording). */
+  switchoverPercent?: number;
 }
 
-/** The printable change sheet for the toolmaker. */
+/** The stale banner of Results and the sheet. */
+export function staleBannerHtml(what: string): string {
+  return `<p class="stale-banner" role="alert" data-stale="true"><strong>Out of date — run again.</strong> The scenario in the editor has changed since this ${
+    esc(what)
+  } was made; its numbers belong to the earlier scenario.</p>`;
+}
+
+/**
+ * The printable change sheet for the toolmaker: on one A4 or Letter page (landscape) for up
+ * to 12 steps: revision block, layout drawing to a printed scale, ordered steps, predicted
+ * effect, cautions and sign-off together.
+ */
 export function changeSheetHtml(opt: OptimizationResult, options: ChangeSheetOptions): string {
   const b = opt.before, a = opt.after;
   const u = options.units;
@@ -494,38 +772,57 @@ export function changeSheetHtml(opt: OptimizationResult, options: ChangeSheetOpt
     `<tr><th scope="row">${esc(label)}</th><td class="num">${esc(x)}</td><td class="num">${
       esc(y)
     }</td></tr>`;
-  return `<article class="sheet" id="sheet">` +
-    `<header class="sheet-head"><div><p class="kicker">evenfill · change sheet</p><h2>${
+  const fill = (label: string, value = "") =>
+    `<tr><th scope="row">${esc(label)}</th><td${value ? "" : ' class="fill-in"'}>${
+      esc(value)
+    }</td></tr>`;
+  const at = options.switchoverPercent ? ` (at switchover, ${options.switchoverPercent} %)` : "";
+  return `<article class="sheet${options.stale ? " stale" : ""}" id="sheet" data-stale="${
+    options.stale ? "true" : "false"
+  }">` +
+    (options.stale ? staleBannerHtml("change sheet") : "") +
+    `<header class="sheet-head"><div class="sheet-title"><p class="kicker">evenfill · change sheet</p><h2>${
       esc(options.toolName)
     }</h2>${
       options.scenarioLabel ? `<p class="muted">${esc(options.scenarioLabel)}</p>` : ""
-    }</div><dl><dt>Date</dt><dd id="sheet-date">${esc(options.date)}</dd><dt>Status</dt><dd>${
-      esc(opt.status)
-    }</dd><dt>Units</dt><dd>${u.length === "mm" ? "mm (inch beside)" : "inch (mm beside)"}, ${
-      esc(unitSymbol(u, "pressure"))
-    }</dd></dl></header>` +
-    `<section class="sheet-layout"><h3>Layout (after; changed elements dashed, with their step)</h3>${options.layout}</section>` +
-    `<section><h3>Changes in order of work</h3><p class="muted">Each step was simulated with every step before it. Cut one step, shoot and weigh short shots, compare with the predicted effect, then decide on the next.</p>${
+    }<p class="sheet-status"><strong>${esc(STATUS_WORDS[opt.status] ?? opt.status)}</strong> — ${
+      esc(STATUS_MEANING[opt.status] ?? "")
+    }</p></div>` +
+    `<table class="rev-block" aria-label="Tool, press, resin lot and revision">` +
+    fill("Tool no.") + fill("Press") + fill("Resin lot") + fill("Revision") +
+    fill("Date", options.date).replace("<td>", '<td id="sheet-date">') +
+    (options.scenarioCode ? fill("Scenario check", options.scenarioCode) : "") +
+    fill(
+      "Units",
+      `${u.length === "mm" ? "mm (inch beside)" : "inch (mm beside)"}, ${
+        unitSymbol(u, "pressure")
+      }`,
+    ) +
+    `</table></header>` +
+    `<div class="sheet-grid">` +
+    `<section class="sheet-layout"><h3>Layout after the changes</h3>${options.layout}</section>` +
+    `<div class="sheet-side">` +
+    `<section class="sheet-steps"><h3>Steps in order of work</h3><p class="muted small">Cut one step, shoot and weigh short shots, compare with the predicted imbalance, then decide on the next. Each step was simulated with every step before it.</p>${
       changeTableHtml(opt.changes, u, { id: "sheet-changes", sheet: true })
     }</section>` +
     `<section class="sheet-effect"><h3>Predicted effect</h3><table class="data compact"><thead><tr><th></th><th scope="col">before</th><th scope="col">after all steps</th></tr></thead><tbody>` +
     row("fill-time imbalance", `${num(b.imbalance_percent)} %`, `${num(a.imbalance_percent)} %`) +
     row(
-      "peak injection pressure",
+      `peak injection pressure${at}`,
       formatPressure(b.feed_pressure_peak_MPa, u),
       formatPressure(a.feed_pressure_peak_MPa, u),
     ) +
     row(
-      "peak clamp force",
+      `peak clamp force${at}`,
       formatForce(b.clamp_force_peak_kN, u),
       formatForce(a.clamp_force_peak_kN, u),
     ) +
-    row("cold runner", `${num(b.runner_mass_g)} g`, `${num(a.runner_mass_g)} g`) +
-    `</tbody></table>${verdictHtml(opt)}</section>` +
+    row("cold runner", formatMass(b.runner_mass_g, u), formatMass(a.runner_mass_g, u)) +
+    `</tbody></table></section>` +
     `<section class="sheet-cautions"><h3>Cautions</h3>${cautionsHtml(a)}</section>` +
     `<section class="signoff"><h3>Sign-off</h3><div class="sign-lines">` +
     ["Designed by", "Checked by", "Toolmaker", "Trial shot approved"].map((who) =>
       `<div class="sign"><span class="line"></span><span>${esc(who)} — name, date</span></div>`
     ).join("") +
-    `</div></section></article>`;
+    `</div></section></div></div></article>`;
 }

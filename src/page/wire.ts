@@ -19,6 +19,7 @@ export interface CavityResult {
   gate_shear_rate_peak_1_s: number | null;
   gate_shear_limit_1_s: number | null;
   gate_pressure_drop_MPa?: number | null;
+  inlet_pressure_at_switchover_MPa?: number | null;
   mass_g: number | null;
 }
 
@@ -29,6 +30,23 @@ export interface ElementResult {
   pressure_drop_end_MPa: number | null;
   wall_shear_rate_peak_1_s?: number | null;
   volume_cm3?: number | null;
+  flow_end_cm3_s?: number | null;
+  full_time_s?: number | null;
+  /** Melt temperature leaving the element at switchover, °C. */
+  melt_temperature_end_C?: number | null;
+  /** Frozen layer at the wall at switchover, mm. */
+  frozen_layer_end_mm?: number | null;
+  frozen_shut?: boolean;
+}
+
+/** One freeze-time entry of a result. */
+export interface FreezeEntry {
+  id: string;
+  kind: string;
+  size_mm?: number | null;
+  freeze_time_s: number | null;
+  cooling_time_s?: number | null;
+  formula?: string;
 }
 
 /** A warning in plain words. */
@@ -53,9 +71,13 @@ export interface SimulationResult {
   format: string;
   scenario?: string;
   material?: { id: string; name: string; generic?: boolean; source?: string };
+  injection_rate_cm3_s?: number | null;
   fill_time_s: number | null;
+  /** When the press switches from filling to holding (the scenario's switchover %), s. */
+  switchover_time_s?: number | null;
   imbalance_percent: number | null;
   feed_pressure_peak_MPa: number | null;
+  feed_pressure_at_switchover_MPa?: number | null;
   machine_pressure_share_percent?: number | null;
   clamp_force_peak_kN: number | null;
   clamp_share_percent?: number | null;
@@ -77,7 +99,16 @@ export interface SimulationResult {
     total_MPa: number | null;
     total_first_full_MPa?: number | null;
   }[];
-  freeze?: { part_cooling_time_s: number | null; runner_cooling_time_s: number | null };
+  feed_system_volume_cm3?: number | null;
+  cavity_volume_cm3?: number | null;
+  freeze?: {
+    part_cooling_time_s: number | null;
+    runner_cooling_time_s: number | null;
+    cycle_set_by?: string;
+    entries?: FreezeEntry[];
+  };
+  /** Solver figures; key spelling may move from camelCase to snake_case (read both). */
+  diagnostics?: Record<string, unknown>;
   warnings: readonly ResultWarning[];
   cautions: readonly string[];
   history?: HistorySample[];

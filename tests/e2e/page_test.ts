@@ -10,7 +10,7 @@
  */
 import assert from "node:assert/strict";
 import puppeteer, { type Browser, type HTTPRequest, type Page } from "puppeteer-core";
-import { formatNumber } from "../../src/page/display_units.ts";
+import { formatMass, formatNumber, METRIC_UNITS } from "../../src/page/display_units.ts";
 import type { Job } from "../../src/page/wire.ts";
 
 const CHROMIUM = Deno.env.get("EVENFILL_CHROMIUM") ?? "/usr/bin/chromium";
@@ -280,7 +280,9 @@ Deno.test({
             assert.equal(cell.raw, String(c[field]), `${which} ${c.id} ${field} raw`);
             assert.equal(
               cell.text,
-              formatNumber(c[field], digits),
+              field === "mass_g"
+                ? formatMass(c[field], METRIC_UNITS, digits)
+                : formatNumber(c[field], digits),
               `${which} ${c.id} ${field} shown`,
             );
           }
@@ -330,8 +332,8 @@ Deno.test({
         (el) => el.textContent ?? "",
       );
       assert.ok(
-        toText.startsWith(`${first.to_in.toFixed(4)} in`),
-        `inch size shown: ${toText} (API ${first.to_in} in)`,
+        toText.startsWith(`${(first.to_mm / 25.4).toFixed(4)} in`),
+        `inch size shown, rounded once from mm: ${toText} (API ${first.to_mm} mm)`,
       );
       const label = await page.$eval(
         `#results-layout [data-id='${first.element}'] text.label`,

@@ -49,8 +49,9 @@ Deno.test("seven series differ in colour, dash and marker (black-and-white print
   assert.equal(new Set(styles.map((s) => s.colour)).size, 7);
   assert.equal(new Set(styles.map((s) => s.dash)).size, 7);
   assert.equal(new Set(styles.map((s) => s.marker)).size, 7);
-  // no rainbow scale: every colour is from the Okabe–Ito set
-  const okabeIto = ["#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9", "#000000"];
+  // no rainbow scale: every colour is from the Okabe–Ito set (Okabe & Ito 2008), orange and sky
+  // blue darkened to reach 3:1 on white (WCAG 2.1, 1.4.11; tests/page/contrast_test.ts)
+  const okabeIto = ["#0072B2", "#D55E00", "#009E73", "#CC79A7", "#B07800", "#3C8DC5", "#000000"];
   for (const s of styles) assert.ok(okabeIto.includes(s.colour));
 });
 

@@ -2,9 +2,13 @@ import assert from "node:assert/strict";
 import { assertClose } from "../assert_close.ts";
 import {
   forceFromKn,
+  formatFlowRate,
   formatLength,
+  formatMass,
   formatNumber,
   formatPressure,
+  formatVolume,
+  groupThousands,
   lengthFromMm,
   lengthToMm,
   METRIC_UNITS,
@@ -47,10 +51,10 @@ Deno.test("formatting: toolroom decimals and missing values", () => {
   assert.equal(formatLength(1.25, "mm"), "1.25");
   assert.equal(formatLength(6, "in"), "0.2362");
   assert.equal(formatLength(null, "in"), "–");
-  assert.equal(formatNumber(21075.8, 3), "21076");
+  assert.equal(formatNumber(21075.8, 3), "21,076");
   assert.equal(formatNumber(2.80778, 3), "2.81");
   assert.equal(formatNumber(0.0123, 2), "0.012");
-  assert.equal(formatPressure(100, { ...METRIC_UNITS, pressure: "bar" }), "1000 bar");
+  assert.equal(formatPressure(100, { ...METRIC_UNITS, pressure: "bar" }), "1,000 bar");
   assert.equal(formatPressure(1, { ...METRIC_UNITS, pressure: "psi" }), "145 psi");
 });
 
@@ -61,4 +65,32 @@ Deno.test("saved unit choices: unknown values fall back to metric", () => {
     length: "in",
     force: "tf",
   });
+});
+
+// 1 in = 25.4 mm exactly, so 1 in³ = 16.387064 cm³; 1 lb = 453.59237 g and 1 oz = 1/16 lb
+// = 28.349523125 g exactly (NIST SP 811, 2008, appendix B.8).
+Deno.test("US units: volume in in³, mass in oz (lb from a pound), flow in in³/s", () => {
+  const us = { ...METRIC_UNITS, length: "in" as const };
+  assert.equal(formatVolume(16.387064, us), "1.00 in³");
+  assert.equal(formatVolume(16.387064, METRIC_UNITS), "16.4 cm³");
+  assert.equal(formatMass(28.349523125, us), "1.00 oz");
+  assert.equal(formatMass(453.59237 * 2, us), "2.00 lb");
+  assert.equal(formatMass(120.5, METRIC_UNITS), "121 g");
+  assert.equal(formatFlowRate(16.387064 * 3, us), "3.00 in³/s");
+  assert.equal(formatFlowRate(30, METRIC_UNITS), "30.0 cm³/s");
+});
+
+Deno.test("inch values are rounded once, from mm", () => {
+  // 5 mm = 0.196850… in: 0.1969. Rounding 0.19685 (already rounded) again gives 0.1968.
+  assert.equal(formatLength(5, "in"), "0.1969");
+  assert.notEqual(formatLength(5, "in"), (0.19685).toFixed(4));
+});
+
+Deno.test("thousands separators: commas between groups of three, decimals untouched", () => {
+  assert.equal(groupThousands("1234567.125"), "1,234,567.125");
+  assert.equal(groupThousands("-1000"), "-1,000");
+  assert.equal(groupThousands("999"), "999");
+  assert.equal(formatNumber(151109, 3), "151,109");
+  assert.equal(formatNumber(1234.5678, 6), "1,234.57");
+  assert.equal(formatPressure(100, { ...METRIC_UNITS, pressure: "psi" }), "14,504 psi");
 });

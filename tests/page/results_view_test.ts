@@ -108,6 +108,8 @@ const change: ChangeEntry = {
 
 Deno.test("change list: mm and inch side by side, cutter, steel, effect of the step", () => {
   assert.equal(changeSizeText(change, "to", units), "7 mm (0.2756 in)");
+  // from_in 0.19685 is already rounded; 5 mm = 0.196850… in rounds once to 0.1969
+  assert.equal(changeSizeText(change, "from", units), "5 mm (0.1969 in)");
   assert.equal(changeSizeText(change, "to", { ...units, length: "in" }), "0.2756 in (7 mm)");
   const html = changeTableHtml([change, { ...change, step: 2, steel_safe: false }], units);
   assert.ok(html.includes('data-step="1" data-element="R4"'));
