@@ -37,7 +37,7 @@ Deno.test("simulate --json prints evenfill.result/1 with the stable field names"
       "diagnostics",
     ]
   ) assert.ok(field in result, `missing ${field}`);
-  // product.md defines imbalance as (t_max − t_min)/t_max × 100 over the cavity fill times.
+  // Imbalance is (t_max − t_min)/t_max × 100 over the cavity fill times (common practice, no source).
   const times: number[] = result.cavities.map((c: { fill_time_s: number }) => c.fill_time_s);
   const expected = ((Math.max(...times) - Math.min(...times)) / Math.max(...times)) * 100;
   assertClose(result.imbalance_percent, expected, {

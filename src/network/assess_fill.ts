@@ -4,7 +4,7 @@ import type { FeedNetwork } from "./feed_network.ts";
 import type { FillResult } from "./fill_result.ts";
 
 /**
- * Freeze and cooling estimates and the rule-of-thumb warnings of physics.md §7,
+ * Freeze and cooling estimates and the rule-of-thumb warnings,
  * computed from a fill result. Rules marked "common practice" have no published
  * source; the thresholds are those the trade quotes.
  *
@@ -116,7 +116,7 @@ export interface FillWarningsOptions {
   freeze: FreezeTimes;
 }
 
-/** The warnings of physics.md §7 for one simulated design. */
+/** The rule-of-thumb warnings for one simulated design. */
 export function fillWarnings(
   context: { scenario: Scenario; network: FeedNetwork; fill: FillResult },
   options: FillWarningsOptions,
@@ -354,7 +354,7 @@ export function fillWarnings(
   return [...unique.values()];
 }
 
-/** The cautions every report carries (product.md). */
+/** The cautions every report carries. */
 export const CAUTIONS: readonly string[] = [
   "A one-dimensional network model: it does not see venting, cooling-line faults, mold deflection, cold-slug blockage or shear-induced melt variation at branches.",
   "Steel removal cannot be undone: cut one step, re-measure with weighed short shots, then decide.",

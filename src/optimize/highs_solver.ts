@@ -8,7 +8,7 @@
  * Tolerances are tightened (`dual_feasibility_tolerance` 1e-10,
  * `primal_feasibility_tolerance` 1e-9) because with default tolerances and
  * unscaled SI coefficients HiGHS has returned "optimal" answers 1.5–26 % off
- * (measured, see design/platform.md "LP solvers").
+ * (measured in our own runs; no published source).
  *
  * Format notes, checked against HiGHS 1.15.1 in this package: the reader
  * rejects the range syntax `l <= expr <= u` in a row, so a two-sided row is

@@ -35,7 +35,7 @@ const SLIT = { a: 0.5, b: 1 } as const;
  * Pressure at the gate of a centre-gated disk at flow rate Q (m³/s, either sign), the
  * front at 0 gauge pressure. Each ring r obeys the thin-slit law of width 2πr and gap H
  * (lubrication approximation, Tadmor & Gogos, *Principles of Polymer Processing*, 2nd ed.,
- * §13.3; physics.md §4), dP/dr = (2/H)·τw(r), integrated in s = ln r by 8-point
+ * §13.3), dP/dr = (2/H)·τw(r), integrated in s = ln r by 8-point
  * Gauss–Legendre panels no wider than 3 in s. Power law: P = (2K/H)[(2n+1)Q/(πnH²)]ⁿ
  * (R_f^(1−n) − r_g^(1−n))/(1−n); Newtonian 6μQ·ln(R_f/r_g)/(πH³). Wall shear is the one
  * at the gate radius (the highest). With frontRadius = gateRadius the pressure drop and

@@ -11,7 +11,7 @@ const round = (
 ) => (Number.isFinite(x) ? Number(x.toPrecision(digits)) : null);
 
 /**
- * The result JSON of product.md ("Result"), with stable field names: a value of the
+ * The result JSON (`evenfill.result/1`), with stable field names: a value of the
  * wire type ({@link SimulationResult}, schema `wire/result.ts`).
  */
 export function resultJson(

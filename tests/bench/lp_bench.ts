@@ -1,7 +1,7 @@
 /**
  * SLP-shaped LPs (design steps in a trust region, penalised slacks, one balance row)
  * of 10, 50 and 200 variables on both adapters. javascript-lp-solver is skipped above
- * 100 variables: it cycles/hangs there (design/platform.md "LP solvers"; a 100-variable
+ * 100 variables: it cycles/hangs there (measured in our own runs: a 100-variable
  * degenerate box LP did not return in 300 s) and its adapter refuses more than 80
  * transformed variables by default.
  *

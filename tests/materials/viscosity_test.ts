@@ -46,7 +46,7 @@ Deno.test("Cross-WLF η0 at pressure, both conventions, by hand", () => {
 });
 
 Deno.test("A2_shifts_with_pressure: ln η0 is linear in p with slope A1·D3/(Ã2 + T − D2)", () => {
-  // Follows from A2 + T − T* = Ã2 + T − D2 (physics.md §1; Kennedy, Flow Analysis of Injection Molds).
+  // Follows from A2 + T − T* = Ã2 + T − D2 (Kennedy, Flow Analysis of Injection Molds).
   const t = 520;
   const ln0 = Math.log(zeroShearViscosity(base, t, 0));
   for (const p of [2e7, 5e7, 1.5e8]) {

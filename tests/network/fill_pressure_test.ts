@@ -118,7 +118,7 @@ Deno.test("every cavity's inlet pressure at switchover is a real pressure, full 
 
 Deno.test("at a constant injection rate the feed pressure never falls up to switchover, cavities filling or not (thermal)", async () => {
   // Incompressible melt at a fixed ram speed: when a cavity fills, the same flow goes through
-  // fewer, longer paths, so the pressure can only rise (physics.md §5). A frozen layer that
+  // fewer, longer paths, so the pressure can only rise (mass balance, derived here). A frozen layer that
   // thinned as the flow sped up ("re-melting") or a heating lag made it fall.
   const cases: [string, ScenarioWire][] = [
     ["four-part demo", await demo("family_four_housing.json")],

@@ -38,7 +38,7 @@ const slit = (K: number, n: number, Q: number, W: number, H: number, L: number) 
 const cone = (K: number, n: number, Q: number, R0: number, R1: number, L: number) =>
   2 * K * Math.pow(((3 * n + 1) * Q) / (Math.PI * n), n) * (L / (3 * n * (R1 - R0))) *
   (Math.pow(R0, -3 * n) - Math.pow(R1, -3 * n));
-// Radial disk from r_g to R_f (Tadmor & Gogos; physics.md §4):
+// Radial disk from r_g to R_f (Tadmor & Gogos, radial flow):
 // P = (2K/H)[(2n+1)Q/(πnH²)]ⁿ (R_f^(1−n) − r_g^(1−n))/(1−n).
 const disk = (K: number, n: number, Q: number, H: number, rg: number, Rf: number) =>
   ((2 * K) / H) * Math.pow(((2 * n + 1) * Q) / (Math.PI * n * H * H), n) *

@@ -120,7 +120,7 @@ Deno.test("tabulated fRe between grid points matches a fresh FD solve", () => {
 
 Deno.test("4A/P alone (circle law at Dh) over-predicts ΔP of compact runners by up to ~12 %", () => {
   // Treating a section as a tube of diameter Dh at the true mean velocity gives
-  // ΔP/L = 32μū/Dh², i.e. fRe = 16; the exact ratio is 16/fRe (physics.md §2; fRe from
+  // ΔP/L = 32μū/Dh², i.e. fRe = 16; the exact ratio is 16/fRe (fRe from
   // Shah & London / this project's FD). Over-prediction for every compact runner section:
   // square 16/14.227 − 1 = 12.5 %; the 7°-draft trapezoid runner (fRe ≈ 14.21) 12.6 %.
   const mu = 100;

@@ -15,7 +15,7 @@ const rg = 0.001;
 
 Deno.test("centre-gated disk vs the power-law closed form (numerical path)", () => {
   // Tadmor & Gogos, Principles of Polymer Processing (2nd ed.), radial flow between disks;
-  // physics.md §4: P = (2K/H)[(2n+1)Q/(πnH²)]ⁿ (R_f^(1−n) − r_g^(1−n))/(1−n).
+  // Tadmor & Gogos (2nd ed.), radial flow: P = (2K/H)[(2n+1)Q/(πnH²)]ⁿ (R_f^(1−n) − r_g^(1−n))/(1−n).
   const K = 1.2e4;
   for (const n of [0.25, 0.5, 0.8]) {
     for (const Rf of [0.0015, 0.02, 0.15]) {
@@ -42,7 +42,7 @@ Deno.test("centre-gated disk vs the power-law closed form (numerical path)", () 
 });
 
 Deno.test("centre-gated disk, Newtonian: 6μQ·ln(R_f/r_g)/(πH³)", () => {
-  // Tadmor & Gogos (2nd ed.), radial flow; physics.md §4 (n → 1 limit of the above).
+  // Tadmor & Gogos (2nd ed.), radial flow (n → 1 limit of the above).
   const mu = 300;
   const Q = 1e-5;
   const Rf = 0.08;

@@ -3,7 +3,7 @@
  * simplex in plain JavaScript. Kept as a dependency-light fallback and a second
  * opinion; HiGHS is the primary adapter.
  *
- * Limits (measured, design/platform.md "LP solvers"), and what this adapter does:
+ * Limits (measured in our own runs), and what this adapter does:
  * - Its variables are ≥ 0 and its presolve assumes so even for "unrestricted"
  *   ones (it called feasible problems infeasible). Every variable is rewritten:
  *   x = lower + y (finite lower; a finite upper becomes the row y ≤ upper − lower),

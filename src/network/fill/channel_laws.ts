@@ -21,7 +21,8 @@ export const CLOSURE_FRACTION = 0.95;
 
 /**
  * Frozen-layer thickness of element `e` at `t`, m: the no-flow conduction solution
- * δ = 2·erf⁻¹(θ)·√(α·t_c) (physics.md §3) with t_c the shorter of the wall's mean contact time
+ * δ = 2·erf⁻¹(θ)·√(α·t_c) (semi-infinite solid, Carslaw & Jaeger, *Conduction of Heat in
+ * Solids*, 2nd ed., §2.4) with t_c the shorter of the wall's mean contact time
  * and half the melt's residence time in the element (a flowing channel's thermal boundary layer
  * grows with residence time: Lévêque scaling), never thinner than it already was, and short of
  * closing the section. 0 for heated elements and isothermal runs.
@@ -195,7 +196,7 @@ function lawOf(
       });
     }
     case "strip": {
-      // physics.md §4: the front advances along the flow length in a slit of the strip's width.
+      // The front advances along the flow length in a slit of the strip's width.
       const section: Section = { kind: "slit", width: g.width, gap: g.gap - 2 * delta };
       const length = Math.max(fraction, MIN_FILLED_FRACTION) * g.flowLength;
       return uniformChannelLaw({ section, length, curve });

@@ -81,7 +81,7 @@ export class FillRecorder {
 
 /**
  * Mold-opening force of a solved instant, N: pressure over each element's projected area on
- * the parting plane (physics.md §5). A through-flow element takes the mean of its end
+ * the parting plane (common practice, no source). A through-flow element takes the mean of its end
  * pressures, a filling one its filled share times the mean of its pressure profile, a full
  * cavity (no flow) its inlet pressure over the whole area, a pruned full runner or gate the
  * pressure of its ends.

@@ -8,7 +8,8 @@ import type { Solved } from "./solve_instant.ts";
  * and, unless isothermal, each element's melt temperature: its inlet temperature (the
  * flow-weighted mix at its upstream node, walking nodes from the highest pressure down) plus
  * half its own adiabatic heating ΔT = ΔP/(ρ·cp), the upper bound of viscous heating
- * (physics.md §3). A heated element (hot drop) starts again at the feed temperature.
+ * (energy balance: all pressure work becomes heat). A heated element (hot drop) starts again
+ * at the feed temperature.
  */
 export function updateMeltTemperature(ctx: FillContext, state: FillState, s: Solved): void {
   const { process, melt, network, nodeCount, elements } = ctx;
