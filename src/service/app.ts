@@ -699,7 +699,12 @@ export function createApp(options: AppOptions): Handler {
           },
         );
       }
-      const file = await serveStatic(config.publicDir, url.pathname, request.method);
+      const file = await serveStatic(
+        config.publicDir,
+        url.pathname,
+        request.method,
+        request.headers,
+      );
       if (file) return file;
       throw new HttpError(404, "not_found", `No file ${url.pathname}`);
     } catch (error) {
