@@ -21,6 +21,7 @@ import { textReport } from "./report/text_report.ts";
 import { optimizeBalance } from "./optimize/balance.ts";
 import { optimizationJson, optimizationText } from "./report/optimization_report.ts";
 import { changeSheetCsv } from "./report/change_sheet_csv.ts";
+import { windowJson } from "./report/window_json.ts";
 import { changeList } from "./optimize/change_list.ts";
 import {
   FIT_MATERIAL_OPTIONS,
@@ -394,7 +395,7 @@ export async function main(argv: readonly string[]): Promise<number> {
         return read.exit;
       }
       const report = processWindow(JSON.parse(stripBom(await Deno.readTextFile(file!))));
-      if (args.flags.has("json")) console.log(JSON.stringify(report, null, 2));
+      if (args.flags.has("json")) console.log(JSON.stringify(windowJson(report), null, 2));
       else console.log(windowText(report));
       return 0;
     }

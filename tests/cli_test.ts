@@ -1,5 +1,6 @@
 import assert from "node:assert/strict";
 import { assertClose } from "./assert_close.ts";
+import { WindowSchema } from "../src/wire/window.ts";
 
 const cli = new URL("../src/cli.ts", import.meta.url).pathname;
 const config = new URL("../deno.json", import.meta.url).pathname;
@@ -207,7 +208,12 @@ Deno.test("calibrate: fits a gate's size to the scenario's short shots, says wha
     assert.equal(again.code, 0, again.stderr);
     const window = await run(["window", `${dir}/calibrated.json`, "--json"]);
     assert.equal(window.code, 0, window.stderr);
-    assert.equal(JSON.parse(window.stdout).points.length, 17);
+    const sweep = JSON.parse(window.stdout);
+    assert.equal(sweep.points.length, 17);
+    // snake_case with units in the names, like every other JSON the CLI prints
+    assert.ok(WindowSchema.strict().safeParse(sweep).success);
+    assert.equal(sweep.imbalance_range_percent.length, 2);
+    assert.ok(sweep.points[0].feed_pressure_peak_MPa > 0);
   } finally {
     await Deno.remove(dir, { recursive: true });
   }

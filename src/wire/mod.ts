@@ -13,3 +13,4 @@ export * from "./issue.ts";
 export * from "./result.ts";
 export * from "./optimization.ts";
 export * from "./job.ts";
+export * from "./window.ts";
