@@ -1167,7 +1167,10 @@
       if (feedNode && circleBoxOverlap(feedNode.x, feedNode.y, feedD / 2 + font * 0.5, box)) c += 2;
       return c;
     };
-    const place = (tag, optional = false) => {
+    const gapMm = font * 0.12;
+    const hitsLabel = (box) => placed.some((p) => Math.abs(p.x - box.x) < p.hw + box.hw + gapMm && Math.abs(p.y - box.y) < p.hh + box.hh + gapMm);
+    const leaders = /* @__PURE__ */ new Map();
+    const place = (tag) => {
       const { hw, hh } = halfSize(tag);
       let best = null, bestCost = Infinity;
       for (const c of tag.candidates) {
@@ -1177,6 +1180,7 @@
           hw,
           hh
         };
+        if (hitsLabel(box)) continue;
         const k = cost(box);
         if (k < bestCost) {
           best = box;
@@ -1184,14 +1188,64 @@
           if (k === 0) break;
         }
       }
-      if (optional && bestCost > 0) return null;
+      if (best === null || bestCost > 0) {
+        const at = tag.anchor ?? tag.candidates[0] ?? {
+          x: 0,
+          y: 0
+        };
+        let spiral = null, spiralCost = Infinity;
+        for (let ring = 1; ring <= 80 && spiralCost > 0; ring++) {
+          const r = ring * font * 0.8;
+          const count = 12 + ring * 2;
+          for (let k = 0; k < count; k++) {
+            const a = 2 * Math.PI * k / count;
+            const box = {
+              x: at.x + Math.cos(a) * (r + hw),
+              y: at.y + Math.sin(a) * (r + hh),
+              hw,
+              hh
+            };
+            if (hitsLabel(box)) continue;
+            const c = cost(box);
+            if (c < spiralCost) {
+              spiral = box;
+              spiralCost = c;
+              if (c === 0) break;
+            }
+          }
+        }
+        if (spiral && (best === null || spiralCost < bestCost)) {
+          best = spiral;
+          leaders.set(spiral, at);
+        }
+      }
+      if (best === null) {
+        const low = Math.min(...placed.map((p) => p.y - p.hh), y0) - hh - font;
+        best = {
+          x: tag.anchor?.x ?? 0,
+          y: low,
+          hw,
+          hh
+        };
+        leaders.set(best, tag.anchor ?? {
+          x: best.x,
+          y: best.y
+        });
+      }
       placed.push(best);
       return best;
     };
+    const boxAttr = (box) => ` data-box="${f(box.x - box.hw)} ${f(-(box.y + box.hh))} ${f(box.x + box.hw)} ${f(-(box.y - box.hh))}"`;
     const tagSvg = (tag, box) => {
       if (box === null) return "";
       const left = box.x - box.hw + font * 0.15;
-      let out2 = "";
+      let out2 = `<g class="tag"${boxAttr(box)}>`;
+      const anchor = leaders.get(box);
+      if (anchor) {
+        const ex = Math.max(box.x - box.hw, Math.min(anchor.x, box.x + box.hw));
+        const ey = Math.max(box.y - box.hh, Math.min(anchor.y, box.y + box.hh));
+        out2 += `<line class="leader" x1="${f(anchor.x)}" y1="${f(-anchor.y)}" x2="${f(ex)}" y2="${f(-ey)}"/>`;
+      }
       let textX = box.x;
       if (tag.badge !== void 0) {
         const bx = left + font * 0.8;
@@ -1202,7 +1256,7 @@
       tag.lines.forEach((line, k) => {
         out2 += `<text class="label${tag.strong && k === 0 ? " strong" : ""}" x="${f(textX)}" y="${f(-(top - k * lineHeight))}" text-anchor="middle" dy="0.35em">${escapeXml(line)}</text>`;
       });
-      return out2;
+      return out2 + "</g>";
     };
     const besideSegment = (ax, ay, bx, by, half, tag, shifts) => {
       const { hw, hh } = halfSize(tag);
@@ -1257,7 +1311,8 @@
           text
         ],
         strong: false,
-        candidates: []
+        candidates: [],
+        anchor: feedNode
       };
       const { hw, hh } = halfSize(tag);
       const free = freeDirection(geo, scenario.feed.node);
@@ -1283,16 +1338,40 @@
     }
     for (const c of geo.cavities) {
       const title = `${c.id}${c.name ? ` ${c.name}` : ""}`;
-      const volume = `${formatVolume2(c.volume_cm3)} cm\xB3`;
+      const volume = formatVolume(c.volume_cm3, {
+        ...METRIC_UNITS,
+        length: unit
+      });
       const fits = (text2) => c.r * 2 > charWidth * 1.05 * Math.max(text2.length, 3);
       const inside = fits(title) && fits(volume) && c.r > font * 1.4;
       const idInside = !inside && fits(c.id) && c.r > font * 0.8;
       let text = "";
       if (inside) {
-        text = `<text x="${f(c.x)}" y="${f(-c.y)}" text-anchor="middle" dy="-0.2em" class="label strong">${escapeXml(title)}</text><text x="${f(c.x)}" y="${f(-c.y)}" text-anchor="middle" dy="1.0em" class="label">${escapeXml(volume)}</text>`;
+        const box = {
+          x: c.x,
+          y: c.y - font * 0.4,
+          ...halfSize({
+            lines: [
+              title,
+              volume
+            ]
+          })
+        };
+        placed.push(box);
+        text = `<g class="tag inside"${boxAttr(box)}><text x="${f(c.x)}" y="${f(-c.y)}" text-anchor="middle" dy="-0.2em" class="label strong">${escapeXml(title)}</text><text x="${f(c.x)}" y="${f(-c.y)}" text-anchor="middle" dy="1.0em" class="label">${escapeXml(volume)}</text></g>`;
       } else {
         if (idInside) {
-          text = `<text x="${f(c.x)}" y="${f(-c.y)}" text-anchor="middle" dy="0.35em" class="label strong">${escapeXml(c.id)}</text>`;
+          const box = {
+            x: c.x,
+            y: c.y,
+            ...halfSize({
+              lines: [
+                c.id
+              ]
+            })
+          };
+          placed.push(box);
+          text = `<g class="tag inside"${boxAttr(box)}><text x="${f(c.x)}" y="${f(-c.y)}" text-anchor="middle" dy="0.35em" class="label strong">${escapeXml(c.id)}</text></g>`;
         }
         const lines = idInside ? c.name ? [
           c.name,
@@ -1306,7 +1385,11 @@
         const tag = {
           lines,
           strong: !idInside,
-          candidates: []
+          candidates: [],
+          anchor: {
+            x: c.x + c.dx * c.r,
+            y: c.y + c.dy * c.r
+          }
         };
         const { hw, hh } = halfSize(tag);
         for (const turn of [
@@ -1328,7 +1411,7 @@
             y: c.y + uy * reach
           });
         }
-        defer(2, () => labels.push(`<g class="cavity-label" data-for="${escapeXml(c.id)}">${tagSvg(tag, place(tag, idInside))}</g>`));
+        defer(2, () => labels.push(`<g class="cavity-label" data-for="${escapeXml(c.id)}">${tagSvg(tag, place(tag))}</g>`));
       }
       body.push(`<g class="cavity" data-id="${escapeXml(c.id)}"><circle cx="${f(c.x)}" cy="${f(-c.y)}" r="${f(c.r)}"/>${text}</g>`);
     }
@@ -1342,7 +1425,11 @@
         ...changed ? {
           badge: changed.step
         } : {},
-        candidates: []
+        candidates: [],
+        anchor: {
+          x: (seg.x1 + seg.x2) / 2,
+          y: (seg.y1 + seg.y2) / 2
+        }
       };
       tag.candidates = besideSegment(seg.x1, seg.y1, seg.x2, seg.y2, width / 2, tag, shifts);
       if (kind === "gate") {
@@ -1442,9 +1529,6 @@
   }
   function layoutKeyText(unit) {
     return `Plan view to scale from the node coordinates; sizes in ${unit === "mm" ? "mm" : "inch"}. \u2300 diameter; t gate thickness \xD7 width. Runners at their true width; cavity circles by volume (placed beyond their gates). Changed elements: dashed outline, before \u2192 after, step number.`;
-  }
-  function formatVolume2(cm3) {
-    return cm3 >= 100 ? cm3.toFixed(0) : cm3 >= 10 ? cm3.toFixed(1) : cm3.toFixed(2);
   }
   function niceLengthStep(approxMm, unit) {
     const inUnit = lengthFromMm(approxMm, unit);

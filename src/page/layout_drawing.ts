@@ -1,5 +1,12 @@
 import { escapeXml } from "./chart.ts";
-import { formatLength, lengthFromMm, lengthToMm, type LengthUnit } from "./display_units.ts";
+import {
+  formatLength,
+  formatVolume,
+  lengthFromMm,
+  lengthToMm,
+  type LengthUnit,
+  METRIC_UNITS,
+} from "./display_units.ts";
 import { niceStep } from "./chart.ts";
 
 /**
@@ -263,6 +270,8 @@ interface Tag {
   strong: boolean;
   badge?: number;
   candidates: { x: number; y: number }[];
+  /** The point the label names (a leader line joins it to a label placed away from it). */
+  anchor?: { x: number; y: number };
 }
 
 /** A placed label box (centre, half sizes), mm, y up. */
@@ -344,11 +353,25 @@ export function layoutSvg(scenario: DrawingScenario, options: LayoutSvgOptions =
     if (feedNode && circleBoxOverlap(feedNode.x, feedNode.y, feedD / 2 + font * 0.5, box)) c += 2;
     return c;
   };
-  const place = (tag: Tag, optional = false): Box | null => {
+  const gapMm = font * 0.12;
+  const hitsLabel = (box: Box) =>
+    placed.some((p) =>
+      Math.abs(p.x - box.x) < p.hw + box.hw + gapMm && Math.abs(p.y - box.y) < p.hh + box.hh + gapMm
+    );
+  /** Boxes that leave the anchor this far away get a leader line. */
+  const leaders = new Map<Box, { x: number; y: number }>();
+  /**
+   * Greedy placement: the first free candidate; else the cheapest candidate that touches no
+   * other label; else a spiral outward from the anchor to the first box clear of every label
+   * (and, if it finds one, of channels and cavities too), joined to its anchor by a leader.
+   * Labels never overlap each other; channels and cavities are avoided where room allows.
+   */
+  const place = (tag: Tag): Box => {
     const { hw, hh } = halfSize(tag);
     let best: Box | null = null, bestCost = Infinity;
     for (const c of tag.candidates) {
       const box = { x: c.x, y: c.y, hw, hh };
+      if (hitsLabel(box)) continue;
       const k = cost(box);
       if (k < bestCost) {
         best = box;
@@ -356,14 +379,59 @@ export function layoutSvg(scenario: DrawingScenario, options: LayoutSvgOptions =
         if (k === 0) break;
       }
     }
-    if (optional && bestCost > 0) return null; // crowded: an optional label is left out
-    placed.push(best!);
-    return best!;
+    if (best === null || bestCost > 0) {
+      const at = tag.anchor ?? tag.candidates[0] ?? { x: 0, y: 0 };
+      let spiral: Box | null = null, spiralCost = Infinity;
+      for (let ring = 1; ring <= 80 && spiralCost > 0; ring++) {
+        const r = ring * font * 0.8;
+        const count = 12 + ring * 2;
+        for (let k = 0; k < count; k++) {
+          const a = (2 * Math.PI * k) / count;
+          const box = {
+            x: at.x + Math.cos(a) * (r + hw),
+            y: at.y + Math.sin(a) * (r + hh),
+            hw,
+            hh,
+          };
+          if (hitsLabel(box)) continue;
+          const c = cost(box);
+          if (c < spiralCost) {
+            spiral = box;
+            spiralCost = c;
+            if (c === 0) break;
+          }
+        }
+      }
+      if (spiral && (best === null || spiralCost < bestCost)) {
+        best = spiral;
+        leaders.set(spiral, at);
+      }
+    }
+    if (best === null) {
+      // nothing free within 80 rings (not seen on real tools): stack it below everything
+      const low = Math.min(...placed.map((p) => p.y - p.hh), y0) - hh - font;
+      best = { x: tag.anchor?.x ?? 0, y: low, hw, hh };
+      leaders.set(best, tag.anchor ?? { x: best.x, y: best.y });
+    }
+    placed.push(best);
+    return best;
   };
+  const boxAttr = (box: Box) =>
+    ` data-box="${f(box.x - box.hw)} ${f(-(box.y + box.hh))} ${f(box.x + box.hw)} ${
+      f(-(box.y - box.hh))
+    }"`;
   const tagSvg = (tag: Tag, box: Box | null) => {
     if (box === null) return "";
     const left = box.x - box.hw + font * 0.15;
-    let out = "";
+    let out = `<g class="tag"${boxAttr(box)}>`;
+    const anchor = leaders.get(box);
+    if (anchor) {
+      const ex = Math.max(box.x - box.hw, Math.min(anchor.x, box.x + box.hw));
+      const ey = Math.max(box.y - box.hh, Math.min(anchor.y, box.y + box.hh));
+      out += `<line class="leader" x1="${f(anchor.x)}" y1="${f(-anchor.y)}" x2="${f(ex)}" y2="${
+        f(-ey)
+      }"/>`;
+    }
     let textX = box.x;
     if (tag.badge !== undefined) {
       const bx = left + font * 0.8;
@@ -380,7 +448,7 @@ export function layoutSvg(scenario: DrawingScenario, options: LayoutSvgOptions =
         f(-(top - k * lineHeight))
       }" text-anchor="middle" dy="0.35em">${escapeXml(line)}</text>`;
     });
-    return out;
+    return out + "</g>";
   };
   /** Candidate centres beside a segment: both sides, centre then shifted along it. */
   const besideSegment = (
@@ -427,7 +495,7 @@ export function layoutSvg(scenario: DrawingScenario, options: LayoutSvgOptions =
         formatLength(feedD, unit)
       }`
       : `hot drop ⌀${formatLength(feedD, unit)}`;
-    const tag: Tag = { lines: [text], strong: false, candidates: [] };
+    const tag: Tag = { lines: [text], strong: false, candidates: [], anchor: feedNode };
     const { hw, hh } = halfSize(tag);
     const free = freeDirection(geo, scenario.feed.node);
     for (const turn of [0, 0.5, -0.5, 1, -1, 1.5, -1.5, Math.PI]) {
@@ -449,25 +517,37 @@ export function layoutSvg(scenario: DrawingScenario, options: LayoutSvgOptions =
   // cavities: two lines inside when they fit, else the id inside and the rest beyond
   for (const c of geo.cavities) {
     const title = `${c.id}${c.name ? ` ${c.name}` : ""}`;
-    const volume = `${formatVolume(c.volume_cm3)} cm³`;
+    const volume = formatVolume(c.volume_cm3, { ...METRIC_UNITS, length: unit });
     const fits = (text: string) => c.r * 2 > charWidth * 1.05 * Math.max(text.length, 3);
     const inside = fits(title) && fits(volume) && c.r > font * 1.4;
     const idInside = !inside && fits(c.id) && c.r > font * 0.8;
     let text = "";
     if (inside) {
-      text = `<text x="${f(c.x)}" y="${
+      // the two lines inside the circle: title above the centre, volume below
+      const box = { x: c.x, y: c.y - font * 0.4, ...halfSize({ lines: [title, volume] } as Tag) };
+      placed.push(box);
+      text = `<g class="tag inside"${boxAttr(box)}><text x="${f(c.x)}" y="${
         f(-c.y)
       }" text-anchor="middle" dy="-0.2em" class="label strong">${escapeXml(title)}</text><text x="${
         f(c.x)
-      }" y="${f(-c.y)}" text-anchor="middle" dy="1.0em" class="label">${escapeXml(volume)}</text>`;
+      }" y="${f(-c.y)}" text-anchor="middle" dy="1.0em" class="label">${
+        escapeXml(volume)
+      }</text></g>`;
     } else {
       if (idInside) {
-        text = `<text x="${f(c.x)}" y="${
+        const box = { x: c.x, y: c.y, ...halfSize({ lines: [c.id] } as Tag) };
+        placed.push(box);
+        text = `<g class="tag inside"${boxAttr(box)}><text x="${f(c.x)}" y="${
           f(-c.y)
-        }" text-anchor="middle" dy="0.35em" class="label strong">${escapeXml(c.id)}</text>`;
+        }" text-anchor="middle" dy="0.35em" class="label strong">${escapeXml(c.id)}</text></g>`;
       }
       const lines = idInside ? (c.name ? [c.name, volume] : [volume]) : [title, volume];
-      const tag: Tag = { lines, strong: !idInside, candidates: [] };
+      const tag: Tag = {
+        lines,
+        strong: !idInside,
+        candidates: [],
+        anchor: { x: c.x + c.dx * c.r, y: c.y + c.dy * c.r },
+      };
       const { hw, hh } = halfSize(tag);
       for (const turn of [0, 0.6, -0.6, 1.2, -1.2, Math.PI / 2, -Math.PI / 2, 2.2, -2.2]) {
         const a = Math.atan2(c.dy, c.dx) + turn;
@@ -477,9 +557,7 @@ export function layoutSvg(scenario: DrawingScenario, options: LayoutSvgOptions =
       }
       defer(2, () =>
         labels.push(
-          `<g class="cavity-label" data-for="${escapeXml(c.id)}">${
-            tagSvg(tag, place(tag, idInside))
-          }</g>`,
+          `<g class="cavity-label" data-for="${escapeXml(c.id)}">${tagSvg(tag, place(tag))}</g>`,
         ));
     }
     body.push(
@@ -503,6 +581,7 @@ export function layoutSvg(scenario: DrawingScenario, options: LayoutSvgOptions =
       strong: changed !== undefined,
       ...(changed ? { badge: changed.step } : {}),
       candidates: [],
+      anchor: { x: (seg.x1 + seg.x2) / 2, y: (seg.y1 + seg.y2) / 2 },
     };
     tag.candidates = besideSegment(seg.x1, seg.y1, seg.x2, seg.y2, width / 2, tag, shifts);
     if (kind === "gate") {
@@ -624,10 +703,6 @@ export function layoutKeyText(unit: LengthUnit): string {
   return `Plan view to scale from the node coordinates; sizes in ${
     unit === "mm" ? "mm" : "inch"
   }. ⌀ diameter; t gate thickness × width. Runners at their true width; cavity circles by volume (placed beyond their gates). Changed elements: dashed outline, before → after, step number.`;
-}
-
-function formatVolume(cm3: number): string {
-  return cm3 >= 100 ? cm3.toFixed(0) : cm3 >= 10 ? cm3.toFixed(1) : cm3.toFixed(2);
 }
 
 /** A round scale-bar length near `approxMm`, in whole steps of the chosen unit; returned in mm. */
