@@ -48,3 +48,56 @@ Deno.test("textReport: dual units print psi beside MPa (1 psi = 6 894.757 Pa, NI
   const psi = Math.round(run.fill.feedPressurePeak / 6894.757293168);
   assert.ok(text.includes(`(${psi} psi)`), `expected (${psi} psi) in the report`);
 });
+
+Deno.test("textReport: imbalance from the cavity fill times, one table row per cavity and element", () => {
+  const { text, run } = report();
+  // Imbalance = (t_max − t_min)/t_max × 100 over the cavity fill times (common practice, no source).
+  const times = run.fill.cavities.map((c) => c.fillTime);
+  const imbalance = ((Math.max(...times) - Math.min(...times)) / Math.max(...times)) * 100;
+  assert.match(text, new RegExp(`imbalance ${imbalance.toFixed(2)} % \\(target ≤ `));
+  const lines = text.split("\n");
+  const section = (title: string) => {
+    const start = lines.indexOf(title);
+    assert.ok(start >= 0, `section ${title}`);
+    const end = lines.indexOf("", start);
+    return lines.slice(start + 2, end); // title, header, then rows up to the blank line
+  };
+  assert.deepEqual(section("Cavities").map((l) => l.trim().split(/\s+/)[0]), ["C1", "C2"]);
+  assert.deepEqual(
+    section("Elements at switchover").map((l) => l.trim().split(/\s+/)[0]),
+    run.fill.elements.map((e) => e.id),
+  );
+});
+
+Deno.test("textReport: clamp share, shot and runner masses from the run's own totals", () => {
+  const { text, run } = report();
+  // Clamp share of the 2000 kN press, whole %; runner share of the shot mass, 0.1 %.
+  const clampShare = Math.round((run.fill.clampForcePeak / 2000e3) * 100);
+  assert.match(text, new RegExp(`= ${clampShare} % of 2000 kN \\(filling only; packing adds\\)`));
+  const runnerShare = ((run.runnerMass / run.shotMass) * 100).toFixed(1);
+  assert.match(text, new RegExp(`\\(${runnerShare} % of the shot\\)`));
+  assert.match(text, new RegExp(`^Shot ${(run.shotMass * 1e3).toFixed(1)} g;`, "m"));
+});
+
+Deno.test("textReport: dual units print inch beside mm (1 in = 25.4 mm) and US tons beside kN", () => {
+  const { text, run } = report("dual");
+  // The 5 mm runner R1 in the freeze table: 5/25.4 = 0.197 in (international yard and pound, 1959).
+  assert.ok(text.includes("5.00 mm (0.197 in)"), text);
+  // 1 US ton-force = 2000 lbf × 4.4482216152605 N/lbf (NIST SP 811).
+  const tons = (run.fill.clampForcePeak / (2000 * 4.4482216152605)).toFixed(1);
+  assert.ok(text.includes(`(${tons} US ton)`), `expected (${tons} US ton)`);
+});
+
+Deno.test("textReport: every warning of the run is listed with its code and element", () => {
+  const wire = unequalBranches("isothermal");
+  wire.goals = { max_imbalance_percent: 0.01 };
+  wire.runners![0].diameter_mm = 3; // under wall + 1.5 mm = 3.5 mm
+  const outcome = simulateScenario(wire);
+  assert.ok(outcome.ok);
+  const text = textReport(outcome.run);
+  assert.ok(outcome.run.warnings.length >= 2, "imbalance and runner rule at least");
+  for (const w of outcome.run.warnings) {
+    const line = `  [${w.severity}] ${w.code}${w.element ? ` (${w.element})` : ""}: ${w.message}`;
+    assert.ok(text.includes(line), `missing warning line ${line}`);
+  }
+});
