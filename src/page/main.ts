@@ -869,7 +869,7 @@ function renderResults() {
     ? changeSheetHtml(opt, {
       toolName: scenario.name,
       date: new Date().toISOString().slice(0, 10),
-      layout: layout("sheet-layout", { maxWidthMm: 150, maxHeightMm: 118 }),
+      layout: layout("sheet-layout", { maxWidthMm: 112, maxHeightMm: 95 }),
       units: u,
       scenarioLabel: `${ran.sourceLabel}; mode ${scenario.goals?.mode ?? "new_tool"}; material ${
         opt.after.material?.name ?? ""

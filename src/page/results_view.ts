@@ -320,24 +320,37 @@ export function changeTableHtml(
       esc(changeSizeText(c, "to", units))
     }</strong></td>`;
   if (options.sheet) {
+    const other = units.length === "mm" ? "in" : "mm";
     const rows = changes.map((c) =>
       `<tr data-step="${c.step}" data-element="${esc(c.element)}">` +
       `<td class="num step">${c.step}</td>` +
-      `<th scope="row">${esc(c.element)} <span class="muted">${esc(c.kind)} ${
-        esc(c.dimension)
-      }</span></th>` + sizes(c) +
+      `<th scope="row">${esc(c.element)} <span class="muted">${
+        esc(c.dimension === "diameter" ? "⌀" : c.dimension)
+      }</span></th>` +
+      `<td class="num" data-field="from" data-mm="${c.from_mm}">${
+        formatLength(c.from_mm, units.length)
+      }</td>` +
+      `<td class="num" data-field="to" data-mm="${c.to_mm}"><strong>${
+        formatLength(c.to_mm, units.length)
+      } ${unitSymbol(units, "length")}</strong> <span class="muted">(${
+        formatLength(c.to_mm, other)
+      } ${other})</span></td>` +
       `<td data-field="cutter">${esc(c.cutter)}</td>` +
-      `<td data-field="steel">${esc(c.mold_half)}; ${STEEL_WORDS(c)}</td>` +
+      `<td>${esc(c.mold_half)}</td>` +
+      `<td data-field="steel">${c.steel_safe ? "enlarge" : "<strong>ADD STEEL</strong>"}</td>` +
       `<td class="num" data-field="imbalance" data-value="${c.after_step.imbalance_percent}">${
         num(c.after_step.imbalance_percent, 3)
-      } %${c.after_step.limits_met ? "" : " (limits not met yet)"}</td>` +
+      } %${c.after_step.limits_met ? "" : " *"}</td>` +
       `<td class="tick-box" aria-label="done">☐</td></tr>`
     ).join("");
     return `<table class="data changes sheet-steps" id="${id}"><thead><tr>` +
-      `<th scope="col">step</th><th scope="col">element</th><th scope="col">before</th>` +
-      `<th scope="col">cut to</th><th scope="col">cutter</th><th scope="col">half; steel</th>` +
-      `<th scope="col">imbalance after</th><th scope="col">done</th>` +
-      `</tr></thead><tbody>${rows}</tbody></table>`;
+      `<th scope="col">step</th><th scope="col">element</th><th scope="col">now, ${
+        unitSymbol(units, "length")
+      }</th>` +
+      `<th scope="col">cut to</th><th scope="col">cutter</th><th scope="col">half</th>` +
+      `<th scope="col">steel</th><th scope="col">imbalance after</th><th scope="col">done</th>` +
+      `</tr></thead><tbody>${rows}</tbody></table>` +
+      `<p class="note">* limits not yet met after this step. “enlarge”: steel-safe, metal is removed; ADD STEEL: weld or insert first.</p>`;
   }
   const rows = changes.map((c) => {
     const t = c.after_step;
@@ -799,8 +812,14 @@ export function changeSheetHtml(opt: OptimizationResult, options: ChangeSheetOpt
       }`,
     ) +
     `</table></header>` +
-    `<div class="sheet-grid">` +
+    `<div class="sheet-grid"><div class="sheet-left">` +
     `<section class="sheet-layout"><h3>Layout after the changes</h3>${options.layout}</section>` +
+    `<section class="sheet-cautions"><h3>Cautions</h3>${cautionsHtml(a)}</section>` +
+    `<section class="signoff"><h3>Sign-off</h3><div class="sign-lines">` +
+    ["Designed by", "Checked by", "Toolmaker", "Trial shot approved"].map((who) =>
+      `<div class="sign"><span class="line"></span><span>${esc(who)} — name, date</span></div>`
+    ).join("") +
+    `</div></section></div>` +
     `<div class="sheet-side">` +
     `<section class="sheet-steps"><h3>Steps in order of work</h3><p class="muted small">Cut one step, shoot and weigh short shots, compare with the predicted imbalance, then decide on the next. Each step was simulated with every step before it.</p>${
       changeTableHtml(opt.changes, u, { id: "sheet-changes", sheet: true })
@@ -818,11 +837,5 @@ export function changeSheetHtml(opt: OptimizationResult, options: ChangeSheetOpt
       formatForce(a.clamp_force_peak_kN, u),
     ) +
     row("cold runner", formatMass(b.runner_mass_g, u), formatMass(a.runner_mass_g, u)) +
-    `</tbody></table></section>` +
-    `<section class="sheet-cautions"><h3>Cautions</h3>${cautionsHtml(a)}</section>` +
-    `<section class="signoff"><h3>Sign-off</h3><div class="sign-lines">` +
-    ["Designed by", "Checked by", "Toolmaker", "Trial shot approved"].map((who) =>
-      `<div class="sign"><span class="line"></span><span>${esc(who)} — name, date</span></div>`
-    ).join("") +
-    `</div></section></div></div></article>`;
+    `</tbody></table></section></div></div></article>`;
 }

@@ -2,17 +2,20 @@ import assert from "node:assert/strict";
 import { simulateScenario } from "../../src/network/simulate_scenario.ts";
 import { resultJson } from "../../src/report/result_json.ts";
 import type { optimizationJson } from "../../src/report/optimization_report.ts";
-import { METRIC_UNITS } from "../../src/page/display_units.ts";
+import { formatNumber, METRIC_UNITS } from "../../src/page/display_units.ts";
 import {
   cavityTableHtml,
   changeSheetHtml,
   changeSizeText,
   changeTableHtml,
+  elementTableHtml,
   fillChartSvg,
+  fillsAfterSwitchover,
   pathPressureSvg,
   pathProfiles,
   pressChartsSvg,
   summaryHtml,
+  velocityPhase,
   verdictHtml,
   warningsHtml,
 } from "../../src/page/results_view.ts";
@@ -179,4 +182,94 @@ Deno.test("path distances come with the result: a radial cavity adds its gate-to
     rel: 1e-6,
     what: "distance to the rim, mm",
   });
+});
+
+Deno.test("velocity phase: the history ends on switchover; the charts mark it and stop there", () => {
+  const r = simulated();
+  const sw = r.switchover_time_s!;
+  assert.ok(sw < r.fill_time_s!, "the demo switches over before the last cavity is full");
+  const phase = velocityPhase(r);
+  assert.equal(phase.at(-1)!.time_s, sw);
+  assert.ok(phase.every((h) => h.time_s! <= sw));
+  // the highest pressure drawn is the headline peak (peaks are taken up to switchover)
+  const drawn = Math.max(...phase.map((h) => h.feed_pressure_MPa!));
+  assertClose(drawn, r.feed_pressure_peak_MPa!, { rel: 1e-6, what: "MPa, 6 digits in JSON" });
+  const svg = fillChartSvg(r, { title: "x", switchoverPercent: 98 });
+  assert.match(svg, new RegExp(`data-mark="switchover" data-x="${sw}"`));
+  // a cavity still filling at switchover ends at its fill % then, shown in its label
+  const late = r.cavities.filter((c) => fillsAfterSwitchover(c, r));
+  assert.ok(late.length > 0);
+  for (const c of late) {
+    assert.ok(svg.includes(`>${c.id} ${formatNumber(c.fill_percent_at_switchover, 3)} %<`), c.id);
+  }
+  const press = pressChartsSvg({ kind: "simulation", result: r }, { scenario, units });
+  assert.equal((press.match(/data-mark="switchover"/g) ?? []).length, 2);
+});
+
+Deno.test("velocity phase: a switchover between two samples is interpolated onto", () => {
+  const r = simulated();
+  const h = r.history!;
+  const k = h.findIndex((x) => x.time_s! > r.switchover_time_s!);
+  const t = (h[k - 1].time_s! + h[k].time_s!) / 2;
+  const phase = velocityPhase({ ...r, switchover_time_s: t });
+  assert.equal(phase.length, k + 1);
+  assert.equal(phase.at(-1)!.time_s, t);
+  assertClose(
+    phase.at(-1)!.injected_cm3!,
+    (h[k - 1].injected_cm3! + h[k].injected_cm3!) / 2,
+    { rel: 1e-12, what: "linear between the samples" },
+  );
+});
+
+Deno.test("element table: every runner and gate with drop, shear, heating, frozen layer, freeze", () => {
+  const r = simulated();
+  const html = elementTableHtml(r, units, scenario.process.melt_temperature_C, {
+    holdTime_s: 1,
+  });
+  const channels = r.elements.filter((e) => e.kind !== "cavity");
+  for (const e of channels) {
+    for (const field of ["pressure_drop_end_MPa", "wall_shear_rate_peak_1_s", "freeze_time_s"]) {
+      assert.ok(html.includes(`data-field="${field}"`), `${e.id} ${field}`);
+    }
+    assert.ok(html.includes(`data-element="${e.id}"`), e.id);
+  }
+  // the demo's G1 freezes in 1.25 s: past a 1 s hold it is flagged, within a 2 s hold not
+  const g1 = r.freeze!.entries!.find((f) => f.id === "G1")!;
+  assert.ok(g1.freeze_time_s! > 1 && g1.freeze_time_s! < 2);
+  const row = (h: string) =>
+    h.slice(h.indexOf('data-element="G1"'), h.indexOf("</tr>", h.indexOf('data-element="G1"')));
+  assert.match(row(html), /still open when the hold ends/);
+  const longer = elementTableHtml(r, units, 250, { holdTime_s: 2 });
+  assert.doesNotMatch(row(longer), /still open/);
+  assert.match(row(longer), /seals within the hold/);
+});
+
+Deno.test("change sheet: stale marks it on screen and in print; cancelled says best design so far", () => {
+  const r = simulated();
+  const opt: OptimizationResult = {
+    format: "evenfill.optimization/1",
+    status: "cancelled",
+    reason: "no step the linear model trusts",
+    would_need: [],
+    snapping: null,
+    before: r,
+    after: r,
+    changes: [change],
+    iterations: [],
+  };
+  const options = { toolName: "T", date: "2026-12-02", layout: "", units };
+  const fresh = changeSheetHtml(opt, options);
+  assert.match(fresh, /data-stale="false"/);
+  assert.doesNotMatch(fresh, /Out of date/);
+  const stale = changeSheetHtml(opt, { ...options, stale: true });
+  assert.match(stale, /class="sheet stale"/);
+  assert.match(stale, /Out of date — run again/);
+  assert.match(fresh, /Cancelled — best design so far/);
+  for (const field of ["Tool no.", "Press", "Resin lot", "Revision"]) {
+    assert.ok(fresh.includes(field));
+  }
+  // optimizer words stay in the advanced fold of the verdict, not on the sheet
+  assert.doesNotMatch(fresh, /linear model/);
+  const verdict = verdictHtml(opt);
+  assert.ok(verdict.indexOf("linear model") > verdict.indexOf("<details"));
 });
