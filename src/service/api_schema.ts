@@ -8,35 +8,27 @@ import { z } from "zod";
 import { MaterialSchema } from "../model/material_schema.ts";
 import {
   IssueSchema,
-  JobErrorSchema,
   JobKindSchema,
-  JobProgressSchema,
   JobStatusSchema,
   ModeSchema,
-  OptimizationSchema,
   SlopeSourceSchema,
 } from "../wire/mod.ts";
 
 export {
+  ErrorSchema,
   IssueSchema,
   JobEndEventSchema,
   JobErrorSchema,
   JobKindSchema,
+  JobListSchema,
   JobProgressSchema,
+  JobSchema,
   JobStateEventSchema,
   JobStatusSchema,
+  JobSummarySchema,
   OptimizationSchema,
   ResultSchema,
 } from "../wire/mod.ts";
-
-/** Every error response. */
-export const ErrorSchema = z.object({
-  error: z.object({
-    code: z.string().describe("stable machine-readable code"),
-    message: z.string(),
-    issues: z.array(IssueSchema).optional(),
-  }),
-});
 
 export const HealthSchema = z.object({
   status: z.literal("ok"),
@@ -110,32 +102,6 @@ export const JobAcceptedSchema = z.object({
   id: z.string(),
   status: JobStatusSchema,
   created_at: z.string(),
-});
-
-export const JobSummarySchema = z.object({
-  id: z.string(),
-  kind: JobKindSchema,
-  name: z.string(),
-  status: JobStatusSchema,
-  attempts: z.number().int(),
-  created_at: z.string(),
-  started_at: z.string().nullable(),
-  finished_at: z.string().nullable(),
-  cancel_requested: z.boolean(),
-  progress: JobProgressSchema.nullable(),
-  error: JobErrorSchema.nullable(),
-});
-
-export const JobListSchema = z.object({ jobs: z.array(JobSummarySchema) });
-
-export const JobSchema = JobSummarySchema.extend({
-  mode: ModeSchema.nullable(),
-  slopes: SlopeSourceSchema.nullable(),
-  scenario_id: z.string().nullable(),
-  time_limit_s: z.number(),
-  result: OptimizationSchema.nullable().describe(
-    "evenfill.optimization/1 JSON with the before/after fill history",
-  ),
 });
 
 export const CancelSchema = z.object({ id: z.string(), status: JobStatusSchema });

@@ -20,6 +20,17 @@ export const IssueSchema = z.object({
   message: z.string().describe("what is wrong, in plain words"),
 });
 
+/** Every error body of the HTTP API: `{error: {code, message, issues?}}`. */
+export const ErrorSchema = z.object({
+  error: z.object({
+    code: z.string().describe("stable machine-readable code"),
+    message: z.string(),
+    issues: z.array(IssueSchema).optional().describe("what was wrong with the body, at JSON paths"),
+  }),
+});
+/** {@link ErrorSchema}. */
+export type ApiError = z.infer<typeof ErrorSchema>;
+
 /** One problem found in a scenario or a request: where (JSON path), a stable code, plain words. */
 export type ScenarioIssue = z.infer<typeof IssueSchema>;
 

@@ -5,8 +5,14 @@
  * @module
  */
 import { z } from "zod";
-import { JobErrorCodeSchema, JobStatusSchema } from "./enums.ts";
-import { IterationSchema } from "./optimization.ts";
+import {
+  JobErrorCodeSchema,
+  JobKindSchema,
+  JobStatusSchema,
+  ModeSchema,
+  SlopeSourceSchema,
+} from "./enums.ts";
+import { IterationSchema, OptimizationSchema } from "./optimization.ts";
 
 /** Latest progress of a running optimization: its last SLP iteration. */
 export const JobProgressSchema = IterationSchema;
@@ -40,3 +46,36 @@ export const JOB_EVENT_SCHEMAS = {
   progress: JobProgressSchema,
   end: JobEndEventSchema,
 } as const;
+
+/** A job as `GET /api/jobs` lists it: without its input and result. */
+export const JobSummarySchema = z.object({
+  id: z.string(),
+  kind: JobKindSchema,
+  name: z.string(),
+  status: JobStatusSchema,
+  attempts: z.number().int(),
+  created_at: z.string(),
+  started_at: z.string().nullable(),
+  finished_at: z.string().nullable(),
+  cancel_requested: z.boolean(),
+  progress: JobProgressSchema.nullable(),
+  error: JobErrorSchema.nullable(),
+});
+/** {@link JobSummarySchema}. */
+export type JobSummary = z.infer<typeof JobSummarySchema>;
+
+/** `GET /api/jobs`. */
+export const JobListSchema = z.object({ jobs: z.array(JobSummarySchema) });
+
+/** A job as `GET /api/jobs/{id}` returns it. */
+export const JobSchema = JobSummarySchema.extend({
+  mode: ModeSchema.nullable(),
+  slopes: SlopeSourceSchema.nullable(),
+  scenario_id: z.string().nullable(),
+  time_limit_s: z.number(),
+  result: OptimizationSchema.nullable().describe(
+    "evenfill.optimization/1 JSON with the before/after fill history",
+  ),
+});
+/** {@link JobSchema}. */
+export type Job = z.infer<typeof JobSchema>;
