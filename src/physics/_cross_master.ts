@@ -196,9 +196,25 @@ export interface MasterWall {
  * null when (n, c, x_w) lies outside the tabulated domain (then use the exact integral).
  */
 export function crossMasterWall(n: number, c: number, g: number): MasterWall | null {
-  if (!(n >= N_LO && n <= N_HI) || !(g > 0) || !Number.isFinite(g)) return null;
+  if (!crossMasterSolve(n, c, g, SCRATCH)) return null;
+  return {
+    x: SCRATCH[0],
+    stressRatio: SCRATCH[1],
+    localIndex: SCRATCH[2],
+    logSlope: SCRATCH[3],
+  };
+}
+
+const SCRATCH = new Float64Array(4);
+
+/**
+ * {@link crossMasterWall} without an allocation: writes x_w, F(x_w), ν and φ' into
+ * `out[0…3]` and returns true, or returns false outside the tabulated domain. Same numbers.
+ */
+export function crossMasterSolve(n: number, c: number, g: number, out: Float64Array): boolean {
+  if (!(n >= N_LO && n <= N_HI) || !(g > 0) || !Number.isFinite(g)) return false;
   const tables = tablesFor(masterOf(n), c);
-  if (!tables) return null;
+  if (!tables) return false;
   const m = 1 - n;
   const target = Math.log(g);
   // Newtonian start (R = −ln(c + 1)); φ ≈ s − const with slope ≈ 1, so Newton is fast.
@@ -208,7 +224,7 @@ export function crossMasterWall(n: number, c: number, g: number): MasterWall | n
       // Try once from the clamped end; a root outside the grid falls back.
       const edge = s < S_MIN ? S_MIN : S_MAX;
       const r = evalR(tables, edge);
-      if ((s < S_MIN && r + edge > target) || (s > S_MAX && r + edge < target)) return null;
+      if ((s < S_MIN && r + edge > target) || (s > S_MAX && r + edge < target)) return false;
       s = edge;
     }
     const r = evalR(tables, s);
@@ -218,17 +234,16 @@ export function crossMasterWall(n: number, c: number, g: number): MasterWall | n
     const step = (target - r - s) / slope;
     s += step;
     if (Math.abs(step) < 1e-12) {
-      if (s < S_MIN || s > S_MAX) return null;
+      if (s < S_MIN || s > S_MAX) return false;
       const x = Math.exp(s);
       const xmFinal = Math.exp(m * s);
       const nuFinal = (1 + n * xmFinal) / (1 + xmFinal);
-      return {
-        x,
-        stressRatio: x / (1 + xmFinal),
-        localIndex: nuFinal,
-        logSlope: nuFinal * (Math.exp(-evalR(tables, s)) - c),
-      };
+      out[0] = x;
+      out[1] = x / (1 + xmFinal);
+      out[2] = nuFinal;
+      out[3] = nuFinal * (Math.exp(-evalR(tables, s)) - c);
+      return true;
     }
   }
-  return null;
+  return false;
 }

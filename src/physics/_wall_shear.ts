@@ -28,7 +28,7 @@
  */
 import type { FlowCurve } from "../materials/flow_curve.ts";
 import { compositeRule, gaussLegendre } from "./_quadrature.ts";
-import { crossMasterWall } from "./_cross_master.ts";
+import { crossMasterSolve } from "./_cross_master.ts";
 
 /** Kozicki constants of a section: a, b (dimensionless, a > 0, b > 0). */
 export interface KozickiConstants {
@@ -146,6 +146,26 @@ export function wallResponse(
   constants: KozickiConstants,
   cursor?: IntegralCursor,
 ): WallResponse {
+  const out = new Float64Array(3);
+  wallResponseInto(curve, apparent, constants, cursor, out);
+  return { shearRate: out[0], stress: out[1], dStressDApparent: out[2] };
+}
+
+const MASTER = new Float64Array(4);
+
+/**
+ * {@link wallResponse} without an allocation: writes γ̇w, τw and dτw/dΓ into `out[0…2]`.
+ * Same numbers. Returns true when the exact integral was solved (the cursor, if any, then
+ * holds the new state); false when a closed form or the master curve answered and the
+ * cursor was neither read nor written.
+ */
+export function wallResponseInto(
+  curve: FlowCurve,
+  apparent: number,
+  constants: KozickiConstants,
+  cursor: IntegralCursor | undefined,
+  out: Float64Array,
+): boolean {
   const { a, b } = constants;
   const c = b / a;
   if (!(apparent >= 0) || !Number.isFinite(apparent)) {
@@ -154,36 +174,37 @@ export function wallResponse(
   const law = curve.powerLaw;
   if (apparent === 0) {
     const mu0 = curve.stressSlope(0);
+    out[0] = 0;
+    out[1] = 0;
     if (Number.isFinite(mu0) && mu0 > 0 && !(law && law.index < 1)) {
-      return { shearRate: 0, stress: 0, dStressDApparent: mu0 * (a + b) };
+      out[2] = mu0 * (a + b);
+      return false;
     }
     const at = apparentAtWall(curve, ZERO_FLOW_SHEAR_RATE, constants);
-    return {
-      shearRate: 0,
-      stress: 0,
-      dStressDApparent: (at.slope * ZERO_FLOW_SHEAR_RATE) / (at.apparent * at.logSlope),
-    };
+    out[2] = (at.slope * ZERO_FLOW_SHEAR_RATE) / (at.apparent * at.logSlope);
+    return false;
   }
   if (law) {
     // Closed form: γ̇w = ((a + b·n)/n)·Γ (Kozicki et al. 1966, eq. 26).
     const n = law.index;
     const shearRate = ((a + b * n) / n) * apparent;
     const stress = law.consistency * Math.pow(shearRate, n);
-    return { shearRate, stress, dStressDApparent: (n * stress) / apparent };
+    out[0] = shearRate;
+    out[1] = stress;
+    out[2] = (n * stress) / apparent;
+    return false;
   }
   const cross = curve.cross;
   if (cross) {
-    // Tabulated master curve (see _cross_master.ts); null outside its domain.
+    // Tabulated master curve (see _cross_master.ts); false outside its domain.
     const { zeroShearViscosity: eta0, tauStar } = cross;
-    const wall = crossMasterWall(cross.index, c, (a * apparent * eta0) / tauStar);
-    if (wall) {
-      const stress = tauStar * wall.stressRatio;
+    if (crossMasterSolve(cross.index, c, (a * apparent * eta0) / tauStar, MASTER)) {
+      const stress = tauStar * MASTER[1];
       // dτw/dΓ = f'(γ̇w)·γ̇w/(Γ·φ'), f'·γ̇w = ν·τw.
-      return {
-        shearRate: (tauStar / eta0) * wall.x,
-        stress,
-        dStressDApparent: (wall.localIndex * stress) / (apparent * wall.logSlope),
-      };
+      out[0] = (tauStar / eta0) * MASTER[0];
+      out[1] = stress;
+      out[2] = (MASTER[2] * stress) / (apparent * MASTER[3]);
+      return false;
     }
   }
   const target = Math.log(a * apparent);
@@ -223,7 +244,10 @@ export function wallResponse(
         cursor.logShear = s;
         cursor.integral = integral;
       }
-      return { shearRate: g, stress, dStressDApparent: (slope * g) / (apparent * dphi) };
+      out[0] = g;
+      out[1] = stress;
+      out[2] = (slope * g) / (apparent * dphi);
+      return true;
     }
     integral += stepIntegral(curve, s, s + step, c);
     s += step;

@@ -7,7 +7,17 @@
  */
 import type { FlowCurve } from "../materials/flow_curve.ts";
 import type { Section } from "./section.ts";
-import { checkFlowArgs, localGradient, sectionFlowData } from "./_local_gradient.ts";
+import {
+  APPARENT,
+  checkFlowArgs,
+  D_GRADIENT,
+  GRADIENT,
+  localGradientInto,
+  type SectionFlowData,
+  sectionFlowData,
+  SHEAR_RATE,
+  STRESS,
+} from "./_local_gradient.ts";
 
 /** Result of a channel law at one flow rate (SI). */
 export interface ChannelFlow {
@@ -24,6 +34,24 @@ export interface ChannelFlow {
   wallShearStress: number;
   /** dΔP/dQ, Pa·s/m³, > 0 (the Q → 0 limit at Q = 0). */
   dPressureDropDFlow: number;
+}
+
+/** Pressure drop and its flow derivative of a channel law at one flow rate (SI). */
+export interface ChannelResistance {
+  /** Pressure drop, Pa, same sign as the flow. */
+  pressureDrop: number;
+  /** dΔP/dQ, Pa·s/m³, > 0. */
+  dPressureDropDFlow: number;
+}
+
+/**
+ * A channel law of the flow rate (m³/s, either sign), its geometry and flow curve fixed:
+ * called, the full {@link ChannelFlow}; `resistance`, only ΔP and dΔP/dQ (the same numbers),
+ * which is all a network solve needs and may cost less (a taper leaves out its ends).
+ */
+export interface ChannelLaw {
+  (flowRate: number): ChannelFlow;
+  resistance(flowRate: number): ChannelResistance;
 }
 
 /** Options of {@link uniformChannelFlow}. */
@@ -72,21 +100,49 @@ export function uniformChannelFlow(
  * {@link uniformChannelFlow} as a law of the flow rate alone, the section's data (area,
  * hydraulic diameter, Kozicki constants) prepared once. Same numbers.
  */
-export function uniformChannelLaw(
-  options: UniformChannelFlowOptions,
-): (flowRate: number) => ChannelFlow {
-  const { section, length, curve } = options;
-  checkFlowArgs("uniform channel flow", 0, length);
-  const data = sectionFlowData(section);
-  return (flowRate) => {
+export function uniformChannelLaw(options: UniformChannelFlowOptions): ChannelLaw {
+  return uniformGeometryLaw(uniformChannelGeometry(options), options.curve);
+}
+
+/** A uniform channel's section data prepared for any flow curve ({@link uniformChannelGeometry}). */
+export interface UniformChannelGeometry {
+  /** Channel length, m. */
+  readonly length: number;
+  /** Area, Dh and Kozicki constants of the section, with the factors derived from them. */
+  readonly data: SectionFlowData;
+}
+
+/**
+ * The geometry half of {@link uniformChannelLaw}: the section's area, hydraulic diameter and
+ * Kozicki constants, which do not depend on the melt. Throws RangeError for a length ≤ 0 or
+ * an invalid section.
+ */
+export function uniformChannelGeometry(
+  options: Omit<UniformChannelFlowOptions, "curve">,
+): UniformChannelGeometry {
+  checkFlowArgs("uniform channel flow", 0, options.length);
+  return { length: options.length, data: sectionFlowData(options.section) };
+}
+
+const LOCAL = new Float64Array(5);
+
+/** {@link uniformChannelLaw} on a prepared geometry with flow curve `curve`. Same numbers. */
+export function uniformGeometryLaw(
+  geometry: UniformChannelGeometry,
+  curve: FlowCurve,
+): ChannelLaw {
+  const { length, data } = geometry;
+  const law = (flowRate: number): ChannelFlow => {
     checkFlowArgs("uniform channel flow", flowRate, length);
-    const local = localGradient(Math.abs(flowRate), data, curve);
+    const local = LOCAL;
+    localGradientInto(Math.abs(flowRate), data, curve, undefined, local);
     return {
-      pressureDrop: Math.sign(flowRate) * local.gradient * length,
-      wallShearRate: local.shearRate,
-      apparentWallShearRate: local.apparent,
-      wallShearStress: local.stress,
-      dPressureDropDFlow: local.dGradientDFlow * length,
+      pressureDrop: Math.sign(flowRate) * local[GRADIENT] * length,
+      wallShearRate: local[SHEAR_RATE],
+      apparentWallShearRate: local[APPARENT],
+      wallShearStress: local[STRESS],
+      dPressureDropDFlow: local[D_GRADIENT] * length,
     };
   };
+  return Object.assign(law, { resistance: law });
 }

@@ -6,7 +6,7 @@
  */
 import type { FlowCurve } from "../materials/flow_curve.ts";
 import type { ChannelFlow } from "./channel_flow.ts";
-import { checkFlowArgs, localGradient } from "./_local_gradient.ts";
+import { checkFlowArgs, flowData, localGradient } from "./_local_gradient.ts";
 import { gaussLegendre } from "./_quadrature.ts";
 import { newCursor } from "./_wall_shear.ts";
 
@@ -58,12 +58,7 @@ export function radialDiskFlow(flowRate: number, options: RadialDiskFlowOptions)
   const cursor = newCursor();
   // A ring of radius r: slit of width 2πr, area 2πrH, Dh = 2H.
   const at = (r: number) =>
-    localGradient(
-      q,
-      { area: 2 * Math.PI * r * gap, hydraulicDiameter: 2 * gap, ...SLIT },
-      curve,
-      cursor,
-    );
+    localGradient(q, flowData(2 * Math.PI * r * gap, 2 * gap, SLIT.a, SLIT.b), curve, cursor);
   const span = Math.log(frontRadius / gateRadius);
   const panels = Math.max(1, Math.ceil(span / PANEL_WIDTH));
   const width = span / panels;

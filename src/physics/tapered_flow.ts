@@ -5,11 +5,22 @@
  * @module
  */
 import type { FlowCurve } from "../materials/flow_curve.ts";
-import type { ChannelFlow } from "./channel_flow.ts";
+import type { ChannelFlow, ChannelLaw, ChannelResistance } from "./channel_flow.ts";
 import { interpolateSection, type Section } from "./section.ts";
-import { checkFlowArgs, localGradient, sectionFlowData } from "./_local_gradient.ts";
+import {
+  APPARENT,
+  checkFlowArgs,
+  D_GRADIENT,
+  GRADIENT,
+  localGradient,
+  localGradientInto,
+  type SectionFlowData,
+  sectionFlowData,
+  SHEAR_RATE,
+  STRESS,
+} from "./_local_gradient.ts";
 import { gaussLegendre } from "./_quadrature.ts";
-import { newCursor } from "./_wall_shear.ts";
+import { type IntegralCursor, newCursor } from "./_wall_shear.ts";
 
 /** Options of {@link taperedChannelFlow}. */
 export interface TaperedChannelFlowOptions {
@@ -56,11 +67,36 @@ export function taperedChannelFlow(
  * {@link taperedChannelFlow} as a law of the flow rate alone: the geometry (quadrature
  * nodes and each node's section data) is prepared once, so a solver that calls the law
  * many times at one geometry pays for it once. Same numbers as {@link taperedChannelFlow}.
+ * Its `resistance` integrates the quadrature nodes only (the ends serve the reported wall
+ * shear alone), and the full law at the flow of the last `resistance` adds just the ends.
  */
-export function taperedChannelLaw(
-  options: TaperedChannelFlowOptions,
-): (flowRate: number) => ChannelFlow {
-  const { entry, exit, length, curve } = options;
+export function taperedChannelLaw(options: TaperedChannelFlowOptions): ChannelLaw {
+  return taperedGeometryLaw(taperedChannelGeometry(options), options.curve);
+}
+
+/** A taper's quadrature prepared for any flow curve ({@link taperedChannelGeometry}). */
+export interface TaperedChannelGeometry {
+  /** Element length, m. */
+  readonly length: number;
+  /** Filled length, m. */
+  readonly filledLength: number;
+  /** Section data at the entry and at the end of the filled part. */
+  readonly first: SectionFlowData;
+  readonly last: SectionFlowData;
+  /** Quadrature weights (m) and each node's section data, toward the narrow end. */
+  readonly weights: Float64Array;
+  readonly nodes: readonly SectionFlowData[];
+}
+
+/**
+ * The geometry half of {@link taperedChannelLaw}: quadrature nodes and weights of the filled
+ * part and each node's section data (area, Dh, Kozicki constants), which do not depend on the
+ * melt. Throws RangeError for a length ≤ 0 or a filled length outside [0, length].
+ */
+export function taperedChannelGeometry(
+  options: Omit<TaperedChannelFlowOptions, "curve">,
+): TaperedChannelGeometry {
+  const { entry, exit, length } = options;
   checkFlowArgs("tapered channel flow", 0, length);
   const filled = options.filledLength ?? length;
   if (!(filled >= 0 && filled <= length)) {
@@ -71,25 +107,21 @@ export function taperedChannelLaw(
   const dataAt = (x: number) => sectionFlowData(interpolateSection(entry, exit, x / length));
   const firstData = dataAt(0);
   const lastData = filled > 0 ? dataAt(filled) : firstData;
-  if (filled === 0) {
-    return (flowRate) => {
-      checkFlowArgs("tapered channel flow", flowRate, length);
-      const first = localGradient(Math.abs(flowRate), firstData, curve, newCursor());
-      return {
-        pressureDrop: 0,
-        wallShearRate: first.shearRate,
-        apparentWallShearRate: first.apparent,
-        wallShearStress: first.stress,
-        dPressureDropDFlow: 0,
-      };
-    };
-  }
+  const prepared = {
+    length,
+    filledLength: filled,
+    first: firstData,
+    last: lastData,
+    weights: new Float64Array(0),
+    nodes: [] as SectionFlowData[],
+  };
+  if (filled === 0) return prepared;
 
   // Substitution x = filled·expm1(u − u0)/expm1(u1 − u0), u = ln Dh at a linear Dh: the
   // integrand becomes nearly a pure exponential in u (a power law gives exactly one), so
   // Gauss–Legendre converges fast. Panels no wider than ln(PANEL_RATIO) in u.
-  const d0 = sectionFlowData(entry).hydraulicDiameter;
-  const d1 = sectionFlowData(interpolateSection(entry, exit, filled / length)).hydraulicDiameter;
+  const d0 = firstData.hydraulicDiameter;
+  const d1 = lastData.hydraulicDiameter;
   const span = Math.log(d1 / d0);
   const panels = Math.max(1, Math.ceil(Math.abs(span) / Math.log(PANEL_RATIO) - 1e-9));
   const scale = span === 0 ? 0 : filled / Math.expm1(span);
@@ -113,28 +145,114 @@ export function taperedChannelLaw(
   // Walk toward the narrow end so the shared quadrature cursor only moves up in shear.
   const order = xs.map((_, i) => i);
   if (d1 > d0) order.reverse();
-  const nodes = order.map((i) => ({ weight: ws[i], data: dataAt(xs[i]) }));
-  return (flowRate) => {
+  prepared.weights = Float64Array.from(order, (i) => ws[i]);
+  prepared.nodes = order.map((i) => dataAt(xs[i]));
+  return prepared;
+}
+
+/** Scratch of the taper laws (no law calls another while it evaluates). */
+const LOCAL = new Float64Array(5);
+const CURSOR: IntegralCursor = newCursor();
+const ENDS = new Float64Array(3);
+
+/** {@link taperedChannelLaw} on a prepared geometry with flow curve `curve`. Same numbers. */
+export function taperedGeometryLaw(
+  geometry: TaperedChannelGeometry,
+  curve: FlowCurve,
+): ChannelLaw {
+  const { length, filledLength: filled, first: firstData, last: lastData } = geometry;
+  if (filled === 0) {
+    const empty = (flowRate: number): ChannelFlow => {
+      checkFlowArgs("tapered channel flow", flowRate, length);
+      const first = localGradient(Math.abs(flowRate), firstData, curve, newCursor());
+      return {
+        pressureDrop: 0,
+        wallShearRate: first.shearRate,
+        apparentWallShearRate: first.apparent,
+        wallShearStress: first.stress,
+        dPressureDropDFlow: 0,
+      };
+    };
+    return Object.assign(empty, { resistance: empty });
+  }
+  const { weights, nodes: nodeData } = geometry;
+  const local = LOCAL;
+  const cursor = CURSOR;
+  // The quadrature sums and the node of highest wall shear (first of the largest) at `sumsAt`.
+  let sumsAt = NaN;
+  let pressure = 0;
+  let slope = 0;
+  let peakShear = -Infinity;
+  let peakApparent = NaN;
+  let peakStress = NaN;
+  /** The sums at q, the cursor as left by whatever ran before; true if a node needed the integral. */
+  const integrate = (q: number): boolean => {
+    let integral = false;
+    pressure = 0;
+    slope = 0;
+    peakShear = -Infinity;
+    for (let i = 0; i < weights.length; i++) {
+      if (localGradientInto(q, nodeData[i], curve, cursor, local)) integral = true;
+      pressure += weights[i] * local[GRADIENT];
+      slope += weights[i] * local[D_GRADIENT];
+      if (local[SHEAR_RATE] > peakShear) {
+        peakShear = local[SHEAR_RATE];
+        peakApparent = local[APPARENT];
+        peakStress = local[STRESS];
+      }
+    }
+    sumsAt = integral ? NaN : q;
+    return integral;
+  };
+  /** The wall at both ends into `ends` (the one of higher shear, the entry on a tie). */
+  const ends = ENDS;
+  const atEnds = (q: number) => {
+    localGradientInto(q, firstData, curve, cursor, local);
+    const firstShear = local[SHEAR_RATE];
+    const firstApparent = local[APPARENT];
+    const firstStress = local[STRESS];
+    localGradientInto(q, lastData, curve, cursor, local);
+    if (firstShear >= local[SHEAR_RATE]) {
+      ends[0] = firstShear;
+      ends[1] = firstApparent;
+      ends[2] = firstStress;
+    } else {
+      ends[0] = local[SHEAR_RATE];
+      ends[1] = local[APPARENT];
+      ends[2] = local[STRESS];
+    }
+  };
+  // A fresh cursor, ends first, then the nodes: the order of taperedChannelFlow. The nodes'
+  // values depend on the cursor only when one of them needs the exact integral (a curve
+  // without closed form or master curve); otherwise they may be summed alone.
+  const inOrder = (q: number) => {
+    cursor.curve = null;
+    atEnds(q);
+    integrate(q);
+    sumsAt = NaN;
+  };
+  const full = (flowRate: number): ChannelFlow => {
     checkFlowArgs("tapered channel flow", flowRate, length);
     const q = Math.abs(flowRate);
-    const cursor = newCursor();
-    const first = localGradient(q, firstData, curve, cursor);
-    const last = localGradient(q, lastData, curve, cursor);
-    let best = first.shearRate >= last.shearRate ? first : last;
-    let pressure = 0;
-    let slope = 0;
-    for (const { weight, data } of nodes) {
-      const local = localGradient(q, data, curve, cursor);
-      pressure += weight * local.gradient;
-      slope += weight * local.dGradientDFlow;
-      if (local.shearRate > best.shearRate) best = local;
-    }
+    if (q === sumsAt) {
+      cursor.curve = null;
+      atEnds(q);
+    } else inOrder(q);
+    const interior = peakShear > ends[0];
     return {
       pressureDrop: Math.sign(flowRate) * pressure,
-      wallShearRate: best.shearRate,
-      apparentWallShearRate: best.apparent,
-      wallShearStress: best.stress,
+      wallShearRate: interior ? peakShear : ends[0],
+      apparentWallShearRate: interior ? peakApparent : ends[1],
+      wallShearStress: interior ? peakStress : ends[2],
       dPressureDropDFlow: slope,
     };
   };
+  const resistance = (flowRate: number): ChannelResistance => {
+    checkFlowArgs("tapered channel flow", flowRate, length);
+    const q = Math.abs(flowRate);
+    cursor.curve = null;
+    if (integrate(q)) inOrder(q);
+    return { pressureDrop: Math.sign(flowRate) * pressure, dPressureDropDFlow: slope };
+  };
+  return Object.assign(full, { resistance });
 }

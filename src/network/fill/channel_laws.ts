@@ -1,11 +1,17 @@
 import type { FlowCurve } from "../../materials/flow_curve.ts";
 import {
   type ChannelFlow,
+  type ChannelLaw,
+  type ChannelResistance,
   radialDiskFlow,
   type Section,
   shrinkSection,
-  taperedChannelLaw,
-  uniformChannelLaw,
+  type TaperedChannelGeometry,
+  taperedChannelGeometry,
+  taperedGeometryLaw,
+  type UniformChannelGeometry,
+  uniformChannelGeometry,
+  uniformGeometryLaw,
 } from "../../physics/mod.ts";
 import { frozenLayerThickness } from "../../physics/thermal.ts";
 import { taperedFilledLength } from "../_fill_geometry.ts";
@@ -60,18 +66,20 @@ export function frozenAt(
 
 /** A branch law and the inputs it was built from (see {@link BranchLawCache}). */
 interface KeptLaw {
-  temperature: number;
-  pressure: number;
   delta: number;
   volume: number;
-  law: (flow: number) => ChannelFlow;
+  geometry: BranchGeometry;
+  temperature: number;
+  pressure: number;
+  law: ChannelLaw;
 }
 
 /**
  * The last law built for each branch of one fill (element × side), with its inputs. A branch
- * law is a pure function of its element, the melt temperature and pressure its flow curve is
- * taken at, its frozen layer and its filled volume; when all four are the same as last time
- * the same law (with its memory of recent flows, {@link recentFlows}) serves again.
+ * law is a pure function of its element, its frozen layer and filled volume (its geometry)
+ * and of the melt temperature and pressure its flow curve is taken at; when all are the same
+ * as last time the same law (with its memory of recent flows, {@link recentFlows}) serves
+ * again, and when only the melt changed the prepared geometry does.
  */
 export type BranchLawCache = (KeptLaw | undefined)[];
 
@@ -83,27 +91,52 @@ export function branchLawCache(elementCount: number): BranchLawCache {
 /** How many recent (flow, result) pairs a cached law remembers. */
 const RECENT = 4;
 
-/**
- * `law` remembering its last {@link RECENT} results: a flow it has seen (the same float, same
- * sign of zero) gets the same result object back. Callers never mutate a ChannelFlow.
- */
-export function recentFlows(law: (flow: number) => ChannelFlow): (flow: number) => ChannelFlow {
-  const flows = new Float64Array(RECENT);
-  const results: ChannelFlow[] = [];
-  let count = 0;
-  let next = 0;
-  return (flow) => {
-    for (let i = 0; i < count; i++) {
+/** A ring of the last {@link RECENT} (flow, result) pairs. */
+class Recent<T> {
+  private readonly flows: number[] = [];
+  private readonly results: T[] = [];
+  private next = 0;
+
+  /** The result kept for this flow (the same float, the same sign of zero), or undefined. */
+  find(flow: number): T | undefined {
+    const flows = this.flows;
+    for (let i = 0; i < flows.length; i++) {
       const f = flows[i];
-      if (f === flow && (f !== 0 || 1 / f === 1 / flow)) return results[i];
+      if (f === flow && (f !== 0 || 1 / f === 1 / flow)) return this.results[i];
     }
-    const result = law(flow);
-    flows[next] = flow;
-    results[next] = result;
-    next = (next + 1) % RECENT;
-    if (count < RECENT) count++;
+    return undefined;
+  }
+
+  keep(flow: number, result: T): T {
+    this.flows[this.next] = flow;
+    this.results[this.next] = result;
+    this.next = (this.next + 1) % RECENT;
     return result;
+  }
+}
+
+/**
+ * `law` remembering its last {@link RECENT} results and resistances: a flow it has seen gets
+ * the same result object back (a full result also serves as the resistance). Same numbers as
+ * `law`; callers never mutate a ChannelFlow.
+ */
+export function recentFlows(law: ChannelLaw): ChannelLaw {
+  const results = new Recent<ChannelFlow>();
+  const resistances = new Recent<ChannelResistance>();
+  const full = (flow: number): ChannelFlow => {
+    const known = results.find(flow);
+    if (known) return known;
+    const result = law(flow);
+    resistances.keep(flow, result);
+    return results.keep(flow, result);
   };
+  const resistance = (flow: number): ChannelResistance => {
+    const known = resistances.find(flow) ?? results.find(flow);
+    if (known) return known;
+    if (law.resistance === law) return full(flow);
+    return resistances.keep(flow, law.resistance(flow));
+  };
+  return Object.assign(full, { resistance });
 }
 
 function curveFor(ctx: FillContext, state: FillState, e: NetworkElement): FlowCurve {
@@ -121,24 +154,34 @@ export function cachedBranchLaw(
   state: FillState,
   branch: Branch,
   at: { t: number; volumes: Float64Array; cache: BranchLawCache },
-): (flow: number) => ChannelFlow {
+): ChannelLaw {
   const { t, volumes, cache } = at;
   const e = ctx.elements[branch.element];
   const temperature = ctx.process.isothermal ? NaN : state.temperature[e.index];
   const pressure = ctx.process.isothermal ? NaN : Math.max(0, state.meanPressure[e.index]);
-  const delta = frozenAt(ctx, state, e, t, branch.side);
+  let delta: number;
+  try {
+    delta = frozenAt(ctx, state, e, t, branch.side);
+  } catch (error) {
+    curveFor(ctx, state, e); // branchLaw's order: a melt the curve refuses is reported first
+    throw error;
+  }
   const volume = branch.side === -1
     ? e.volume
     : Math.min(Math.max(volumes[2 * e.index + branch.side], 0), e.volume);
   const slot = 3 * e.index + branch.side + 1;
   const kept = cache[slot];
+  const sameGeometry = kept !== undefined && kept.delta === delta && kept.volume === volume;
   if (
-    kept !== undefined && kept.delta === delta && kept.volume === volume &&
-    (ctx.process.isothermal ||
-      (kept.temperature === temperature && kept.pressure === pressure))
+    sameGeometry &&
+    (ctx.process.isothermal || (kept.temperature === temperature && kept.pressure === pressure))
   ) return kept.law;
-  const law = recentFlows(lawOf(ctx, state, { e, side: branch.side, delta, volume }));
-  cache[slot] = { temperature, pressure, delta, volume, law };
+  const curve = curveFor(ctx, state, e);
+  const geometry = sameGeometry
+    ? kept.geometry
+    : branchGeometry(e, { side: branch.side, delta, volume });
+  const law = recentFlows(geometryLaw(geometry, curve));
+  cache[slot] = { delta, volume, geometry, temperature, pressure, law };
   return law;
 }
 
@@ -154,30 +197,35 @@ export function branchLaw(
   t: number,
   volumes: Float64Array,
   element?: NetworkElement,
-): (flow: number) => ChannelFlow {
+): ChannelLaw {
   const e = element ?? ctx.elements[branch.element];
+  const curve = curveFor(ctx, state, e);
   const delta = frozenAt(ctx, state, e, t, branch.side);
   const volume = branch.side === -1
     ? e.volume
     : Math.min(Math.max(volumes[2 * e.index + branch.side], 0), e.volume);
-  return lawOf(ctx, state, { e, side: branch.side, delta, volume });
+  return geometryLaw(branchGeometry(e, { side: branch.side, delta, volume }), curve);
 }
 
-/** The law of element `e` filled from `side` with `volume` (m³) and frozen layer `delta` (m). */
-function lawOf(
-  ctx: FillContext,
-  state: FillState,
-  at: { e: NetworkElement; side: -1 | 0 | 1; delta: number; volume: number },
-): (flow: number) => ChannelFlow {
-  const { e, side, delta, volume: v } = at;
-  const curve = curveFor(ctx, state, e);
+/** A branch's geometry prepared for its law: what does not depend on the melt. */
+type BranchGeometry =
+  | { type: "uniform"; geometry: UniformChannelGeometry }
+  | { type: "tapered"; geometry: TaperedChannelGeometry }
+  | { type: "radial"; gap: number; gateRadius: number; frontRadius: number };
+
+/** The geometry of element `e` filled from `side` with `volume` (m³) and frozen layer `delta` (m). */
+function branchGeometry(
+  e: NetworkElement,
+  at: { side: -1 | 0 | 1; delta: number; volume: number },
+): BranchGeometry {
+  const { side, delta, volume: v } = at;
   const g = e.geometry;
   const fraction = v / e.volume;
   switch (g.type) {
     case "uniform": {
       const section = delta > 0 ? shrinkSection(g.section, delta) : g.section;
       const length = Math.max(fraction, MIN_FILLED_FRACTION) * g.length;
-      return uniformChannelLaw({ section, length, curve });
+      return { type: "uniform", geometry: uniformChannelGeometry({ section, length }) };
     }
     case "tapered": {
       const [entry, exit] = side === 1 ? [g.exit, g.entry] : [g.entry, g.exit];
@@ -187,19 +235,21 @@ function lawOf(
       const open = (s: Section) => (delta > 0 ? shrinkSection(s, delta) : s);
       const shrunkEntry = open(entry);
       const shrunkExit = open(exit);
-      return taperedChannelLaw({
-        entry: shrunkEntry,
-        exit: shrunkExit,
-        length: g.length,
-        filledLength,
-        curve,
-      });
+      return {
+        type: "tapered",
+        geometry: taperedChannelGeometry({
+          entry: shrunkEntry,
+          exit: shrunkExit,
+          length: g.length,
+          filledLength,
+        }),
+      };
     }
     case "strip": {
-      // The front advances along the flow length in a slit of the strip's width.
+      // physics.md §4: the front advances along the flow length in a slit of the strip's width.
       const section: Section = { kind: "slit", width: g.width, gap: g.gap - 2 * delta };
       const length = Math.max(fraction, MIN_FILLED_FRACTION) * g.flowLength;
-      return uniformChannelLaw({ section, length, curve });
+      return { type: "uniform", geometry: uniformChannelGeometry({ section, length }) };
     }
     case "radial": {
       const r0 = g.gateRadius;
@@ -207,8 +257,22 @@ function lawOf(
         Math.sqrt(r0 * r0 + v / (Math.PI * g.gap)),
         r0 + MIN_FILLED_FRACTION * (g.maxRadius - r0),
       );
-      const gap = g.gap - 2 * delta;
-      return (flow) => radialDiskFlow(flow, { gap, gateRadius: r0, frontRadius, curve });
+      return { type: "radial", gap: g.gap - 2 * delta, gateRadius: r0, frontRadius };
+    }
+  }
+}
+
+/** The law of a prepared branch geometry with flow curve `curve`. */
+function geometryLaw(geometry: BranchGeometry, curve: FlowCurve): ChannelLaw {
+  switch (geometry.type) {
+    case "uniform":
+      return uniformGeometryLaw(geometry.geometry, curve);
+    case "tapered":
+      return taperedGeometryLaw(geometry.geometry, curve);
+    case "radial": {
+      const { gap, gateRadius, frontRadius } = geometry;
+      const law = (flow: number) => radialDiskFlow(flow, { gap, gateRadius, frontRadius, curve });
+      return Object.assign(law, { resistance: law });
     }
   }
 }

@@ -69,7 +69,7 @@ export function solveInstant(
       to = next++;
       fixedPressure.set(to, 0);
     } else to = assembly.local[br.b];
-    return { from: assembly.local[br.a], to, law: laws[k] };
+    return { from: assembly.local[br.a], to, law: laws[k].resistance };
   });
   const solution = solveHydraulics(
     {
