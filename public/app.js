@@ -2464,6 +2464,7 @@
     }
   }
   function setupForm() {
+    $("settings").addEventListener("submit", (e) => e.preventDefault());
     for (const field of FORM_FIELDS) {
       const el = $(`form-${field}`);
       el.addEventListener("change", () => {

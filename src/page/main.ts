@@ -415,6 +415,7 @@ function refreshForm(force: boolean, value: unknown = currentObject()) {
 }
 
 function setupForm() {
+  $("settings").addEventListener("submit", (e) => e.preventDefault());
   for (const field of FORM_FIELDS) {
     const el = $<HTMLInputElement | HTMLSelectElement>(`form-${field}`);
     el.addEventListener("change", () => {
