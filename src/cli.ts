@@ -22,7 +22,6 @@ import { optimizeBalance } from "./optimize/balance.ts";
 import { optimizationJson, optimizationText } from "./report/optimization_report.ts";
 import { changeSheetCsv } from "./report/change_sheet_csv.ts";
 import { windowJson } from "./report/window_json.ts";
-import { changeList } from "./optimize/change_list.ts";
 import {
   FIT_MATERIAL_OPTIONS,
   FIT_MATERIAL_USAGE,
@@ -341,7 +340,7 @@ export async function main(argv: readonly string[]): Promise<number> {
         console.error(`Optimization failed (${result.code}): ${result.message}`);
         return 3;
       }
-      const changes = changeList(result.outcome);
+      const changes = result.outcome.changes?.steps ?? [];
       if (args.flags.has("csv")) {
         writeAllSync(Deno.stdout, new TextEncoder().encode(changeSheetCsv(changes)));
       } else if (args.flags.has("json")) {

@@ -1,4 +1,4 @@
-import type { Gate, Runner, Scenario } from "../model/scenario_schema.ts";
+import type { Cavity, Gate, Runner, Scenario } from "../model/scenario_schema.ts";
 import { pathText, type ScenarioIssue } from "../model/parse_scenario.ts";
 import { cm2ToM2, cm3ToM3, degToRad, mmToM } from "../model/units.ts";
 import { partingPlaneWidth, type Section, validateSection } from "../physics/mod.ts";
@@ -28,8 +28,10 @@ export const TUNNEL_TAPER_DEFAULT_DEG = 30;
  */
 export function runnerSection(
   runner: Pick<Runner, "shape" | "diameter_mm" | "depth_mm" | "width_mm">,
+  /** The diameter to use instead of the scenario's, m (a design size). */
+  diameter: number = mmToM(runner.diameter_mm),
 ): Section {
-  const d = mmToM(runner.diameter_mm);
+  const d = diameter;
   switch (runner.shape) {
     case "round":
       return { kind: "circle", radius: d / 2 };
@@ -74,8 +76,11 @@ function tunnelSection(gate: Extract<Gate, { type: "tunnel" }>, diameter: number
   }
 }
 
-/** Geometry of a gate from its scenario fields (SI). */
-export function gateGeometry(gate: Gate): ElementGeometry {
+/**
+ * Geometry of a gate from its scenario fields (SI); `size` replaces the scenario's
+ * adjustable dimension (edge thickness, pin or tunnel tip diameter), m.
+ */
+export function gateGeometry(gate: Gate, size: number = gateSize(gate)): ElementGeometry {
   switch (gate.type) {
     case "edge":
       return {
@@ -83,18 +88,18 @@ export function gateGeometry(gate: Gate): ElementGeometry {
         section: {
           kind: "rectangle",
           width: mmToM(gate.width_mm),
-          height: mmToM(gate.thickness_mm),
+          height: size,
         },
         length: mmToM(gate.land_mm),
       };
     case "pin":
       return {
         type: "uniform",
-        section: { kind: "circle", radius: mmToM(gate.diameter_mm) / 2 },
+        section: { kind: "circle", radius: size / 2 },
         length: mmToM(gate.land_mm),
       };
     case "tunnel": {
-      const tip = mmToM(gate.diameter_mm);
+      const tip = size;
       const length = mmToM(gate.length_mm);
       const angle = degToRad(gate.taper_angle_deg ?? TUNNEL_TAPER_DEFAULT_DEG);
       const entry = gate.entry_diameter_mm !== undefined
@@ -110,9 +115,81 @@ export function gateGeometry(gate: Gate): ElementGeometry {
   }
 }
 
-/** The size a gate's freeze is governed by: edge thickness, or the tip diameter, m. */
-function gateThickness(gate: Gate): number {
+/**
+ * A gate's adjustable size, which also governs its freeze: edge thickness, or the pin or
+ * tunnel tip diameter, m.
+ */
+export function gateSize(gate: Gate): number {
   return mmToM(gate.type === "edge" ? gate.thickness_mm : gate.diameter_mm);
+}
+
+/** What a runner's size sets in its network element (the rest is topology). */
+export type SizedFields = Pick<
+  NetworkElement,
+  "geometry" | "volume" | "projectedArea" | "thickness"
+>;
+
+/** Geometry, volume, projected area and thickness of a runner of diameter `diameter` (m). */
+export function runnerFields(runner: Runner, length: number, diameter: number): SizedFields {
+  const section = runnerSection(runner, diameter);
+  const geometry: ElementGeometry = { type: "uniform", section, length };
+  return {
+    geometry,
+    volume: geometryVolume(geometry),
+    projectedArea: partingPlaneWidth(section) * length,
+    thickness: diameter,
+  };
+}
+
+/** Geometry, volume, projected area and thickness of a gate of size `size` (m, see {@link gateSize}). */
+export function gateFields(gate: Gate, size: number): SizedFields {
+  const geometry = gateGeometry(gate, size);
+  const width = geometry.type === "uniform"
+    ? partingPlaneWidth(geometry.section)
+    : partingPlaneWidth((geometry as { entry: Section }).entry);
+  const length = geometry.type === "uniform" || geometry.type === "tapered" ? geometry.length : 0;
+  return {
+    geometry,
+    volume: geometryVolume(geometry),
+    // A tunnel gate runs below the parting plane, into the cavity wall.
+    projectedArea: gate.type === "tunnel" ? 0 : width * length,
+    thickness: size,
+  };
+}
+
+/**
+ * Flow geometry of a cavity. A radial cavity without a stated gate radius starts its
+ * disc at half its first gate's thickness or half its wall, whichever is larger.
+ */
+export function cavityGeometry(cavity: Cavity, firstGateThickness: number): ElementGeometry {
+  const volume = cm3ToM3(cavity.volume_cm3);
+  const wall = mmToM(cavity.wall_mm);
+  if (cavity.fill_pattern === "radial") {
+    const gateRadius = cavity.gate_radius_mm !== undefined
+      ? mmToM(cavity.gate_radius_mm)
+      : Math.max(firstGateThickness / 2, wall / 2);
+    const maxRadius = Math.sqrt(gateRadius * gateRadius + volume / (Math.PI * wall));
+    return { type: "radial", gap: wall, gateRadius, maxRadius };
+  }
+  const flowLength = mmToM(cavity.flow_length_mm!);
+  return { type: "strip", width: volume / (wall * flowLength), gap: wall, flowLength };
+}
+
+/** Cavity, feed-system and cold-runner volumes of a list of elements, m³. */
+export function networkVolumes(
+  elements: readonly NetworkElement[],
+): Pick<FeedNetwork, "feedSystemVolume" | "coldRunnerVolume" | "cavityVolume"> {
+  let feedSystemVolume = 0;
+  let coldRunnerVolume = 0;
+  let cavityVolume = 0;
+  for (const e of elements) {
+    if (e.kind === "cavity") cavityVolume += e.volume;
+    else {
+      feedSystemVolume += e.volume;
+      if (!e.heated) coldRunnerVolume += e.volume;
+    }
+  }
+  return { feedSystemVolume, coldRunnerVolume, cavityVolume };
 }
 
 /**
@@ -218,16 +295,13 @@ export function buildNetwork(scenario: Scenario): BuildNetworkResult {
     const length = r.length_mm !== undefined
       ? mmToM(r.length_mm)
       : Math.hypot(nodes[from].x - nodes[to].x, nodes[from].y - nodes[to].y);
-    const section = runnerSection(r);
     add({
       id: r.id,
       kind: "runner",
       from,
       to,
-      geometry: { type: "uniform", section, length },
+      ...runnerFields(r, length, mmToM(r.diameter_mm)),
       heated: false,
-      projectedArea: partingPlaneWidth(section) * length,
-      thickness: mmToM(r.diameter_mm),
       cavity: -1,
     });
   }
@@ -241,21 +315,13 @@ export function buildNetwork(scenario: Scenario): BuildNetworkResult {
   const gatesOf: number[][] = scenario.cavities.map(() => []);
   for (const g of scenario.gates) {
     const k = cavityIndex.get(g.cavity)!;
-    const geometry = gateGeometry(g);
-    const width = geometry.type === "uniform"
-      ? partingPlaneWidth(geometry.section)
-      : partingPlaneWidth((geometry as { entry: Section }).entry);
-    const length = geometry.type === "uniform" || geometry.type === "tapered" ? geometry.length : 0;
     gatesOf[k].push(add({
       id: g.id,
       kind: "gate",
       from: byId.get(g.from)!,
       to: cavityNodes[k],
-      geometry,
+      ...gateFields(g, gateSize(g)),
       heated: false,
-      // A tunnel gate runs below the parting plane, into the cavity wall.
-      projectedArea: g.type === "tunnel" ? 0 : width * length,
-      thickness: gateThickness(g),
       cavity: k,
     }));
   }
@@ -263,24 +329,12 @@ export function buildNetwork(scenario: Scenario): BuildNetworkResult {
   const cavities: NetworkCavity[] = scenario.cavities.map((c, k) => {
     const volume = cm3ToM3(c.volume_cm3);
     const wall = mmToM(c.wall_mm);
-    let geometry: ElementGeometry;
-    if (c.fill_pattern === "radial") {
-      const firstGate = elements[gatesOf[k][0]];
-      const gateRadius = c.gate_radius_mm !== undefined
-        ? mmToM(c.gate_radius_mm)
-        : Math.max(firstGate.thickness / 2, wall / 2);
-      const maxRadius = Math.sqrt(gateRadius * gateRadius + volume / (Math.PI * wall));
-      geometry = { type: "radial", gap: wall, gateRadius, maxRadius };
-    } else {
-      const flowLength = mmToM(c.flow_length_mm!);
-      geometry = { type: "strip", width: volume / (wall * flowLength), gap: wall, flowLength };
-    }
     const element = add({
       id: c.id,
       kind: "cavity",
       from: cavityNodes[k],
       to: -1,
-      geometry,
+      geometry: cavityGeometry(c, elements[gatesOf[k][0]]?.thickness ?? 0),
       volume,
       heated: false,
       projectedArea: cm2ToM2(c.projected_area_cm2),
@@ -301,28 +355,9 @@ export function buildNetwork(scenario: Scenario): BuildNetworkResult {
   const issues = reachability(nodes, elements, inlet, scenario);
   if (issues.length > 0) return { ok: false, issues };
 
-  let feedSystemVolume = 0;
-  let coldRunnerVolume = 0;
-  let cavityVolume = 0;
-  for (const e of elements) {
-    if (e.kind === "cavity") cavityVolume += e.volume;
-    else {
-      feedSystemVolume += e.volume;
-      if (!e.heated) coldRunnerVolume += e.volume;
-    }
-  }
   return {
     ok: true,
-    network: {
-      nodes,
-      elements,
-      cavities,
-      inlet,
-      feed: feedIndex,
-      feedSystemVolume,
-      coldRunnerVolume,
-      cavityVolume,
-    },
+    network: { nodes, elements, cavities, inlet, feed: feedIndex, ...networkVolumes(elements) },
   };
 }
 

@@ -145,18 +145,60 @@ export function runScenario(scenario: Scenario, options: RunScenarioOptions = {}
 function runValidated(scenario: Scenario, options: RunScenarioOptions): RunOutcome {
   const built = buildNetwork(scenario);
   if (!built.ok) return { ok: false, code: "invalid_scenario", issues: built.issues };
-  const network = built.network;
+  const setup = runSetup(scenario);
+  const fill = fillOfNetwork(scenario, built.network, setup, options);
+  if (!fill.ok) return fill;
+  return { ok: true, run: completeRun(scenario, built.network, setup, fill.process, fill.fill) };
+}
+
+/** What a run of a scenario needs besides its network, resolved once (the optimizer reuses it). */
+export interface RunSetup {
+  material: Material;
+  melt: MeltModel;
+}
+
+/** The material and melt model of a validated scenario. */
+export function runSetup(scenario: Scenario): RunSetup {
   const material = resolveMaterial(scenario);
+  return { material, melt: meltModelOf(material) };
+}
+
+/** Outcome of {@link fillOfNetwork}: the fill and the process it ran, or a failure as data. */
+export type NetworkFillOutcome =
+  | { ok: true; fill: FillResult; process: FillProcess }
+  | Extract<RunOutcome, { ok: false; code: "simulation_failed" | "stopped" }>;
+
+/**
+ * The fill of `network` under `scenario`'s process: the network may carry sizes other than
+ * the scenario's own (the optimizer's designs, `optimize/sized_network.ts`), everything else
+ * comes from the scenario. A RangeError from the physics becomes `simulation_failed`.
+ */
+export function fillOfNetwork(
+  scenario: Scenario,
+  network: FeedNetwork,
+  setup: RunSetup,
+  options: RunScenarioOptions = {},
+): NetworkFillOutcome {
   const process = processOf(scenario, network);
-  const fill = simulateFill(network, {
-    melt: meltModelOf(material),
-    process,
-    onProgress: options.onProgress,
-    tangent: options.tangent,
-    signal: options.signal,
-    deadline: options.deadline,
-    sampleVolumes: options.sampleVolumes,
-  });
+  let fill: FillResult;
+  try {
+    fill = simulateFill(network, {
+      melt: setup.melt,
+      process,
+      onProgress: options.onProgress,
+      tangent: options.tangent,
+      signal: options.signal,
+      deadline: options.deadline,
+      sampleVolumes: options.sampleVolumes,
+    });
+  } catch (error) {
+    if (!(error instanceof RangeError)) throw error;
+    return {
+      ok: false,
+      code: "simulation_failed",
+      message: `The simulation cannot go on with these values: ${error.message}`,
+    };
+  }
   const stop = fill.diagnostics.stoppedBecause;
   if (stop === "solver_failure") {
     return { ok: false, code: "simulation_failed", message: fill.diagnostics.message };
@@ -164,6 +206,21 @@ function runValidated(scenario: Scenario, options: RunScenarioOptions): RunOutco
   if (stop === "cancelled" || stop === "deadline") {
     return { ok: false, code: "stopped", reason: stop, message: fill.diagnostics.message };
   }
+  return { ok: true, fill, process };
+}
+
+/**
+ * Everything a report reads of a finished fill: freeze times, warnings (against `scenario`,
+ * which must carry the network's sizes), part, runner and shot masses.
+ */
+export function completeRun(
+  scenario: Scenario,
+  network: FeedNetwork,
+  setup: RunSetup,
+  process: FillProcess,
+  fill: FillResult,
+): ScenarioRun {
+  const material = setup.material;
   const thermal: ThermalData = {
     diffusivity: material.thermalDiffusivity,
     meltTemperature: process.feedTemperature,
@@ -181,19 +238,16 @@ function runValidated(scenario: Scenario, options: RunScenarioOptions): RunOutco
   const runnerMass = network.coldRunnerVolume * material.solidDensity;
   const shotMass = partMasses.reduce((a, b) => a + b, 0) + runnerMass;
   return {
-    ok: true,
-    run: {
-      scenario,
-      material,
-      network,
-      process,
-      fill,
-      freeze,
-      warnings,
-      cautions: CAUTIONS,
-      partMasses,
-      runnerMass,
-      shotMass,
-    },
+    scenario,
+    material,
+    network,
+    process,
+    fill,
+    freeze,
+    warnings,
+    cautions: CAUTIONS,
+    partMasses,
+    runnerMass,
+    shotMass,
   };
 }

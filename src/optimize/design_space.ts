@@ -38,7 +38,16 @@ export interface DesignVariable {
   /** Why the bounds are what they are, for an infeasibility report. */
   lowerReason: string;
   upperReason: string;
+  /** What sets each bound (the binding one): decisions branch on this, never on the text. */
+  lowerKind: BoundKind;
+  upperKind: BoundKind;
 }
+
+/**
+ * Where a bound comes from: the scenario's own limits, a size rule of thumb, the steel-safe
+ * floor (today's size), the feed order against a fixed neighbour, or the cavity wall.
+ */
+export type BoundKind = "scenario" | "rule" | "steel_safe" | "feed_order" | "wall";
 
 /** Pairs (upstream, downstream) of runner variables: the feeding runner is never the smaller one. */
 export interface OrderingRule {
@@ -85,7 +94,14 @@ export function designSpace(scenario: Scenario): DesignSpace {
   const push = (
     v: Omit<
       DesignVariable,
-      "lower" | "upper" | "lowerReason" | "upperReason" | "cutterLower" | "cutterUpper"
+      | "lower"
+      | "upper"
+      | "lowerReason"
+      | "upperReason"
+      | "lowerKind"
+      | "upperKind"
+      | "cutterLower"
+      | "cutterUpper"
     >,
     bounds: {
       lower: Bound[];
@@ -94,18 +110,22 @@ export function designSpace(scenario: Scenario): DesignSpace {
   ) => {
     let lower = -Infinity;
     let lowerReason = "";
-    for (const [value, why] of bounds.lower) {
+    let lowerKind: BoundKind = "scenario";
+    for (const [value, why, kind] of bounds.lower) {
       if (value > lower) {
         lower = value;
         lowerReason = why;
+        lowerKind = kind;
       }
     }
     let upper = Infinity;
     let upperReason = "";
-    for (const [value, why] of bounds.upper) {
+    let upperKind: BoundKind = "scenario";
+    for (const [value, why, kind] of bounds.upper) {
       if (value < upper) {
         upper = value;
         upperReason = why;
+        upperKind = kind;
       }
     }
     if (lower > upper * (1 + 1e-12)) {
@@ -117,14 +137,26 @@ export function designSpace(scenario: Scenario): DesignSpace {
     }
     // Rules of thumb are not sharp: a cutter a few percent under one is acceptable.
     let cutterLower = -Infinity;
-    for (const [value, , rule] of bounds.lower) {
+    for (const [value, , kind] of bounds.lower) {
+      const rule = kind === "rule";
       cutterLower = Math.max(cutterLower, rule ? value * (1 - RULE_CUTTER_TOLERANCE) : value);
     }
     let cutterUpper = Infinity;
-    for (const [value, , rule] of bounds.upper) {
+    for (const [value, , kind] of bounds.upper) {
+      const rule = kind === "rule";
       cutterUpper = Math.min(cutterUpper, rule ? value * (1 + RULE_CUTTER_TOLERANCE) : value);
     }
-    variables.push({ ...v, lower, upper, lowerReason, upperReason, cutterLower, cutterUpper });
+    variables.push({
+      ...v,
+      lower,
+      upper,
+      lowerReason,
+      upperReason,
+      lowerKind,
+      upperKind,
+      cutterLower,
+      cutterUpper,
+    });
   };
 
   const { parentOf } = tree;
@@ -145,23 +177,30 @@ export function designSpace(scenario: Scenario): DesignSpace {
     const lower: Bound[] = [[
       mmToM(r.min_diameter_mm ?? Math.max(2, d / 2)),
       "min_diameter_mm",
+      "scenario",
     ]];
     const upper: Bound[] = [[
       mmToM(r.max_diameter_mm ?? Math.min(20, 2 * d)),
       "max_diameter_mm",
+      "scenario",
     ]];
     const w = downstreamWall.get(r.id);
     if (rules && w !== undefined) {
-      lower.push([mmToM(w + RUNNER_OVER_WALL_MM), "runner ≥ wall + 1.5 mm rule", true]);
+      lower.push([mmToM(w + RUNNER_OVER_WALL_MM), "runner ≥ wall + 1.5 mm rule", "rule"]);
     }
-    if (steelSafe) lower.push([mmToM(d), "steel-safe: today's size"]);
+    if (steelSafe) lower.push([mmToM(d), "steel-safe: today's size", "steel_safe"]);
     for (const c of fixedChildren) {
-      lower.push([mmToM(Math.min(c.diameter_mm, d)), `the fixed runner ${c.id} it feeds`]);
+      lower.push([
+        mmToM(Math.min(c.diameter_mm, d)),
+        `the fixed runner ${c.id} it feeds`,
+        "feed_order",
+      ]);
     }
     if (fixedParent) {
       upper.push([
         mmToM(Math.max(fixedParent.diameter_mm, d)),
         `the fixed runner ${fixedParent.id} feeding it`,
+        "feed_order",
       ]);
     }
     push({ element: r.id, kind: "runner", dimension: "diameter", index, current: mmToM(d) }, {
@@ -178,17 +217,17 @@ export function designSpace(scenario: Scenario): DesignSpace {
     const min = edge ? g.min_thickness_mm : g.min_diameter_mm;
     const max = edge ? g.max_thickness_mm : g.max_diameter_mm;
     const field = edge ? "thickness" : "diameter";
-    const lower: Bound[] = [[mmToM(min ?? size / 2), `min_${field}_mm`]];
+    const lower: Bound[] = [[mmToM(min ?? size / 2), `min_${field}_mm`, "scenario"]];
     const upper: Bound[] = [
-      [mmToM(max ?? size * 2), `max_${field}_mm`],
-      [mmToM(w), "the cavity wall"],
+      [mmToM(max ?? size * 2), `max_${field}_mm`, "scenario"],
+      [mmToM(w), "the cavity wall", "wall"],
     ];
     if (rules) {
       const [lo, hi] = edge ? EDGE_GATE_WALL_FRACTION : ROUND_GATE_WALL_FRACTION;
-      lower.push([mmToM(lo * w), `gate ≥ ${lo * 100} % of wall rule`, true]);
-      upper.push([mmToM(hi * w), `gate ≤ ${hi * 100} % of wall rule`, true]);
+      lower.push([mmToM(lo * w), `gate ≥ ${lo * 100} % of wall rule`, "rule"]);
+      upper.push([mmToM(hi * w), `gate ≤ ${hi * 100} % of wall rule`, "rule"]);
     }
-    if (steelSafe) lower.push([mmToM(size), "steel-safe: today's size"]);
+    if (steelSafe) lower.push([mmToM(size), "steel-safe: today's size", "steel_safe"]);
     push({
       element: g.id,
       kind: "gate",
@@ -260,8 +299,8 @@ interface RunnerTree {
   downNode: Map<string, string>;
 }
 
-/** A size bound: value (m), the reason shown, and whether it is a rule of thumb (soft for cutters). */
-type Bound = [value: number, why: string, rule?: boolean];
+/** A size bound: value (m), the reason shown, and where it comes from (rules are soft for cutters). */
+type Bound = [value: number, why: string, kind: BoundKind];
 
 /** The runner tree by breadth-first search from the feed node. */
 function runnerTree(scenario: Scenario): RunnerTree {

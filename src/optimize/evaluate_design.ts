@@ -1,8 +1,14 @@
-import { buildNetwork } from "../network/build_network.ts";
-import type { NetworkElement } from "../network/feed_network.ts";
-import type { FillSample } from "../network/fill_result.ts";
-import { runScenario, type ScenarioRun } from "../network/simulate_scenario.ts";
+import type { FeedNetwork, NetworkElement } from "../network/feed_network.ts";
+import type { FillResult, FillSample } from "../network/fill_result.ts";
+import {
+  completeRun,
+  fillOfNetwork,
+  type RunSetup,
+  runSetup,
+  type ScenarioRun,
+} from "../network/simulate_scenario.ts";
 import { applyDesign, type DesignSpace } from "./design_space.ts";
+import { sizedNetwork } from "./sized_network.ts";
 
 /**
  * One design judged on the full simulation: the responses the optimizer
@@ -24,7 +30,15 @@ export interface Violation {
 /** The simulated responses of one design. */
 export interface DesignEvaluation {
   x: Float64Array;
-  run: ScenarioRun;
+  /** The design's network (SI, `sized_network.ts`). */
+  network: FeedNetwork;
+  /** The design's fill. */
+  fill: FillResult;
+  /**
+   * Everything a report reads (freeze times, warnings, masses, the design as a scenario):
+   * made on first read, since the optimizer itself needs only the fill.
+   */
+  readonly run: ScenarioRun;
   /** Cavity fill times, s. */
   fillTimes: number[];
   /**
@@ -84,41 +98,69 @@ export const TANGENT_RELATIVE_STEP = 1e-4;
 /** Failure to simulate a design (a value, never a throw). */
 export type EvaluationOutcome =
   | { ok: true; evaluation: DesignEvaluation }
-  | { ok: false; message: string };
+  | {
+    ok: false;
+    message: string;
+    /** Set when the simulation was stopped from outside (a signal or deadline), not failed. */
+    stopped?: "cancelled" | "deadline";
+  };
 
 /** Cold feed-system volume of design `x`, m³, from geometry alone (no simulation). */
 export function runnerVolumeOf(space: DesignSpace, x: ArrayLike<number>): number {
-  const built = buildNetwork(applyDesign(space, x));
-  if (!built.ok) throw new RangeError(`Cannot compute runner volume: ${built.issues[0].message}`);
-  return built.network.coldRunnerVolume;
+  const sized = sizedNetwork(space);
+  if (!sized.ok) throw new RangeError(`Cannot compute runner volume: ${sized.message}`);
+  return sized.sized.at(x).coldRunnerVolume;
+}
+
+const setups = new WeakMap<DesignSpace, RunSetup>();
+
+/** The material and melt model of a space's scenario, resolved once per space. */
+function setupOf(space: DesignSpace): RunSetup {
+  let setup = setups.get(space);
+  if (!setup) setups.set(space, setup = runSetup(space.scenario));
+  return setup;
+}
+
+/** Options of a design's simulation that stop it early. */
+export interface EvaluateStopOptions {
+  /** Once aborted, the fill stops after its current step and the evaluation fails. */
+  signal?: AbortSignal;
+  /** Wall-clock instant (ms since the epoch) past which the fill stops. */
+  deadline?: number;
 }
 
 /** Simulate design `x` and judge it against the scenario's goals. */
 export function evaluateDesign(
   space: DesignSpace,
   x: Float64Array,
-  options: EvaluateOptions = {},
+  options: EvaluateOptions & EvaluateStopOptions = {},
 ): EvaluationOutcome {
-  const scenario = applyDesign(space, x);
-  const directions = options.slopes ? tangentDirections(space, x) : undefined;
-  const outcome = runScenario(scenario, directions ? { tangent: { directions } } : {});
+  const sized = sizedNetwork(space);
+  if (!sized.ok) return { ok: false, message: sized.message };
+  const network = sized.sized.at(x);
+  const directions = options.slopes
+    ? space.variables.map((_, j) => sized.sized.elementsAt(j, x[j] * (1 + TANGENT_RELATIVE_STEP)))
+    : undefined;
+  const setup = setupOf(space);
+  const scenario = space.scenario;
+  const outcome = fillOfNetwork(scenario, network, setup, {
+    tangent: directions ? { directions } : undefined,
+    signal: options.signal,
+    deadline: options.deadline,
+  });
   if (!outcome.ok) {
-    return {
-      ok: false,
-      message: outcome.code === "invalid_scenario"
-        ? outcome.issues.map((i) => `${i.at}: ${i.message}`).join("; ")
-        : outcome.message,
-    };
+    return outcome.code === "stopped"
+      ? { ok: false, message: outcome.message, stopped: outcome.reason }
+      : { ok: false, message: outcome.message };
   }
-  const run = outcome.run;
+  const { fill, process } = outcome;
   const goals = scenario.goals;
-  const fill = run.fill;
   const fillTimes = fill.cavities.map((c) => c.fillTime);
-  const split = splitFigures(run);
+  const split = splitFigures(network, fill);
   const splitFillTimes = split.times;
   const gateShear = fill.cavities.map((c) => c.gateShearRatePeak);
   const gateShearBalanced = fill.cavities.map((c) => c.gateShearRatePeakBeforeFirstFull);
-  const gateShearLimit = goals.gate_shear_limit_1_s ?? run.material.maxShearRate;
+  const gateShearLimit = goals.gate_shear_limit_1_s ?? setup.material.maxShearRate;
   const pressureLimit = goals.max_pressure_fraction * scenario.machine.max_injection_pressure_MPa *
     1e6;
   const violations: Violation[] = [];
@@ -166,11 +208,17 @@ export function evaluateDesign(
       });
     }
   }
+  const design = Float64Array.from(x);
+  let run: ScenarioRun | undefined;
   return {
     ok: true,
     evaluation: {
-      x: Float64Array.from(x),
-      run,
+      x: design,
+      network,
+      fill,
+      get run() {
+        return run ??= completeRun(applyDesign(space, design), network, setup, process, fill);
+      },
       fillTimes,
       splitFillTimes,
       feedPressureReference: split.pressure,
@@ -180,41 +228,27 @@ export function evaluateDesign(
       gateShearLimit,
       feedPressurePeak: fill.feedPressurePeak,
       pressureLimit,
-      runnerVolume: run.network.coldRunnerVolume,
+      runnerVolume: network.coldRunnerVolume,
       violations,
       feasible: violations.length === 0,
-      slopes: directions ? slopesOf(run, split, x, directions) : undefined,
+      slopes: directions ? slopesOf(network, fill, split, x, directions) : undefined,
     },
   };
 }
 
-/**
- * For each size, the network elements it changes, rebuilt with that size raised by
- * {@link TANGENT_RELATIVE_STEP} (the same scenario otherwise, so element indices agree).
- */
-function tangentDirections(space: DesignSpace, x: Float64Array): NetworkElement[][] {
-  return space.variables.map((v, j) => {
-    const y = Float64Array.from(x);
-    y[j] *= 1 + TANGENT_RELATIVE_STEP;
-    const built = buildNetwork(applyDesign(space, y));
-    if (!built.ok) return [];
-    // A runner or gate is one element of the network, under its own id.
-    return built.network.elements.filter((e) => e.id === v.element && e.kind === v.kind);
-  });
-}
-
 /** Split fill-time and reference-pressure slopes from a run's tangent (undefined if it falls short). */
 function slopesOf(
-  run: ScenarioRun,
+  network: FeedNetwork,
+  fill: FillResult,
   split: SplitFigures,
   x: Float64Array,
   directions: readonly (readonly NetworkElement[])[],
 ): DesignSlopes | undefined {
-  const tangent = run.fill.tangent;
+  const tangent = fill.tangent;
   const reach = Math.max(split.now?.k ?? Infinity, split.earlier?.k ?? Infinity);
   if (!tangent || !split.now || !split.earlier || reach >= tangent.samples) return undefined;
-  const C = run.network.cavities.length;
-  const volumes = run.network.cavities.map((c) => c.volume);
+  const C = network.cavities.length;
+  const volumes = network.cavities.map((c) => c.volume);
   const n = tangent.directions;
   const interpolate = (at: { k: number; w: number }, pick: (sample: number) => number) =>
     (1 - at.w) * pick(at.k - 1) + at.w * pick(at.k);
@@ -223,7 +257,7 @@ function slopesOf(
   const fillTime = volumes.map(() => new Array<number>(n).fill(0));
   const pressure = new Array<number>(n).fill(0);
   // Time derivatives of the history at the two instants (of the interval they fall in).
-  const history = run.fill.history;
+  const history = fill.history;
   const rateIn = (k: number, pick: (sample: FillSample) => number) =>
     (pick(history[k]) - pick(history[k - 1])) / (history[k].time - history[k - 1].time);
   const fillRateNow = volumes.map((_, i) => rateIn(now.k, (h) => h.cavityFill[i]));
@@ -256,7 +290,7 @@ function slopesOf(
   // Cold feed-system volume: every changed element that is not a hot drop.
   const runnerVolume = directions.map((changed, j) =>
     changed.reduce(
-      (sum, e) => (e.heated ? sum : sum + e.volume - run.network.elements[e.index].volume),
+      (sum, e) => (e.heated ? sum : sum + e.volume - network.elements[e.index].volume),
       0,
     ) / (x[j] * TANGENT_RELATIVE_STEP)
   );
@@ -286,12 +320,12 @@ interface SplitFigures {
  * Split fill times (see `DesignEvaluation.splitFillTimes`) and the feed pressure at
  * the same reference instant, from a run's fill history (linear between samples).
  */
-function splitFigures(run: ScenarioRun): SplitFigures {
-  const volumes = run.network.cavities.map((c) => c.volume);
+function splitFigures(network: FeedNetwork, fill: FillResult): SplitFigures {
+  const volumes = network.cavities.map((c) => c.volume);
   const total = volumes.reduce((a, b) => a + b, 0);
   const held = (f: readonly number[]) => f.reduce((sum, fi, i) => sum + fi * volumes[i], 0);
-  const history = run.fill.history;
-  const trueTimes = run.fill.cavities.map((c) => c.fillTime);
+  const history = fill.history;
+  const trueTimes = fill.cavities.map((c) => c.fillTime);
   // Never past the first cavity's fill (its intake stops there): at most 98 % of that time.
   const latest = 0.98 * Math.min(...trueTimes);
   const target = SPLIT_REFERENCE_SHARE * total;
@@ -329,7 +363,7 @@ function splitFigures(run: ScenarioRun): SplitFigures {
   if (!now || !earlier) {
     return {
       times: trueTimes,
-      pressure: run.fill.feedPressurePeak,
+      pressure: fill.feedPressurePeak,
       fillNow: volumes.map(() => NaN),
       rates: volumes.map(() => NaN),
       window,

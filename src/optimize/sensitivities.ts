@@ -1,5 +1,6 @@
 import type { DesignSpace } from "./design_space.ts";
 import { type DesignEvaluation, evaluateDesign, runnerVolumeOf } from "./evaluate_design.ts";
+import { type StopOptions, type StopReason, stopReason, stopText } from "./stop.ts";
 
 /**
  * Sensitivities of the constrained responses to each design size, by one-sided
@@ -46,8 +47,8 @@ export const FD_RELATIVE_STEP = 0.01;
 export function finiteDifferenceSensitivities(
   space: DesignSpace,
   base: DesignEvaluation,
-  options: { cancelled?: () => boolean } = {},
-): Sensitivities | { failure: string; cancelled?: true } {
+  options: StopOptions = {},
+): Sensitivities | { failure: string; stopped?: StopReason } {
   const n = space.variables.length;
   const cavities = base.splitFillTimes.length;
   const fillTime = Array.from({ length: cavities }, () => new Array<number>(n).fill(0));
@@ -62,10 +63,11 @@ export function finiteDifferenceSensitivities(
     if (xj + h > v.upper && xj - h >= v.lower) h = -h;
     const x = Float64Array.from(base.x);
     x[j] = xj + h;
-    if (options.cancelled?.()) return { failure: "cancelled by request", cancelled: true };
-    const outcome = evaluateDesign(space, x);
+    const stop = stopReason(options);
+    if (stop) return { failure: stopText(stop), stopped: stop };
+    const outcome = evaluateDesign(space, x, options);
     simulations++;
-    if (!outcome.ok) return { failure: outcome.message };
+    if (!outcome.ok) return { failure: outcome.message, stopped: outcome.stopped };
     const e = outcome.evaluation;
     for (let i = 0; i < cavities; i++) {
       fillTime[i][j] = (e.splitFillTimes[i] - base.splitFillTimes[i]) / h;

@@ -12,6 +12,11 @@ import type { LpSolver } from "./lp_solver.ts";
 import { type Sensitivities, tangentSensitivities } from "./sensitivities.ts";
 import { snapDesign, snapMethod, type SnapReport, snapVerdict } from "./snap_design.ts";
 import { formulateStep, LP_LIMIT_SHARE, snappedMerit } from "./slp_step.ts";
+import type { ContinuousSolver } from "./continuous_slp.ts";
+import { type StopOptions, stopReason } from "./stop.ts";
+
+/** Iterations of each re-balance after a runner is fixed (it starts next to its optimum). */
+const RELAX_ITERATIONS = 8;
 
 /**
  * Runner cutters chosen together with balance, for a continuous optimum whose
@@ -22,26 +27,10 @@ import { formulateStep, LP_LIMIT_SHARE, snappedMerit } from "./slp_step.ts";
  */
 
 /** What {@link relaxAndFixRunners} needs of the optimizer (passed in: no import cycle). */
-export interface RelaxAndFixOptions {
-  solver?: LpSolver;
-  cancelled?: () => boolean;
-  /** The continuous optimizer, run on the sizes still free after each fix. */
-  optimize: (
-    scenario: Scenario,
-    options: {
-      solver?: LpSolver;
-      cancelled?: () => boolean;
-      continuousOnly: boolean;
-      maxIterations: number;
-      start: ReadonlyMap<string, number>;
-    },
-  ) => Promise<
-    | {
-      ok: true;
-      outcome: { space: DesignSpace; continuous: DesignEvaluation; simulations: number };
-    }
-    | { ok: false }
-  >;
+export interface RelaxAndFixOptions extends StopOptions {
+  solver: LpSolver;
+  /** The continuous solver, run on the sizes still free after each fix. */
+  continuous: ContinuousSolver;
 }
 
 /** An evaluation from a sub-space (some variables fixed) expressed in the full space's x. */
@@ -52,7 +41,10 @@ export function remap(full: DesignSpace, sub: DesignSpace, e: DesignEvaluation):
     const g = scenario.gates[v.index];
     return (g.type === "edge" ? g.thickness_mm : g.diameter_mm) / 1000;
   });
-  return { ...e, x };
+  // A copy with its own x that keeps the evaluation's lazy report (`run`) lazy.
+  const copy = Object.defineProperties({}, Object.getOwnPropertyDescriptors(e)) as DesignEvaluation;
+  copy.x = x;
+  return copy;
 }
 
 /**
@@ -243,11 +235,11 @@ function cutterProgram(
  * rounding is absorbed by sizes that are still free on the full model.
  */
 export async function relaxAndFixRunners(
-  scenario: Scenario,
   space: DesignSpace,
   continuous: DesignEvaluation,
   options: RelaxAndFixOptions,
 ): Promise<SnapReport | undefined> {
+  const scenario = space.scenario;
   const catalogue = cutterCatalogue(scenario.goals.cutters);
   if (catalogue.kind !== "discrete") return undefined;
   const steelSafe = scenario.goals.mode === "steel_safe";
@@ -298,7 +290,7 @@ export async function relaxAndFixRunners(
       if (!pick || gap > pick.gap) pick = { v, sides, gap };
     }
     if (!pick) break;
-    if (options.cancelled?.()) return undefined;
+    if (stopReason(options)) return undefined;
     const v = pick.v;
     labels.set(v.element, "");
     work.runners[v.index].adjustable = false;
@@ -311,16 +303,16 @@ export async function relaxAndFixRunners(
       trial.set(v.element, cutter.size);
       let score = 0;
       if (free.length > 0) {
-        const sub = await options.optimize(work, {
+        const sub = await options.continuous(designSpace(work), {
           solver: options.solver,
-          cancelled: options.cancelled,
-          continuousOnly: true,
-          maxIterations: 8,
+          signal: options.signal,
+          deadline: options.deadline,
+          maxIterations: RELAX_ITERATIONS,
           start: trial,
         });
         if (!sub.ok) continue;
         simulations += sub.outcome.simulations;
-        const e = sub.outcome.continuous;
+        const e = sub.outcome.optimum;
         sub.outcome.space.variables.forEach((u, j) => trial.set(u.element, e.x[j]));
         score = judgeOf(e);
         if (!best || score < best.score) best = { cutter, sizes: trial, score };

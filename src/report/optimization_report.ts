@@ -1,5 +1,5 @@
 import type { BalanceIteration, BalanceOutcome } from "../optimize/balance.ts";
-import { type Change, changeList, dualSize } from "../optimize/change_list.ts";
+import { type Change, dualSize } from "../optimize/change_list.ts";
 import { m3ToCm3, mToInch, mToMm, paToMpa } from "../model/units.ts";
 import {
   type Continuous,
@@ -27,7 +27,7 @@ export function iterationJson(i: BalanceIteration): Iteration {
 export interface OptimizationJsonOptions {
   /** Include the fill history of the before and after runs (default false). */
   history?: boolean;
-  /** The change list in order of work (default: computed with {@link changeList}). */
+  /** The change list in order of work (default: the optimizer's change plan, none if omitted). */
   changes?: Change[];
 }
 
@@ -36,7 +36,7 @@ export function optimizationJson(
   outcome: BalanceOutcome,
   options: OptimizationJsonOptions = {},
 ): OptimizationResult {
-  const changes = options.changes ?? changeList(outcome);
+  const changes = options.changes ?? outcome.changes?.steps ?? [];
   const history = options.history ?? false;
   return {
     format: OPTIMIZATION_FORMAT,
@@ -100,7 +100,7 @@ export function continuousJson(outcome: BalanceOutcome): Continuous {
 /** A readable before/after, change sheet and stopping reason. */
 export function optimizationText(
   outcome: BalanceOutcome,
-  changes: Change[] = changeList(outcome),
+  changes: Change[] = outcome.changes?.steps ?? [],
 ): string {
   const b = outcome.before;
   const a = outcome.after;
@@ -130,7 +130,11 @@ export function optimizationText(
   }
   out.push("");
   out.push("Change sheet, in order of work (each step simulated with all before it)");
-  if (changes.length === 0) out.push("  no change");
+  if (changes.length === 0) {
+    out.push(
+      outcome.changesOmitted ? `  no change plan (${outcome.changesOmitted})` : "  no change",
+    );
+  }
   for (const c of changes) {
     out.push(
       `  ${String(c.step).padStart(2)}. ${c.element.padEnd(6)} ${c.kind.padEnd(6)} ${

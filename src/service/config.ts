@@ -47,6 +47,8 @@ export interface ServiceConfig {
   leaseMs: number;
   /** How long a stopping worker lets a running job go on before re-queueing it, ms (EVENFILL_SHUTDOWN_GRACE_MS, --shutdown-grace-ms; default 2000). */
   shutdownGraceMs: number;
+  /** How long a job has to honour a cancel (its job process writes the best design so far) before it is killed, ms (EVENFILL_CANCEL_GRACE_MS, --cancel-grace-ms; default 5000). */
+  cancelGraceMs: number;
   /** Enable the test-only `test_spin` job kind (EVENFILL_ENABLE_TEST_JOBS=1, --enable-test-jobs; default off). */
   enableTestJobs: boolean;
   /** Directory of the static page (default `public/` of this checkout). */
@@ -78,6 +80,7 @@ export function defaultConfig(): ServiceConfig {
     simulateMaxElements: 400,
     leaseMs: 10_000,
     shutdownGraceMs: 2000,
+    cancelGraceMs: 5000,
     enableTestJobs: false,
     publicDir: new URL("public/", root).pathname,
     scenariosDir: new URL("scenarios/", root).pathname,
@@ -130,6 +133,7 @@ export function loadConfig(
     "simulate-workers",
     "lease-ms",
     "shutdown-grace-ms",
+    "cancel-grace-ms",
     "enable-test-jobs",
     "allowed-hosts",
     "body-timeout-ms",
@@ -166,6 +170,10 @@ export function loadConfig(
   if (lease !== undefined) config.leaseMs = Math.trunc(number("lease", lease, 300));
   const grace = get("shutdown-grace-ms", "EVENFILL_SHUTDOWN_GRACE_MS");
   if (grace !== undefined) config.shutdownGraceMs = Math.trunc(number("shutdown grace", grace, 0));
+  const cancelGrace = get("cancel-grace-ms", "EVENFILL_CANCEL_GRACE_MS");
+  if (cancelGrace !== undefined) {
+    config.cancelGraceMs = Math.trunc(number("cancel grace", cancelGrace, 0));
+  }
   const hosts = get("allowed-hosts", "EVENFILL_ALLOWED_HOSTS");
   if (hosts !== undefined) {
     config.allowedHosts = hosts.split(",").map((h) => h.trim().toLowerCase()).filter((h) =>

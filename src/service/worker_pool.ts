@@ -44,6 +44,8 @@ export class WorkerPool {
       String(c.leaseMs),
       "--shutdown-grace-ms",
       String(c.shutdownGraceMs),
+      "--cancel-grace-ms",
+      String(c.cancelGraceMs),
     ];
     if (c.enableTestJobs) args.push("--enable-test-jobs");
     const child = new Deno.Command(Deno.execPath(), {

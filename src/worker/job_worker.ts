@@ -2,6 +2,9 @@ import { type ClaimedJob, type Store, StoreBusyError } from "../store/store.ts";
 import type { RunReply } from "./run_job.ts";
 import { lines } from "./lines.ts";
 
+/** Default time a job has to honour a cancel (and write its best design) before it is killed, ms. */
+export const CANCEL_GRACE_MS = 5000;
+
 /** Options of {@link JobWorker}. */
 export interface JobWorkerOptions {
   /** This worker's id, the lease owner name. */
@@ -14,7 +17,11 @@ export interface JobWorkerOptions {
   idlePollMs?: number;
   /** How often a running job is supervised (cancel, time limit, lease), ms (default 100). */
   supervisePollMs?: number;
-  /** How long a job may take to honour a cancel before it is killed, ms (default 1000). */
+  /**
+   * How long a job may take to honour a cancel before it is killed, ms (default
+   * {@link CANCEL_GRACE_MS}): the job process stops its optimization within a simulation
+   * step and writes the best design so far in this time.
+   */
   cancelGraceMs?: number;
   /** How long shutdown waits for a running job before killing and re-queueing it, ms (default 2000). */
   shutdownGraceMs?: number;
@@ -263,7 +270,10 @@ export class JobWorker {
         cancelSeenAt === undefined &&
         unlessBusy(() => this.#store.isCancelRequested(job.id), false)
       ) cancelSeenAt = now;
-      if (cancelSeenAt !== undefined && now - cancelSeenAt > (this.options.cancelGraceMs ?? 1000)) {
+      if (
+        cancelSeenAt !== undefined &&
+        now - cancelSeenAt > (this.options.cancelGraceMs ?? CANCEL_GRACE_MS)
+      ) {
         verdict = "cancelled";
         break;
       }

@@ -5,7 +5,8 @@
  * job gets a short grace, then goes back to the queue.
  *
  * Flags (and environment): --db (EVENFILL_DB), --lease-ms (EVENFILL_LEASE_MS),
- * --shutdown-grace-ms (EVENFILL_SHUTDOWN_GRACE_MS), --enable-test-jobs
+ * --shutdown-grace-ms (EVENFILL_SHUTDOWN_GRACE_MS), --cancel-grace-ms
+ * (EVENFILL_CANCEL_GRACE_MS), --enable-test-jobs
  * (EVENFILL_ENABLE_TEST_JOBS=1), --exit-with-parent.
  *
  * @module
@@ -35,6 +36,7 @@ export async function main(args: readonly string[]): Promise<number> {
     dbPath: config.dbPath,
     leaseMs: config.leaseMs,
     shutdownGraceMs: config.shutdownGraceMs,
+    cancelGraceMs: config.cancelGraceMs,
     enableTestJobs: config.enableTestJobs,
     shouldStop: exitWithParent ? () => Deno.ppid !== parent : undefined,
   });

@@ -41,6 +41,15 @@ export const RUN_JOB_EXIT = {
 /** Minimum time between two progress writes, ms. */
 const PROGRESS_EVERY_MS = 100;
 
+/** How often the job process looks at its cancel flag and its supervisor while optimizing, ms. */
+const CANCEL_POLL_MS = 100;
+
+/**
+ * How long before the job's time limit the optimization stops on its own, ms: time to write
+ * the best design so far before the worker kills the process at the limit.
+ */
+export const TIME_LIMIT_MARGIN_MS = 3000;
+
 /** Pause between two tries of a store write that found the database locked, ms. */
 const BUSY_RETRY_MS = 200;
 
@@ -129,37 +138,52 @@ export async function runJobAttempt(
     scenario.goals.mode = input.mode;
   }
   let lastWrite = -Infinity;
+  // Cancel, a lost lease and the time limit end the optimization through its signal and
+  // deadline: it returns its best design so far, which is written (except on a lost lease).
+  const controller = new AbortController();
+  let leaseLost = false;
+  let pollError: unknown;
+  const poll = () => {
+    if (controller.signal.aborted) return;
+    if (orphaned()) {
+      leaseLost = true;
+      controller.abort();
+      return;
+    }
+    try {
+      if (store.isCancelRequested(job.id)) controller.abort();
+    } catch (error) {
+      if (error instanceof StoreBusyError) return; // asked again at the next poll
+      pollError = error;
+      controller.abort();
+    }
+  };
+  const poller = setInterval(poll, CANCEL_POLL_MS);
+  const deadline = Date.now() + Math.max(0, job.time_limit_ms - TIME_LIMIT_MARGIN_MS);
   let result;
   try {
     result = await (options.optimize ?? optimizeBalance)(scenario, {
       slopes: input.slopes === "finite_difference" ? "finite_difference" : "tangent",
+      signal: controller.signal,
+      deadline,
       onProgress: (i) => {
+        poll();
         const now = performance.now();
         if (now - lastWrite < PROGRESS_EVERY_MS) return;
         lastWrite = now;
         const progress: JobProgress = iterationJson(i);
-        let held: boolean;
         try {
-          held = store.writeProgress(job.id, owner, attempt, progress);
+          if (!store.writeProgress(job.id, owner, attempt, progress)) {
+            leaseLost = true;
+            controller.abort();
+          }
         } catch (error) {
           // Progress is best effort: a locked database skips this write, not the job.
-          if (error instanceof StoreBusyError) return;
-          throw error;
-        }
-        if (!held) throw new LeaseLost();
-      },
-      cancelled: () => {
-        if (orphaned()) throw new LeaseLost();
-        try {
-          return store.isCancelRequested(job.id);
-        } catch (error) {
-          if (error instanceof StoreBusyError) return false; // asked again at the next iteration
-          throw error;
+          if (!(error instanceof StoreBusyError)) throw error;
         }
       },
     });
   } catch (error) {
-    if (error instanceof LeaseLost) throw error;
     // An exception from the engine (a bug, or a failure it did not turn into a
     // value): the job fails with its message; the stack goes to the log.
     const message = error instanceof Error ? error.message : String(error);
@@ -169,12 +193,26 @@ export async function runJobAttempt(
       attempt,
       error: error instanceof Error ? (error.stack ?? message) : message,
     });
+    if (leaseLost) throw new LeaseLost();
     return fail("optimization_failed", `The optimization stopped on an engine error: ${message}`);
+  } finally {
+    clearInterval(poller);
   }
+  if (leaseLost) throw new LeaseLost();
+  if (pollError) throw pollError;
   if (!result.ok) return fail(result.code, result.message);
   const json = optimizationJson(result.outcome, { history: true });
   if (result.outcome.status === "cancelled") {
-    const error: JobError = { code: "cancelled", message: "cancelled by request" };
+    if (!controller.signal.aborted) {
+      // Stopped by the deadline: the time limit, with the best design so far.
+      const seconds = (job.time_limit_ms / 1000).toString();
+      const message = `Stopped at its time limit of ${seconds} s; the best design so far is kept`;
+      return finish({ status: "failed", error: { code: "time_limit", message }, result: json });
+    }
+    const error: JobError = {
+      code: "cancelled",
+      message: "cancelled by request; the best design so far is kept",
+    };
     return finish({ status: "cancelled", result: json, error });
   }
   return finish({ status: "done", result: json });

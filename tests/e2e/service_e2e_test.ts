@@ -214,6 +214,9 @@ Deno.test({
       "2",
       "--job-time-limit-s",
       "2.5",
+      // Under the time limit, so that the ignored cancel, not the limit, ends the second spin.
+      "--cancel-grace-ms",
+      "1000",
       "--enable-test-jobs",
     ]);
     try {
@@ -243,7 +246,7 @@ Deno.test({
 });
 
 Deno.test({
-  name: "e2e: cancel stops a running optimization, which reports status cancelled",
+  name: "e2e: cancel stops a running optimization, whose job process writes the best design so far",
   sanitizeResources: false,
   sanitizeOps: false,
   async fn() {
@@ -257,9 +260,17 @@ Deno.test({
       const job = await waitForJob(service.base, id);
       assert.equal(job.status, "cancelled");
       assert.equal(job.error.code, "cancelled");
-      // Either the optimizer stopped at its next iteration (partial result
-      // kept) or the worker killed it after the grace period (no result).
-      assert.ok(job.result === null || job.result.status === "cancelled");
+      // The optimizer stops within a simulation step and the job process writes its best
+      // design before the worker's grace runs out: never a kill, never an empty result.
+      assert.notEqual(job.result, null, "a cancelled optimization keeps its best design");
+      assert.equal(job.result.status, "cancelled");
+      assert.equal(job.result.format, "evenfill.optimization/1");
+      assert.ok(Number.isFinite(job.result.after.imbalance_percent), "the best design's imbalance");
+      assert.ok(job.result.iterations.length >= 1, "at least the iteration that was reported");
+      const finished = service.proc.events().find((e) =>
+        e.event === "job_finished" && e.job === id
+      );
+      assert.equal(finished?.written_by_job_process, true, JSON.stringify(finished));
     } finally {
       await service.proc.stop();
       await Deno.remove(dir, { recursive: true });
