@@ -73,7 +73,20 @@ export function frozenLayerThickness(contactTime: number, options: FrozenLayerOp
   if (tm <= tnf) return Infinity;
   if (tw >= tnf || contactTime === 0) return 0;
   const theta = (tnf - tw) / (tm - tw);
-  return 2 * erfInv(theta) * Math.sqrt(options.diffusivity * contactTime);
+  return 2 * rememberedErfInv(theta) * Math.sqrt(options.diffusivity * contactTime);
+}
+
+/** erf⁻¹ of the last few thousand arguments asked for (a fill asks for the same θ often). */
+const ERF_INV_SEEN = new Map<number, number>();
+
+function rememberedErfInv(x: number): number {
+  let y = ERF_INV_SEEN.get(x);
+  if (y === undefined) {
+    y = erfInv(x);
+    if (ERF_INV_SEEN.size >= 4096) ERF_INV_SEEN.clear();
+    ERF_INV_SEEN.set(x, y);
+  }
+  return y;
 }
 
 /** Options of {@link adiabaticHeating}. */

@@ -42,11 +42,14 @@ export function frozenAt(
 ): number {
   const { process, melt } = ctx;
   if (process.isothermal || e.heated) return 0;
-  const starts = [state.sideStart[2 * e.index], state.sideStart[2 * e.index + 1]].filter((s) =>
-    !Number.isNaN(s)
-  );
-  if (starts.length === 0) return 0;
-  const start = Math.min(...starts);
+  const start0 = state.sideStart[2 * e.index];
+  const start1 = state.sideStart[2 * e.index + 1];
+  if (Number.isNaN(start0) && Number.isNaN(start1)) return 0;
+  const start = Number.isNaN(start0)
+    ? start1
+    : Number.isNaN(start1)
+    ? start0
+    : Math.min(start0, start1);
   const contact = side === -1 ? t - (start + state.fullTime[e.index]) / 2 : (t - start) / 2;
   const flow = state.lastFlow[e.index];
   const residence = flow > 0 ? filledVolume(state, e.index) / flow : Infinity;
@@ -146,17 +149,18 @@ function curveFor(ctx: FillContext, state: FillState, e: NetworkElement): FlowCu
 }
 
 /**
- * {@link branchLaw} for the network's own element, through `cache`: the law kept for the branch
- * when its inputs are unchanged, else a new one (kept). Same numbers as {@link branchLaw}.
+ * {@link branchLaw} through `cache`: the law kept for the branch when its inputs are unchanged,
+ * else a new one (kept). Same numbers as {@link branchLaw}. `element` replaces the network's
+ * element as there; a cache serves one element per branch (one cache per tangent direction).
  */
 export function cachedBranchLaw(
   ctx: FillContext,
   state: FillState,
   branch: Branch,
-  at: { t: number; volumes: Float64Array; cache: BranchLawCache },
+  at: { t: number; volumes: Float64Array; cache: BranchLawCache; element?: NetworkElement },
 ): ChannelLaw {
   const { t, volumes, cache } = at;
-  const e = ctx.elements[branch.element];
+  const e = at.element ?? ctx.elements[branch.element];
   const temperature = ctx.process.isothermal ? NaN : state.temperature[e.index];
   const pressure = ctx.process.isothermal ? NaN : Math.max(0, state.meanPressure[e.index]);
   let delta: number;

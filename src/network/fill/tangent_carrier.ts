@@ -7,7 +7,7 @@ import {
   linearPattern,
 } from "../fill_tangent.ts";
 import type { Assembly } from "./assemble.ts";
-import { branchLaw } from "./channel_laws.ts";
+import { branchLaw, type BranchLawCache, branchLawCache, cachedBranchLaw } from "./channel_laws.ts";
 import type { FillContext } from "./context.ts";
 import type { FillState } from "./fill_state.ts";
 import type { Solved } from "./solve_instant.ts";
@@ -26,6 +26,8 @@ export class TangentCarrier {
   private readonly dv: Float64Array[];
   /** Directions that change each element, with the element as rebuilt. */
   private readonly changedBy: { j: number; element: NetworkElement }[][];
+  /** The laws of each direction's rebuilt elements, kept while their inputs hold (one cache per direction). */
+  private readonly directionLaws: BranchLawCache[];
   private readonly patterns = new WeakMap<
     Assembly,
     { local: LinearBranch[]; symbolic: ReturnType<typeof linearPattern> }
@@ -58,6 +60,7 @@ export class TangentCarrier {
       for (const element of list) this.changedBy[element.index].push({ j, element });
     });
     this.dInlet = new Float64Array(this.m);
+    this.directionLaws = Array.from({ length: this.m }, () => branchLawCache(E));
   }
 
   /** Whether the tangent is still being carried. */
@@ -98,8 +101,13 @@ export class TangentCarrier {
       const br = branches[k];
       const c = s.channel[k];
       for (const { j, element } of changedBy[br.element]) {
-        const drop = branchLaw(ctx, state, br, t, fill, element)(s.flows[k]).pressureDrop -
-          c.pressureDrop;
+        const law = cachedBranchLaw(ctx, state, br, {
+          t,
+          volumes: fill,
+          cache: this.directionLaws[j],
+          element,
+        });
+        const drop = law.resistance(s.flows[k]).pressureDrop - c.pressureDrop;
         direct.push({ j, k, drop });
       }
       if (br.side < 0) continue;
@@ -116,7 +124,8 @@ export class TangentCarrier {
       const dvol = Math.max(Math.abs(v) * 1e-4, e.volume * 1e-7);
       probe[index] = v + dvol;
       slopeV.push(
-        (branchLaw(ctx, state, br, t, probe)(s.flows[k]).pressureDrop - c.pressureDrop) / dvol,
+        (branchLaw(ctx, state, br, t, probe).resistance(s.flows[k]).pressureDrop -
+          c.pressureDrop) / dvol,
       );
       probe[index] = v;
     }
