@@ -1,3 +1,4 @@
+import { gateRuleVerdict, RUNNER_OVER_WALL_MM, runnerFloorMm } from "../model/size_rules.ts";
 import type { Scenario } from "../model/scenario_schema.ts";
 import { cylinderCentreCoolingTime, plateCoolingTime } from "../physics/thermal.ts";
 import type { FeedNetwork } from "./feed_network.ts";
@@ -249,35 +250,20 @@ export function fillWarnings(
     });
   }
 
-  // Size rules (common practice, no source).
+  // Size rules (common practice, no source): model/size_rules.ts.
   const wallOf = new Map(scenario.cavities.map((c) => [c.id, c.wall_mm]));
   for (const g of scenario.gates) {
     const wall = wallOf.get(g.cavity)!;
-    if (g.type === "edge") {
-      const ratio = g.thickness_mm / wall;
-      if (ratio < 0.5 || ratio > 0.8) {
-        warnings.push({
-          code: "gate_size_rule",
-          severity: "caution",
-          element: g.id,
-          message: `Edge gate ${g.id} is ${
-            (ratio * 100).toFixed(0)
-          } % of the ${wall} mm wall; common practice is 50–80 %.`,
-        });
-      }
-    } else {
-      const ratio = g.diameter_mm / wall;
-      if (ratio < 0.25 || ratio > 0.6) {
-        warnings.push({
-          code: "gate_size_rule",
-          severity: "caution",
-          element: g.id,
-          message: `${g.type === "pin" ? "Pin" : "Tunnel"} gate ${g.id} is ${
-            (ratio * 100).toFixed(0)
-          } % of the ${wall} mm wall; common practice is 25–60 %.`,
-        });
-      }
-    }
+    const { ok, ratio, range } = gateRuleVerdict(g, wall);
+    if (ok) continue;
+    const what = g.type === "edge" ? "Edge" : g.type === "pin" ? "Pin" : "Tunnel";
+    warnings.push({
+      code: "gate_size_rule",
+      severity: "caution",
+      element: g.id,
+      message: `${what} gate ${g.id} is ${(ratio * 100).toFixed(0)} % of the ${wall} mm wall; ` +
+        `common practice is ${range[0] * 100}–${range[1] * 100} %.`,
+    });
   }
   const thickestDownstream = new Map<string, number>();
   for (const path of fill.paths) {
@@ -288,13 +274,13 @@ export function fillWarnings(
   }
   for (const r of scenario.runners) {
     const wall = thickestDownstream.get(r.id);
-    if (wall !== undefined && r.diameter_mm < wall + 1.5) {
+    if (wall !== undefined && r.diameter_mm < runnerFloorMm(wall)) {
       warnings.push({
         code: "runner_below_wall_rule",
         severity: "caution",
         element: r.id,
-        message: `Runner ${r.id} (${r.diameter_mm} mm) is under wall + 1.5 mm (${
-          (wall + 1.5).toFixed(1)
+        message: `Runner ${r.id} (${r.diameter_mm} mm) is under wall + ${RUNNER_OVER_WALL_MM} mm (${
+          runnerFloorMm(wall).toFixed(1)
         } mm) for the ${wall} mm part it feeds: it may freeze before the part is packed (common practice).`,
       });
     }

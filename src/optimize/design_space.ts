@@ -1,5 +1,13 @@
 import type { Scenario } from "../model/scenario_schema.ts";
 import { mmToM, mToMm } from "../model/units.ts";
+import { type RunnerTree, runnerTree, thickestWallDownstream } from "../model/runner_tree.ts";
+import {
+  EDGE_GATE_WALL_FRACTION,
+  gateWallFraction,
+  ROUND_GATE_WALL_FRACTION,
+  RUNNER_OVER_WALL_MM,
+  runnerFloorMm,
+} from "../model/size_rules.ts";
 
 /**
  * The design variables of a scenario: one size per element marked
@@ -74,12 +82,7 @@ export interface DesignSpace {
  */
 export const RULE_CUTTER_TOLERANCE = 0.03;
 
-/** Runner-size rule: runner ≥ wall + 1.5 mm (common practice, no source). */
-export const RUNNER_OVER_WALL_MM = 1.5;
-/** Tunnel and pin gate diameter 25–60 % of the wall (common practice, no source). */
-export const ROUND_GATE_WALL_FRACTION = [0.25, 0.6] as const;
-/** Edge gate depth 50–80 % of the wall (common practice, no source). */
-export const EDGE_GATE_WALL_FRACTION = [0.5, 0.8] as const;
+export { EDGE_GATE_WALL_FRACTION, ROUND_GATE_WALL_FRACTION, RUNNER_OVER_WALL_MM };
 
 /** Build the design space of a validated scenario. */
 export function designSpace(scenario: Scenario): DesignSpace {
@@ -87,7 +90,12 @@ export function designSpace(scenario: Scenario): DesignSpace {
   const steelSafe = scenario.goals.mode === "steel_safe";
   const wall = new Map(scenario.cavities.map((c) => [c.id, c.wall_mm]));
   const tree = runnerTree(scenario);
-  const downstreamWall = thickestDownstreamWall(scenario, tree);
+  const wallBelow = thickestWallDownstream(scenario, tree);
+  const runnerIndex = new Map(scenario.runners.map((r, k) => [r.id, k]));
+  const parentId = (id: string) => {
+    const up = tree.parent.get(runnerIndex.get(id)!);
+    return up === undefined ? undefined : scenario.runners[up].id;
+  };
   const variables: DesignVariable[] = [];
   const conflicts: string[] = [];
 
@@ -159,7 +167,6 @@ export function designSpace(scenario: Scenario): DesignSpace {
     });
   };
 
-  const { parentOf } = tree;
   const runnerById = new Map(scenario.runners.map((r) => [r.id, r]));
   scenario.runners.forEach((r, index) => {
     if (!r.adjustable) return;
@@ -167,12 +174,10 @@ export function designSpace(scenario: Scenario): DesignSpace {
     // Feed order against fixed neighbours: never smaller than a fixed runner it feeds, never
     // larger than a fixed runner feeding it (between two adjustable runners: `ordering`);
     // like the ordering rows, never stricter than today's size, which may break the order.
-    const fixedChildren = scenario.runners.filter((c) =>
-      !c.adjustable && parentOf.get(c.id) === r.id
-    );
-    const parentId = parentOf.get(r.id);
-    const fixedParent = parentId !== undefined && !runnerById.get(parentId)!.adjustable
-      ? runnerById.get(parentId)
+    const fixedChildren = scenario.runners.filter((c) => !c.adjustable && parentId(c.id) === r.id);
+    const up = parentId(r.id);
+    const fixedParent = up !== undefined && !runnerById.get(up)!.adjustable
+      ? runnerById.get(up)
       : undefined;
     const lower: Bound[] = [[
       mmToM(r.min_diameter_mm ?? Math.max(2, d / 2)),
@@ -184,9 +189,13 @@ export function designSpace(scenario: Scenario): DesignSpace {
       "max_diameter_mm",
       "scenario",
     ]];
-    const w = downstreamWall.get(r.id);
+    const w = wallBelow.get(index);
     if (rules && w !== undefined) {
-      lower.push([mmToM(w + RUNNER_OVER_WALL_MM), "runner ≥ wall + 1.5 mm rule", "rule"]);
+      lower.push([
+        mmToM(runnerFloorMm(w)),
+        `runner ≥ wall + ${RUNNER_OVER_WALL_MM} mm rule`,
+        "rule",
+      ]);
     }
     if (steelSafe) lower.push([mmToM(d), "steel-safe: today's size", "steel_safe"]);
     for (const c of fixedChildren) {
@@ -223,7 +232,7 @@ export function designSpace(scenario: Scenario): DesignSpace {
       [mmToM(w), "the cavity wall", "wall"],
     ];
     if (rules) {
-      const [lo, hi] = edge ? EDGE_GATE_WALL_FRACTION : ROUND_GATE_WALL_FRACTION;
+      const [lo, hi] = gateWallFraction(g.type);
       lower.push([mmToM(lo * w), `gate ≥ ${lo * 100} % of wall rule`, "rule"]);
       upper.push([mmToM(hi * w), `gate ≤ ${hi * 100} % of wall rule`, "rule"]);
     }
@@ -247,7 +256,7 @@ export function designSpace(scenario: Scenario): DesignSpace {
   return {
     scenario,
     variables,
-    ordering: runnerOrdering(tree, variables),
+    ordering: runnerOrdering(scenario, tree, variables),
     gateCavity,
     conflicts,
   };
@@ -273,69 +282,23 @@ export function applyDesign(space: DesignSpace, x: ArrayLike<number>): Scenario 
   return s;
 }
 
-/** For each runner id, the thickest wall of the cavities downstream of it (mm). */
-function thickestDownstreamWall(scenario: Scenario, tree: RunnerTree): Map<string, number> {
-  const { parentOf, downNode } = tree;
-  const wall = new Map(scenario.cavities.map((c) => [c.id, c.wall_mm]));
-  const runnerInto = new Map<string, string>();
-  for (const [runner, node] of downNode) runnerInto.set(node, runner);
-  const result = new Map<string, number>();
-  for (const g of scenario.gates) {
-    const w = wall.get(g.cavity)!;
-    let runner = runnerInto.get(g.from);
-    while (runner !== undefined) {
-      result.set(runner, Math.max(result.get(runner) ?? 0, w));
-      runner = parentOf.get(runner);
-    }
-  }
-  return result;
-}
-
-/** The runner tree seen from the feed node. */
-interface RunnerTree {
-  /** Each runner's upstream runner (undefined at the feed). */
-  parentOf: Map<string, string | undefined>;
-  /** Each runner's downstream node. */
-  downNode: Map<string, string>;
-}
-
 /** A size bound: value (m), the reason shown, and where it comes from (rules are soft for cutters). */
 type Bound = [value: number, why: string, kind: BoundKind];
 
-/** The runner tree by breadth-first search from the feed node. */
-function runnerTree(scenario: Scenario): RunnerTree {
-  const parentOf = new Map<string, string | undefined>();
-  const downNode = new Map<string, string>();
-  const reachedBy = new Map<string, string | undefined>([[scenario.feed.node, undefined]]);
-  const queue = [scenario.feed.node];
-  while (queue.length > 0) {
-    const node = queue.shift()!;
-    for (const r of scenario.runners) {
-      if (parentOf.has(r.id)) continue;
-      const other = r.from === node ? r.to : r.to === node ? r.from : undefined;
-      if (other === undefined) continue;
-      parentOf.set(r.id, reachedBy.get(node));
-      downNode.set(r.id, other);
-      if (!reachedBy.has(other)) {
-        reachedBy.set(other, r.id);
-        queue.push(other);
-      }
-    }
-  }
-  return { parentOf, downNode };
-}
-
-function runnerOrdering(tree: RunnerTree, variables: readonly DesignVariable[]): OrderingRule[] {
-  const { parentOf } = tree;
+function runnerOrdering(
+  scenario: Scenario,
+  tree: RunnerTree,
+  variables: readonly DesignVariable[],
+): OrderingRule[] {
   const index = new Map<string, number>();
   variables.forEach((v, j) => {
     if (v.kind === "runner") index.set(v.element, j);
   });
   const rules: OrderingRule[] = [];
-  for (const [runner, parent] of parentOf) {
+  for (const [runner, parent] of tree.parent) {
     if (parent === undefined) continue;
-    const down = index.get(runner);
-    const up = index.get(parent);
+    const down = index.get(scenario.runners[runner].id);
+    const up = index.get(scenario.runners[parent].id);
     if (down !== undefined && up !== undefined) rules.push({ upstream: up, downstream: down });
   }
   return rules;

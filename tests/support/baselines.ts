@@ -17,6 +17,7 @@ import {
   evaluateDesign,
   runnerVolumeOf,
 } from "../../src/optimize/evaluate_design.ts";
+import { runnerTree } from "../../src/model/runner_tree.ts";
 
 /**
  * Three baseline ways of sizing a runner system, against which the SLP
@@ -66,46 +67,6 @@ export const GATE_SIZE_STEP = 0.05e-3;
 export const CONTINUOUS_RUNNER_STEP = 0.5e-3;
 
 const SIZE_TOLERANCE = 1e-9;
-
-/** The runner tree seen from the feed node. */
-interface RunnerTree {
-  /** Runner indices in breadth-first order from the feed. */
-  order: number[];
-  /** Upstream runner index of each runner index (undefined at the feed). */
-  parent: Map<number, number | undefined>;
-  /** Downstream node id of each runner index. */
-  downNode: Map<number, string>;
-  /** Runner indices leaving each node downstream. */
-  children: Map<string, number[]>;
-  /** Runner index arriving at each node. */
-  arriving: Map<string, number>;
-}
-
-function runnerTree(scenario: Scenario): RunnerTree {
-  const order: number[] = [];
-  const parent = new Map<number, number | undefined>();
-  const downNode = new Map<number, string>();
-  const children = new Map<string, number[]>();
-  const arriving = new Map<string, number>();
-  const queue = [scenario.feed.node];
-  const reached = new Set(queue);
-  while (queue.length > 0) {
-    const node = queue.shift()!;
-    scenario.runners.forEach((r, k) => {
-      if (parent.has(k)) return;
-      const other = r.from === node ? r.to : r.to === node ? r.from : undefined;
-      if (other === undefined || reached.has(other)) return;
-      reached.add(other);
-      parent.set(k, arriving.get(node));
-      downNode.set(k, other);
-      arriving.set(other, k);
-      children.set(node, [...(children.get(node) ?? []), k]);
-      order.push(k);
-      queue.push(other);
-    });
-  }
-  return { order, parent, downNode, children, arriving };
-}
 
 function catalogueOf(scenario: Scenario): CutterCatalogue {
   return cutterCatalogue(scenario.goals.cutters);
