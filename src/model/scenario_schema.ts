@@ -179,6 +179,20 @@ export const CavitySchema = z.object({
   ),
 }).strict();
 
+/**
+ * Relative cost of one change of each kind on an existing tool. Defaults are our own common
+ * practice, no source: enlarging is a cut (cheap, a gate cheapest: a short land); reducing
+ * needs steel added (a weld or an insert, then a re-cut), several times dearer.
+ */
+export const ChangeCostsSchema = z.object({
+  enlarge_gate: z.number().min(0).max(1000).default(1),
+  enlarge_runner: z.number().min(0).max(1000).default(2),
+  reduce_gate: z.number().min(0).max(1000).default(6),
+  reduce_runner: z.number().min(0).max(1000).default(10),
+}).strict();
+/** {@link ChangeCostsSchema} after defaults. */
+export type ChangeCosts = z.infer<typeof ChangeCostsSchema>;
+
 export const GoalsSchema = z.object({
   mode: ModeSchema.default("new_tool").describe(
     "new_tool: free sizes within bounds; trim: an existing tool, runners may shrink; steel_safe: only enlarge",
@@ -194,6 +208,12 @@ export const GoalsSchema = z.object({
   ),
   size_rules: z.boolean().default(true).describe(
     "apply the rule-of-thumb size bounds (tunnel gate 25–60 % of wall, runner ≥ wall + 1.5 mm)",
+  ),
+  max_changes: z.number().int().min(0).max(10000).optional().describe(
+    "at most this many runners and gates changed from today's sizes (trim and steel_safe)",
+  ),
+  change_costs: ChangeCostsSchema.optional().describe(
+    "relative cost of each kind of change, for choosing among plans that meet every limit (trim and steel_safe)",
   ),
 }).strict();
 
