@@ -31,7 +31,7 @@ export interface OptimizationJsonOptions {
   changes?: Change[];
 }
 
-/** The optimization JSON of product.md, with the change list in order of work. */
+/** The optimization JSON (`evenfill.optimization/1`), with the change list in order of work. */
 export function optimizationJson(
   outcome: BalanceOutcome,
   options: OptimizationJsonOptions = {},

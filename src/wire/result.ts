@@ -134,7 +134,7 @@ export const HistorySampleSchema = z.object({
 /** {@link HistorySampleSchema}. */
 export type HistorySample = z.infer<typeof HistorySampleSchema>;
 
-/** `evenfill.result/1`: what every simulation reports (product.md, "Result"). */
+/** `evenfill.result/1`: what every simulation reports. */
 export const ResultSchema = z.object({
   format: z.literal(RESULT_FORMAT),
   scenario: z.string().describe("the scenario's name"),

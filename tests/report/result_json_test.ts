@@ -38,7 +38,7 @@ function schemaKeys(schema: Record<string, unknown>, path = ""): string[] {
   ];
 }
 
-Deno.test("result JSON: its key set is the wire schema's, and holds product.md's stable names", async () => {
+Deno.test("result JSON: its key set is the wire schema's, and holds the stable names", async () => {
   const wire = JSON.parse(
     await Deno.readTextFile(new URL("../../scenarios/family_four_housing.json", import.meta.url)),
   );
@@ -53,7 +53,7 @@ Deno.test("result JSON: its key set is the wire schema's, and holds product.md's
   const declared = new Set(schemaKeys(schema));
   assert.deepEqual([...actual].filter((k) => !declared.has(k)), [], "keys the schema lacks");
   assert.deepEqual([...declared].filter((k) => !actual.has(k)), [], "schema keys the result lacks");
-  // The names product.md ("Result JSON") keeps stable; written out here, not taken from the code.
+  // The names the result JSON keeps stable (README); written out here, not taken from the code.
   for (
     const name of [
       ".format",

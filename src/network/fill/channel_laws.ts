@@ -250,7 +250,7 @@ function branchGeometry(
       };
     }
     case "strip": {
-      // physics.md §4: the front advances along the flow length in a slit of the strip's width.
+      // The front advances along the flow length in a slit of the strip's width.
       const section: Section = { kind: "slit", width: g.width, gap: g.gap - 2 * delta };
       const length = Math.max(fraction, MIN_FILLED_FRACTION) * g.flowLength;
       return { type: "uniform", geometry: uniformChannelGeometry({ section, length }) };
