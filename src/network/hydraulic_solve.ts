@@ -62,6 +62,11 @@ export interface HydraulicOptions {
   massTolerance?: number;
   /** Most linear solves (Newton iterations), default 100. */
   maxIterations?: number;
+  /**
+   * The problem's topology checked and analysed beforehand ({@link hydraulicTopology}), for a
+   * caller that solves one topology many times; it must be that of this problem.
+   */
+  topology?: HydraulicTopology;
 }
 
 /** How well a solve balanced. */
@@ -124,6 +129,31 @@ interface Topology {
   /** element → its off-diagonal entry in the pattern, or −1 unless both ends are free. */
   slot: Int32Array;
   symbolic: SymbolicCholesky;
+}
+
+/** A checked topology with its symbolic factorisation, reusable by every problem that has it. */
+export interface HydraulicTopology {
+  readonly nodeCount: number;
+  readonly elementCount: number;
+  /** @internal */
+  readonly analysed: Topology;
+}
+
+/**
+ * Check and analyse the topology of `problem` (node indices, connectivity, fixed pressures,
+ * inflow nodes; the laws are not looked at) once, for {@link HydraulicOptions.topology}: every
+ * problem with the same node count, element ends, fixed-pressure and inflow nodes may use it.
+ */
+export function hydraulicTopology(
+  problem: HydraulicProblem,
+): { ok: true; topology: HydraulicTopology } | Failure {
+  const checked = checkTopology(problem);
+  if (!checked.ok) return checked;
+  const analysed = topologyOf(problem.nodeCount, checked.from, checked.to, checked.fixed);
+  return {
+    ok: true,
+    topology: { nodeCount: problem.nodeCount, elementCount: problem.elements.length, analysed },
+  };
 }
 
 const topologyCache: Topology[] = [];
@@ -312,8 +342,21 @@ export function solveHydraulics(
   problem: HydraulicProblem,
   options: HydraulicOptions = {},
 ): HydraulicSolution {
-  const checked = checkTopology(problem);
-  if (!checked.ok) return checked;
+  let topology: Topology;
+  if (options.topology) {
+    const given = options.topology;
+    if (given.nodeCount !== problem.nodeCount || given.elementCount !== problem.elements.length) {
+      throw new RangeError(
+        `Cannot solve hydraulics: the topology given has ${given.nodeCount} nodes and ` +
+          `${given.elementCount} elements, the problem ${problem.nodeCount} and ${problem.elements.length}`,
+      );
+    }
+    topology = given.analysed;
+  } else {
+    const checked = checkTopology(problem);
+    if (!checked.ok) return checked;
+    topology = topologyOf(problem.nodeCount, checked.from, checked.to, checked.fixed);
+  }
   const { flowTolerance, massTolerance, maxIterations, initial } = checkOptions(
     options,
     problem.elements.length,
@@ -321,7 +364,6 @@ export function solveHydraulics(
   const n = problem.nodeCount;
   const elements = problem.elements;
   const m = elements.length;
-  const topology = topologyOf(n, checked.from, checked.to, checked.fixed);
   const { from, to, freeIndex, freeNodes, slot, symbolic } = topology;
   const freeCount = freeNodes.length;
 

@@ -6,7 +6,7 @@
  */
 import type { FlowCurve } from "../materials/flow_curve.ts";
 import { kozickiConstants } from "./noncircular.ts";
-import { hydraulicDiameter, type Section, sectionArea } from "./section.ts";
+import { hydraulicDiameter, type Section, sectionArea, validateSection } from "./section.ts";
 import { type IntegralCursor, wallResponseInto } from "./_wall_shear.ts";
 
 /** Section data the channel laws need, computed once per section. */
@@ -25,6 +25,13 @@ export interface SectionFlowData {
 
 /** Area, Dh and Kozicki constants of a section, with the factors derived from them. */
 export function sectionFlowData(section: Section): SectionFlowData {
+  if (section.kind === "circle") {
+    // sectionArea and hydraulicDiameter written out (one validation instead of three).
+    validateSection(section);
+    const r = section.radius;
+    const area = Math.PI * r * r;
+    return flowData(area, (4 * area) / (2 * Math.PI * r), 0.25, 0.75);
+  }
   const { a, b } = kozickiConstants(section);
   return flowData(sectionArea(section), hydraulicDiameter(section), a, b);
 }

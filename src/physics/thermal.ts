@@ -76,16 +76,22 @@ export function frozenLayerThickness(contactTime: number, options: FrozenLayerOp
   return 2 * rememberedErfInv(theta) * Math.sqrt(options.diffusivity * contactTime);
 }
 
-/** erf⁻¹ of the last few thousand arguments asked for (a fill asks for the same θ often). */
-const ERF_INV_SEEN = new Map<number, number>();
+/**
+ * erf⁻¹ of recent arguments (a fill asks for the same θ at every trial of a step): a
+ * direct-mapped table of 1024 slots indexed by the argument's bits.
+ */
+const ERF_INV_KEYS = new Float64Array(1024).fill(NaN);
+const ERF_INV_VALUES = new Float64Array(1024);
+const BITS = new Float64Array(1);
+const BITS_WORDS = new Uint32Array(BITS.buffer);
 
 function rememberedErfInv(x: number): number {
-  let y = ERF_INV_SEEN.get(x);
-  if (y === undefined) {
-    y = erfInv(x);
-    if (ERF_INV_SEEN.size >= 4096) ERF_INV_SEEN.clear();
-    ERF_INV_SEEN.set(x, y);
-  }
+  BITS[0] = x;
+  const slot = (BITS_WORDS[0] ^ BITS_WORDS[1]) & 1023;
+  if (ERF_INV_KEYS[slot] === x) return ERF_INV_VALUES[slot];
+  const y = erfInv(x);
+  ERF_INV_KEYS[slot] = x;
+  ERF_INV_VALUES[slot] = y;
   return y;
 }
 

@@ -3,6 +3,7 @@ import { assertClose } from "../assert_close.ts";
 import {
   type HydraulicElement,
   type HydraulicProblem,
+  hydraulicTopology,
   solveHydraulics,
 } from "../../src/network/hydraulic_solve.ts";
 
@@ -311,4 +312,37 @@ Deno.test("non-convergence is a value with diagnostics", () => {
     assert.equal(s.code, "did_not_converge");
     assert.equal(s.diagnostics?.iterations, 1);
   }
+});
+
+Deno.test("a topology checked beforehand gives the same solution, bit for bit, and must fit the problem", () => {
+  // Two power-law branches in parallel behind a feed: by hand, the split Q1/Q2 = (r2/r1)^(1/n).
+  const n = 0.4;
+  const problem: HydraulicProblem = {
+    nodeCount: 4,
+    elements: [
+      element(0, 1, powerLaw(2e9, n)),
+      element(1, 2, powerLaw(1e9, n)),
+      element(1, 3, powerLaw(3e9, n)),
+    ],
+    fixedPressure: new Map([[2, 0], [3, 0]]),
+    inflow: new Map([[0, 1e-5]]),
+  };
+  const prepared = hydraulicTopology(problem);
+  assert.ok(prepared.ok);
+  const plain = solveHydraulics(problem);
+  const reused = solveHydraulics(problem, { topology: prepared.topology });
+  assert.ok(plain.ok && reused.ok);
+  // Exact on purpose: only the checks are skipped, the arithmetic is the same.
+  assert.deepEqual(reused.flows, plain.flows);
+  assert.deepEqual(reused.pressures, plain.pressures);
+  assertClose(reused.flows[1] / reused.flows[2], Math.pow(3, 1 / n), {
+    rel: 1e-8,
+    what: "parallel split (r2/r1)^(1/n)",
+  });
+  assert.throws(
+    () => solveHydraulics({ ...problem, nodeCount: 5 }, { topology: prepared.topology }),
+    RangeError,
+  );
+  const floating = hydraulicTopology({ ...problem, fixedPressure: new Map() });
+  assert.ok(!floating.ok && floating.code === "invalid_topology");
 });

@@ -233,3 +233,22 @@ Deno.test("cylinder centre-line amplitude 2/(λ₁·J1(λ₁)) = 1.6020 (A&S Tab
   });
   assertClose(t, 28.907, { rel: 2e-4, what: "hand-worked centre-line time" });
 });
+
+Deno.test("frozen layer: remembered erf⁻¹ gives the uncached 2·erf⁻¹(θ)·√(αt) exactly, hits and misses alike", () => {
+  // Exact comparison on purpose: the remembered value must be the computed one, bit for bit.
+  // 3000 melt temperatures (more than the table's 1024 slots), each asked three times.
+  for (let pass = 0; pass < 3; pass++) {
+    for (let k = 0; k < 3000; k++) {
+      const tm = 430 + k * 0.037;
+      const options = { ...layer, meltTemperature: tm };
+      const theta = (layer.noFlowTemperature - layer.wallTemperature) /
+        (tm - layer.wallTemperature);
+      const t = 0.5 + pass;
+      assert.equal(
+        frozenLayerThickness(t, options),
+        2 * erfInv(theta) * Math.sqrt(layer.diffusivity * t),
+        `T_m = ${tm} K, pass ${pass}`,
+      );
+    }
+  }
+});

@@ -1,5 +1,5 @@
 import type { ChannelFlow } from "../../physics/mod.ts";
-import { type HydraulicElement, solveHydraulics } from "../hydraulic_solve.ts";
+import { type HydraulicElement, hydraulicTopology, solveHydraulics } from "../hydraulic_solve.ts";
 import type { Assembly } from "./assemble.ts";
 import { type BranchLawCache, branchLawCache, cachedBranchLaw } from "./channel_laws.ts";
 import type { FillContext } from "./context.ts";
@@ -34,6 +34,48 @@ export function solveStats(): SolveStats {
   };
 }
 
+/** The hydraulic problem of an assembly without its laws, and its checked topology. */
+interface AssemblyProblem {
+  ctx: FillContext;
+  nodeCount: number;
+  from: Int32Array;
+  to: Int32Array;
+  fixedPressure: Map<number, number>;
+  inflow: Map<number, number>;
+  topology: ReturnType<typeof hydraulicTopology>;
+}
+
+/** Each assembly's problem, made on its first solve (trials of one step share an assembly). */
+const problems = new WeakMap<Assembly, AssemblyProblem>();
+
+/** The nodal problem of `assembly`: its local nodes, then one fixed node at 0 Pa per front. */
+function problemOf(ctx: FillContext, assembly: Assembly): AssemblyProblem {
+  const known = problems.get(assembly);
+  if (known && known.ctx === ctx) return known;
+  const K = assembly.branches.length;
+  const from = new Int32Array(K);
+  const to = new Int32Array(K);
+  const fixedPressure = new Map<number, number>();
+  let next = assembly.nodeCount;
+  assembly.branches.forEach((br, k) => {
+    if (br.b < 0) {
+      to[k] = next++;
+      fixedPressure.set(to[k], 0);
+    } else to[k] = assembly.local[br.b];
+    from[k] = assembly.local[br.a];
+  });
+  const inflow = new Map([[assembly.local[ctx.network.inlet], ctx.injectionRate]]);
+  const elements = Array.from({ length: K }, (_, k) => ({
+    from: from[k],
+    to: to[k],
+    law: () => ({ pressureDrop: 0, dPressureDropDFlow: 1 }),
+  }));
+  const topology = hydraulicTopology({ nodeCount: next, elements, fixedPressure, inflow });
+  const problem = { ctx, nodeCount: next, from, to, fixedPressure, inflow, topology };
+  problems.set(assembly, problem);
+  return problem;
+}
+
 /** The branch laws kept between the solves of one fill (`cachedBranchLaw`). */
 const lawCaches = new WeakMap<FillContext, BranchLawCache>();
 
@@ -50,7 +92,7 @@ export function solveInstant(
   at: { t: number; volumes: Float64Array; assembly: Assembly; warm?: Float64Array },
 ): Solved | { failure: string } {
   const { t, volumes, assembly, warm } = at;
-  const { network, nodeCount } = ctx;
+  const { nodeCount } = ctx;
   if (assembly.branches.length === 0) {
     // Frozen shut at the feed: nothing flows, every wet node keeps its last pressure.
     const pressure = new Float64Array(nodeCount).fill(NaN);
@@ -61,25 +103,23 @@ export function solveInstant(
   if (!cache) lawCaches.set(ctx, cache = branchLawCache(ctx.elements.length));
   const keep = { t, volumes, cache };
   const laws = assembly.branches.map((br) => cachedBranchLaw(ctx, state, br, keep));
-  const fixedPressure = new Map<number, number>();
-  let next = assembly.nodeCount;
-  const hydraulic: HydraulicElement[] = assembly.branches.map((br, k) => {
-    let to: number;
-    if (br.b < 0) {
-      to = next++;
-      fixedPressure.set(to, 0);
-    } else to = assembly.local[br.b];
-    return { from: assembly.local[br.a], to, law: laws[k].resistance };
-  });
-  const solution = solveHydraulics(
-    {
-      nodeCount: next,
-      elements: hydraulic,
-      fixedPressure,
-      inflow: new Map([[assembly.local[network.inlet], ctx.injectionRate]]),
-    },
-    { initialFlows: warm },
-  );
+  const problem = problemOf(ctx, assembly);
+  const hydraulic: HydraulicElement[] = new Array(laws.length);
+  for (let k = 0; k < laws.length; k++) {
+    hydraulic[k] = { from: problem.from[k], to: problem.to[k], law: laws[k].resistance };
+  }
+  const topology = problem.topology;
+  const solution = topology.ok
+    ? solveHydraulics(
+      {
+        nodeCount: problem.nodeCount,
+        elements: hydraulic,
+        fixedPressure: problem.fixedPressure,
+        inflow: problem.inflow,
+      },
+      { initialFlows: warm, topology: topology.topology },
+    )
+    : topology;
   stats.hydraulicSolves++;
   if (!solution.ok) return { failure: `${solution.code}: ${solution.message}` };
   const d = solution.diagnostics;
