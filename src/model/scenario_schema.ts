@@ -2,6 +2,11 @@ import { z } from "zod";
 import { MaterialSchema } from "./material_schema.ts";
 import { MeasurementsSchema } from "./measurements_schema.ts";
 import { ModeSchema } from "../wire/enums.ts";
+import {
+  DEFAULT_MAX_RUNNER_COOLING_RATIO,
+  RUNNER_OVER_WALL_MM,
+  SPRUE_EXIT_MARGIN_MM,
+} from "./size_rules.ts";
 
 /**
  * The scenario file, wire format `evenfill.scenario/1`. Units are in the field
@@ -45,6 +50,9 @@ export const ProcessSchema = z.object({
   ),
   thermal: z.enum(["full", "isothermal"]).default("full").describe(
     "isothermal turns off frozen layer, viscous heating and temperature dependence (verification runs)",
+  ),
+  hold_time_s: z.number().positive().max(600).optional().describe(
+    "holding-pressure time after switchover, s: with the gate_hold size rule, every adjustable gate must stay open (not frozen) until it ends",
   ),
 }).strict();
 
@@ -193,6 +201,28 @@ export const ChangeCostsSchema = z.object({
 /** {@link ChangeCostsSchema} after defaults. */
 export type ChangeCosts = z.infer<typeof ChangeCostsSchema>;
 
+/** Per-rule switches of `goals.size_rules`; a rule left out is on. */
+export const SizeRulesSchema = z.object({
+  runner_over_wall: z.boolean().optional().describe(
+    `runner ≥ the thickest wall it feeds + ${RUNNER_OVER_WALL_MM} mm (common practice)`,
+  ),
+  gate_to_wall: z.boolean().optional().describe(
+    "gate size within its range of the wall: edge depth 50–80 %, pin and tunnel tip 25–60 % (common practice)",
+  ),
+  feed_order: z.boolean().optional().describe(
+    "a runner is never larger than the runner feeding it (on even with size_rules: false)",
+  ),
+  sprue_exit: z.boolean().optional().describe(
+    `the sprue's exit is at least ${SPRUE_EXIT_MARGIN_MM} mm larger than each runner leaving it (common practice: 0.5–1 mm)`,
+  ),
+  runner_cooling: z.boolean().optional().describe(
+    "a cold runner's cooling time is at most max_runner_cooling_ratio × the thickest part's, or the sprue's when longer (cylinder axis against plate centre line, first-term closed forms): a runner no larger than max(that size, the sprue exit)",
+  ),
+  gate_hold: z.boolean().optional().describe(
+    "each adjustable gate freezes no sooner than process.hold_time_s, when given",
+  ),
+}).strict();
+
 export const GoalsSchema = z.object({
   mode: ModeSchema.default("new_tool").describe(
     "new_tool: free sizes within bounds; trim: an existing tool, runners may shrink; steel_safe: only enlarge",
@@ -206,9 +236,13 @@ export const GoalsSchema = z.object({
   gate_shear_limit_1_s: z.number().positive().max(1e7).optional().describe(
     "overrides the material's maximum shear rate",
   ),
-  size_rules: z.boolean().default(true).describe(
-    "apply the rule-of-thumb size bounds (tunnel gate 25–60 % of wall, runner ≥ wall + 1.5 mm)",
+  size_rules: z.union([z.boolean(), SizeRulesSchema]).default(true).describe(
+    "the practical size rules the optimizer keeps: true all, false none but feed_order, or an object switching each by name (runner_over_wall, gate_to_wall, feed_order, sprue_exit, runner_cooling, gate_hold; one left out is on). On an existing tool (trim, steel_safe) a rule never forces a change: where today's size breaks it, the bound is today's size and a warning says so",
   ),
+  max_runner_cooling_ratio: z.number().gt(0).max(100).default(DEFAULT_MAX_RUNNER_COOLING_RATIO)
+    .describe(
+      "runner_cooling rule: a cold runner may need at most this multiple of the thickest part's cooling time, or the sprue's when that is longer (common practice, no source), so a balance does not lengthen the cycle",
+    ),
   max_changes: z.number().int().min(0).max(10000).optional().describe(
     "at most this many runners and gates changed from today's sizes (trim and steel_safe)",
   ),
@@ -236,6 +270,7 @@ export const ScenarioSchema = z.object({
     max_pressure_fraction: 0.8,
     cutters: "metric",
     size_rules: true,
+    max_runner_cooling_ratio: DEFAULT_MAX_RUNNER_COOLING_RATIO,
   }),
   measurements: MeasurementsSchema.optional().describe(
     "weighed short shots (and the full-shot pressure) of today's tool, for `calibrate`",

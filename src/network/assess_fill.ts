@@ -1,5 +1,15 @@
-import { gateRuleVerdict, RUNNER_OVER_WALL_MM, runnerFloorMm } from "../model/size_rules.ts";
+import {
+  gateHoldVerdict,
+  gateRuleVerdict,
+  RUNNER_OVER_WALL_MM,
+  runnerCoolingVerdict,
+  runnerFloorMm,
+  SPRUE_EXIT_MARGIN_MM,
+  sprueExitVerdict,
+} from "../model/size_rules.ts";
 import type { Scenario } from "../model/scenario_schema.ts";
+import { runnerTree } from "../model/runner_tree.ts";
+import type { Material } from "../materials/material.ts";
 import { cylinderCentreCoolingTime, plateCoolingTime } from "../physics/thermal.ts";
 import type { FeedNetwork } from "./feed_network.ts";
 import type { FillResult } from "./fill_result.ts";
@@ -64,6 +74,57 @@ export interface FillWarning {
 /** Press maker's rule of thumb for a clamp reserve (common practice, no source). */
 export const CLAMP_RESERVE = 1.2;
 
+/** The process temperatures the estimates start from, K, and the thermal switch. */
+export interface ThermalSettings {
+  /** Melt temperature at the feed's exit (the hot drop's tip, or the process melt), K. */
+  feedTemperature: number;
+  moldTemperature: number;
+  isothermal: boolean;
+}
+
+/** The thermal data of the estimates, from a resin and the process temperatures. */
+export function thermalDataOf(material: Material, settings: ThermalSettings): ThermalData {
+  return {
+    diffusivity: material.thermalDiffusivity,
+    meltTemperature: settings.feedTemperature,
+    moldTemperature: settings.moldTemperature,
+    noFlowTemperature: material.noFlowTemperature,
+    ejectionTemperature: material.ejectionTemperature,
+    maxShearRate: material.maxShearRate,
+    meltTemperatureRange: material.meltTemperatureRange,
+    moldTemperatureRange: material.moldTemperatureRange,
+    isothermal: settings.isothermal,
+  };
+}
+
+/**
+ * Time for the centre line of a plate (thickness `size`, m) or the axis of a cylinder
+ * (diameter `size`, m) to reach `target` (K), s: {@link plateCoolingTime} or
+ * {@link cylinderCentreCoolingTime} with `data`'s diffusivity, melt and mold temperatures. Both
+ * are c·size² (first series term), which is what turns the size rules' time limits into bounds.
+ */
+export function centreCoolingTime(
+  formula: FreezeEntry["formula"],
+  size: number,
+  data: ThermalData,
+  target: number,
+): number {
+  const options = {
+    diffusivity: data.diffusivity,
+    meltTemperature: data.meltTemperature,
+    moldTemperature: data.moldTemperature,
+    ejectionTemperature: target,
+  };
+  return formula === "cylinder_centre"
+    ? cylinderCentreCoolingTime(size, options)
+    : plateCoolingTime(size, options);
+}
+
+/** The closed form a scenario gate freezes by: an edge gate is a plate, a pin or tunnel gate a cylinder. */
+export function gateFreezeFormula(type: "edge" | "pin" | "tunnel"): FreezeEntry["formula"] {
+  return type === "edge" ? "plate_centre" : "cylinder_centre";
+}
+
 /**
  * Freeze and cooling times per part, gate, runner and sprue: the first-term
  * closed forms for the centre line of a plate (walls, edge gates; Menges, Michaeli &
@@ -71,11 +132,6 @@ export const CLAMP_RESERVE = 1.2;
  * Jaeger §7.6). Both are centre-line forms, so times of walls and channels compare.
  */
 export function freezeTimes(network: FeedNetwork, data: ThermalData): FreezeTimes {
-  const common = {
-    diffusivity: data.diffusivity,
-    meltTemperature: data.meltTemperature,
-    moldTemperature: data.moldTemperature,
-  };
   const entries: FreezeEntry[] = [];
   for (const e of network.elements) {
     if (e.heated) continue;
@@ -83,10 +139,7 @@ export function freezeTimes(network: FeedNetwork, data: ThermalData): FreezeTime
       (e.kind === "gate" && e.geometry.type !== "uniform") ||
       (e.kind === "gate" && e.geometry.type === "uniform" && e.geometry.section.kind === "circle");
     const formula = round ? "cylinder_centre" : "plate_centre";
-    const time = (target: number) =>
-      round
-        ? cylinderCentreCoolingTime(e.thickness, { ...common, ejectionTemperature: target })
-        : plateCoolingTime(e.thickness, { ...common, ejectionTemperature: target });
+    const time = (target: number) => centreCoolingTime(formula, e.thickness, data, target);
     entries.push({
       id: e.id,
       kind: e.kind === "cavity" ? "part" : e.kind === "feed" ? "sprue" : e.kind,
@@ -286,6 +339,28 @@ export function fillWarnings(
     }
   }
 
+  // Sprue exit over each runner leaving it (common practice, no source): model/size_rules.ts.
+  if (scenario.feed.kind === "sprue") {
+    const exit = scenario.feed.exit_diameter_mm;
+    for (const k of runnerTree(scenario).children.get(scenario.feed.node) ?? []) {
+      const r = scenario.runners[k];
+      const { ok, stepMm } = sprueExitVerdict(exit, r.diameter_mm);
+      if (ok) continue;
+      warnings.push({
+        code: "sprue_exit_below_margin",
+        severity: "caution",
+        element: r.id,
+        message: `Runner ${r.id} (${r.diameter_mm} mm) leaves the ${exit} mm sprue exit ${
+          stepMm > 0
+            ? `only ${stepMm.toFixed(2)} mm smaller`
+            : stepMm < 0
+            ? "larger"
+            : "at its size"
+        }; common practice is a sprue exit at least ${SPRUE_EXIT_MARGIN_MM} mm larger than the runner it feeds (sprue_exit rule), so the sprue freezes last and pulls cleanly.`,
+      });
+    }
+  }
+
   // Freeze order (common practice): gate before the part, runner after the part.
   const byId = new Map(freeze.entries.map((x) => [x.id, x]));
   for (const c of network.cavities) {
@@ -324,15 +399,60 @@ export function fillWarnings(
       }
     }
   }
+  const hold = scenario.process.hold_time_s;
+  if (hold !== undefined) {
+    for (const entry of freeze.entries) {
+      if (entry.kind !== "gate" || gateHoldVerdict(entry.freezeTime, hold).ok) continue;
+      warnings.push({
+        code: "gate_freezes_before_hold",
+        severity: "caution",
+        element: entry.id,
+        message: `Gate ${entry.id} freezes ${
+          entry.freezeTime.toFixed(2)
+        } s into cooling, before the ${hold} s hold time ends: the holding pressure stops packing its part early (gate_hold rule).`,
+      });
+    }
+  }
+  // Runner cooling against the thickest part (ratio: goals.max_runner_cooling_ratio), or the
+  // sprue's when that is longer: model/size_rules.ts.
+  const ratio = scenario.goals.max_runner_cooling_ratio;
+  const sprue = freeze.entries.find((x) => x.kind === "sprue");
+  if (freeze.partCoolingTime > 0) {
+    for (const entry of freeze.entries) {
+      if (entry.kind !== "runner" && entry.kind !== "sprue") continue;
+      const sprueCoolingTime = entry.kind === "runner" ? sprue?.coolingTime : undefined;
+      const verdict = runnerCoolingVerdict(entry.coolingTime, freeze.partCoolingTime, {
+        ratio,
+        sprueCoolingTime,
+      });
+      if (verdict.ok) continue;
+      const what = entry.kind === "sprue" ? "The sprue" : `Runner ${entry.id}`;
+      const sprueLonger = sprueCoolingTime !== undefined &&
+        sprueCoolingTime > ratio * freeze.partCoolingTime;
+      warnings.push({
+        code: "runner_cooling_over_ratio",
+        severity: "caution",
+        element: entry.id,
+        message: `${what} needs ${entry.coolingTime.toFixed(1)} s to cool, ${
+          verdict.share.toFixed(1)
+        } × the thickest part's ${freeze.partCoolingTime.toFixed(1)} s, over ${
+          sprueLonger
+            ? `the sprue's ${sprueCoolingTime.toFixed(1)} s`
+            : `the ${ratio} × of goals.max_runner_cooling_ratio`
+        } (runner_cooling rule): it lengthens the cycle.`,
+      });
+    }
+  }
   if (freeze.runnerCoolingTime > freeze.partCoolingTime) {
+    const over = freeze.runnerCoolingTime > ratio * freeze.partCoolingTime * (1 + 1e-12);
     warnings.push({
       code: "runner_sets_cycle",
-      severity: "info",
+      severity: over ? "caution" : "info",
       message: `The cold runner needs ${
         freeze.runnerCoolingTime.toFixed(1)
-      } s to cool, longer than the thickest part (${
-        freeze.partCoolingTime.toFixed(1)
-      } s): ${freeze.cycleSetBy} sets the cooling time.`,
+      } s to cool, longer than the thickest part (${freeze.partCoolingTime.toFixed(1)} s)${
+        over ? `, more than the ${ratio} × of goals.max_runner_cooling_ratio` : ""
+      }: ${freeze.cycleSetBy} sets the cooling time.`,
     });
   }
   const unique = new Map<string, FillWarning>();

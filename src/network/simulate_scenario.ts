@@ -11,6 +11,8 @@ import {
   type FreezeTimes,
   freezeTimes,
   type ThermalData,
+  thermalDataOf,
+  type ThermalSettings,
 } from "./assess_fill.ts";
 import { buildNetwork } from "./build_network.ts";
 import type { FeedNetwork } from "./feed_network.ts";
@@ -94,6 +96,17 @@ export function resolveMaterial(scenario: Scenario): Material {
   return toMaterial(m);
 }
 
+/** The melt temperature at the feed's exit (a hot drop's tip, or the process melt), the mold's, K, and the thermal switch. */
+export function thermalSettingsOf(scenario: Scenario): ThermalSettings {
+  const p = scenario.process;
+  const tip = scenario.feed.kind === "hot_drop" ? scenario.feed.tip_temperature_C : undefined;
+  return {
+    feedTemperature: cToK(tip ?? p.melt_temperature_C),
+    moldTemperature: cToK(p.mold_temperature_C),
+    isothermal: p.thermal === "isothermal",
+  };
+}
+
 /** Fill process settings of a scenario, SI. */
 export function processOf(scenario: Scenario, network: FeedNetwork): FillProcess {
   const p = scenario.process;
@@ -101,13 +114,13 @@ export function processOf(scenario: Scenario, network: FeedNetwork): FillProcess
   const injectionRate = "flow_rate_cm3_s" in p.injection
     ? cm3PerSToM3PerS(p.injection.flow_rate_cm3_s)
     : shot / p.injection.fill_time_s;
-  const tip = scenario.feed.kind === "hot_drop" ? scenario.feed.tip_temperature_C : undefined;
+  const { feedTemperature, moldTemperature, isothermal } = thermalSettingsOf(scenario);
   return {
     injectionRate,
     switchoverFraction: p.switchover_percent / 100,
-    feedTemperature: cToK(tip ?? p.melt_temperature_C),
-    moldTemperature: cToK(p.mold_temperature_C),
-    isothermal: p.thermal === "isothermal",
+    feedTemperature,
+    moldTemperature,
+    isothermal,
   };
 }
 
@@ -221,17 +234,7 @@ export function completeRun(
   fill: FillResult,
 ): ScenarioRun {
   const material = setup.material;
-  const thermal: ThermalData = {
-    diffusivity: material.thermalDiffusivity,
-    meltTemperature: process.feedTemperature,
-    moldTemperature: process.moldTemperature,
-    noFlowTemperature: material.noFlowTemperature,
-    ejectionTemperature: material.ejectionTemperature,
-    maxShearRate: material.maxShearRate,
-    meltTemperatureRange: material.meltTemperatureRange,
-    moldTemperatureRange: material.moldTemperatureRange,
-    isothermal: process.isothermal,
-  };
+  const thermal = thermalDataOf(material, process);
   const freeze = freezeTimes(network, thermal);
   const warnings = fillWarnings({ scenario, network, fill }, { thermal, freeze });
   const partMasses = network.cavities.map((c) => c.volume * material.solidDensity);

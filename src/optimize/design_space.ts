@@ -7,13 +7,27 @@ import {
   ROUND_GATE_WALL_FRACTION,
   RUNNER_OVER_WALL_MM,
   runnerFloorMm,
+  sizeForTime,
+  sizeRuleSwitches,
+  SPRUE_EXIT_MARGIN_MM,
+  sprueExitCeilingMm,
 } from "../model/size_rules.ts";
+import { centreCoolingTime, gateFreezeFormula, thermalDataOf } from "../network/assess_fill.ts";
+import { resolveMaterial, thermalSettingsOf } from "../network/simulate_scenario.ts";
 
 /**
  * The design variables of a scenario: one size per element marked
  * `adjustable` (runner diameter; gate thickness for edge gates, diameter for
  * pin and tunnel gates), with bounds from the scenario, the size rules and the
  * mode. Sizes are in metres here; `applyDesign` writes them back in mm.
+ *
+ * The size rules (`model/size_rules.ts`, switched by `goals.size_rules`): runner ≥ wall + 1.5 mm
+ * and the gate-to-wall ranges bind in every mode, as they always did; the feed order, the sprue
+ * exit over the runners leaving it, the runner-cooling ceiling and the gate-hold floor never bind
+ * tighter than today's size on an existing tool (trim, steel_safe), so none forces a change by
+ * itself (today's tool may break one: its warning says so), and bind fully on a new tool. The
+ * cooling and hold limits become sizes by the D² scaling of the first-term closed forms
+ * (`network/assess_fill.ts` `centreCoolingTime`).
  *
  * @module
  */
@@ -52,10 +66,13 @@ export interface DesignVariable {
 }
 
 /**
- * Where a bound comes from: the scenario's own limits, a size rule of thumb, the steel-safe
- * floor (today's size), the feed order against a fixed neighbour, or the cavity wall.
+ * Where a bound comes from: the scenario's own limits, a size rule of thumb (a cutter may cross
+ * it by {@link RULE_CUTTER_TOLERANCE}), a strict size rule (sprue exit, runner cooling, gate
+ * hold: each compares with a number the scenario sets and its warning checks that number
+ * exactly, so no cutter crosses it), the steel-safe floor (today's size), the feed order against
+ * a fixed neighbour, or the cavity wall.
  */
-export type BoundKind = "scenario" | "rule" | "steel_safe" | "feed_order" | "wall";
+export type BoundKind = "scenario" | "rule" | "strict_rule" | "steel_safe" | "feed_order" | "wall";
 
 /** Pairs (upstream, downstream) of runner variables: the feeding runner is never the smaller one. */
 export interface OrderingRule {
@@ -86,10 +103,23 @@ export { EDGE_GATE_WALL_FRACTION, ROUND_GATE_WALL_FRACTION, RUNNER_OVER_WALL_MM 
 
 /** Build the design space of a validated scenario. */
 export function designSpace(scenario: Scenario): DesignSpace {
-  const rules = scenario.goals.size_rules;
+  const rules = sizeRuleSwitches(scenario.goals.size_rules);
   const steelSafe = scenario.goals.mode === "steel_safe";
+  const existingTool = scenario.goals.mode !== "new_tool";
+  const limits = thermalLimits(scenario, rules);
   const wall = new Map(scenario.cavities.map((c) => [c.id, c.wall_mm]));
   const tree = runnerTree(scenario);
+  const sprueExit = scenario.feed.kind === "sprue" && rules.sprue_exit
+    ? scenario.feed.exit_diameter_mm
+    : undefined;
+  const mainRunners = new Set(tree.children.get(scenario.feed.node) ?? []);
+  // On an existing tool a rule never binds tighter than today's size (it may be broken today).
+  const ceiling = (rule: number, today: number) => existingTool ? Math.max(rule, today) : rule;
+  const floor = (rule: number, today: number) => existingTool ? Math.min(rule, today) : rule;
+  const broken = (rule: number, today: number, upper: boolean) =>
+    existingTool && (upper ? today > rule : today < rule)
+      ? ", held at today's size, which breaks it"
+      : "";
   const wallBelow = thickestWallDownstream(scenario, tree);
   const runnerIndex = new Map(scenario.runners.map((r, k) => [r.id, k]));
   const parentId = (id: string) => {
@@ -190,22 +220,42 @@ export function designSpace(scenario: Scenario): DesignSpace {
       "scenario",
     ]];
     const w = wallBelow.get(index);
-    if (rules && w !== undefined) {
+    if (rules.runner_over_wall && w !== undefined) {
       lower.push([
         mmToM(runnerFloorMm(w)),
         `runner ≥ wall + ${RUNNER_OVER_WALL_MM} mm rule`,
         "rule",
       ]);
     }
+    if (sprueExit !== undefined && mainRunners.has(index)) {
+      const rule = mmToM(sprueExitCeilingMm(sprueExit));
+      upper.push([
+        ceiling(rule, mmToM(d)),
+        `sprue exit ${sprueExit} mm − ${SPRUE_EXIT_MARGIN_MM} mm rule (sprue_exit)${
+          broken(rule, mmToM(d), true)
+        }`,
+        "strict_rule",
+      ]);
+    }
+    if (limits.runnerCeiling !== undefined) {
+      const rule = limits.runnerCeiling;
+      upper.push([
+        ceiling(rule, mmToM(d)),
+        `runner cooling ≤ ${scenario.goals.max_runner_cooling_ratio} × thickest part or the sprue's rule (runner_cooling)${
+          broken(rule, mmToM(d), true)
+        }`,
+        "strict_rule",
+      ]);
+    }
     if (steelSafe) lower.push([mmToM(d), "steel-safe: today's size", "steel_safe"]);
-    for (const c of fixedChildren) {
+    for (const c of rules.feed_order ? fixedChildren : []) {
       lower.push([
         mmToM(Math.min(c.diameter_mm, d)),
         `the fixed runner ${c.id} it feeds`,
         "feed_order",
       ]);
     }
-    if (fixedParent) {
+    if (fixedParent && rules.feed_order) {
       upper.push([
         mmToM(Math.max(fixedParent.diameter_mm, d)),
         `the fixed runner ${fixedParent.id} feeding it`,
@@ -231,10 +281,20 @@ export function designSpace(scenario: Scenario): DesignSpace {
       [mmToM(max ?? size * 2), `max_${field}_mm`, "scenario"],
       [mmToM(w), "the cavity wall", "wall"],
     ];
-    if (rules) {
+    if (rules.gate_to_wall) {
       const [lo, hi] = gateWallFraction(g.type);
       lower.push([mmToM(lo * w), `gate ≥ ${lo * 100} % of wall rule`, "rule"]);
       upper.push([mmToM(hi * w), `gate ≤ ${hi * 100} % of wall rule`, "rule"]);
+    }
+    const holdFloor = limits.gateFloor(g.type);
+    if (holdFloor !== undefined) {
+      lower.push([
+        floor(holdFloor, mmToM(size)),
+        `gate freeze ≥ hold time ${scenario.process.hold_time_s} s rule (gate_hold)${
+          broken(holdFloor, mmToM(size), false)
+        }`,
+        "strict_rule",
+      ]);
     }
     if (steelSafe) lower.push([mmToM(size), "steel-safe: today's size", "steel_safe"]);
     push({
@@ -256,7 +316,7 @@ export function designSpace(scenario: Scenario): DesignSpace {
   return {
     scenario,
     variables,
-    ordering: runnerOrdering(scenario, tree, variables),
+    ordering: rules.feed_order ? runnerOrdering(scenario, tree, variables) : [],
     gateCavity,
     conflicts,
   };
@@ -284,6 +344,59 @@ export function applyDesign(space: DesignSpace, x: ArrayLike<number>): Scenario 
 
 /** A size bound: value (m), the reason shown, and where it comes from (rules are soft for cutters). */
 type Bound = [value: number, why: string, kind: BoundKind];
+
+/** The sizes the thermal rules allow, m: a ceiling for every cold runner, a floor per gate type. */
+interface ThermalLimits {
+  runnerCeiling?: number;
+  gateFloor(type: "edge" | "pin" | "tunnel"): number | undefined;
+}
+
+/**
+ * The runner-cooling ceiling and the gate-hold floors of a scenario, m. A cold runner cools by
+ * the cylinder's axis, the thickest part by the plate's centre line (the estimates of
+ * `network/assess_fill.ts`); both are c·D², so the largest runner whose cooling time is at most
+ * ratio × the part's is D = √(ratio·t_part / c_cylinder), or the sprue's exit if larger (the
+ * sprue then already sets the cycle: model/size_rules.ts `runnerCoolingVerdict`). A gate freezes (centre at the no-flow
+ * temperature) by the plate (edge) or the cylinder (pin, tunnel); the smallest that stays open
+ * through the hold time is s = √(t_hold / c). No limit where the closed form gives none (a mold
+ * at or above the target temperature, a melt starting at it).
+ */
+function thermalLimits(
+  scenario: Scenario,
+  rules: ReturnType<typeof sizeRuleSwitches>,
+): ThermalLimits {
+  const hold = rules.gate_hold ? scenario.process.hold_time_s : undefined;
+  if (!rules.runner_cooling && hold === undefined) return { gateFloor: () => undefined };
+  const thermal = thermalDataOf(resolveMaterial(scenario), thermalSettingsOf(scenario));
+  const finite = (x: number) => Number.isFinite(x) ? x : undefined;
+  let runnerCeiling: number | undefined;
+  if (rules.runner_cooling) {
+    const eject = thermal.ejectionTemperature;
+    const part = Math.max(
+      0,
+      ...scenario.cavities.map((c) =>
+        centreCoolingTime("plate_centre", mmToM(c.wall_mm), thermal, eject)
+      ),
+    );
+    const perSquareMetre = centreCoolingTime("cylinder_centre", 1, thermal, eject);
+    const ratioSize = finite(
+      sizeForTime(1, perSquareMetre, scenario.goals.max_runner_cooling_ratio * part),
+    );
+    // The sprue's exit cools as long as the sprue (same closed form): a runner up to it adds nothing.
+    const sprue = scenario.feed.kind === "sprue" ? mmToM(scenario.feed.exit_diameter_mm) : 0;
+    runnerCeiling = ratioSize === undefined ? undefined : Math.max(ratioSize, sprue);
+  }
+  return {
+    runnerCeiling,
+    gateFloor: (type) => {
+      if (hold === undefined) return undefined;
+      const formula = gateFreezeFormula(type);
+      return finite(
+        sizeForTime(1, centreCoolingTime(formula, 1, thermal, thermal.noFlowTemperature), hold),
+      );
+    },
+  };
+}
 
 function runnerOrdering(
   scenario: Scenario,
