@@ -7,8 +7,11 @@ import {
   solveContinuous,
 } from "./continuous_slp.ts";
 import { snapToCutters } from "./cutter_strategy.ts";
-import { type DesignSpace, designSpace } from "./design_space.ts";
-import type { DesignEvaluation } from "./evaluate_design.ts";
+import { currentDesign, type DesignSpace, designSpace } from "./design_space.ts";
+import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
+import { fewestChangeFront, type FewestChangesFront } from "./fewest_changes.ts";
+import { tangentSensitivities } from "./sensitivities.ts";
+import { remap } from "./snap_runners.ts";
 import { createHighsSolver } from "./highs_solver.ts";
 import type { LpSolver } from "./lp_solver.ts";
 import type { SnapReport } from "./snap_design.ts";
@@ -59,7 +62,7 @@ export interface OptimizeBalanceOptions extends StopOptions {
 }
 
 /** The steps of an optimization, in order. */
-export type OptimizationStep = "continuous" | "cutters" | "changes";
+export type OptimizationStep = "fewest_changes" | "continuous" | "cutters" | "changes";
 
 /** What the optimizer found. */
 export interface BalanceOutcome {
@@ -83,6 +86,8 @@ export interface BalanceOutcome {
   changes?: ChangePlan;
   /** Why there is no change plan (stopped before it, or not asked for). */
   changesOmitted?: string;
+  /** An existing tool's fewest-change front: per k changes, the best plan found. */
+  front?: FewestChangesFront;
 }
 
 /** Expected failures as values. */
@@ -102,40 +107,17 @@ export async function optimizeBalance(
   const space = designSpace(scenario);
   const solver = options.solver ?? await createHighsSolver();
   const stop: StopOptions = { signal: options.signal, deadline: options.deadline };
-  options.onStep?.("continuous", 0);
-  const solved = await solveContinuous(space, {
-    solver,
-    maxIterations: options.maxIterations ?? DEFAULT_MAX_ITERATIONS,
-    onProgress: options.onProgress,
-    start: options.start,
-    slopes: options.slopes,
-    ...stop,
-  });
-  if (!solved.ok) return solved;
-  const continuous = solved.outcome;
-  let simulations = continuous.simulations;
-  let status = continuous.status;
-  let reason = continuous.reason;
-  let after = continuous.optimum;
-  let snap: SnapReport | undefined;
-  // A stopped run reports the best design so far, unsnapped.
-  if (!options.continuousOnly && status !== "cancelled") {
-    options.onStep?.("cutters", simulations);
-    const snapped = await snapToCutters(space, continuous, {
-      solver,
-      continuous: solveContinuous,
-      slopes: options.slopes,
-      start: options.start,
-      ...stop,
-    });
-    simulations += snapped.simulations;
-    after = snapped.after;
-    snap = snapped.snap;
-    if (status === "converged" && !after.feasible) {
-      reason += "; the continuous optimum meets every limit but the design in cutter sizes " +
-        `does not (${after.violations.map((v) => v.message).join("; ")}): see the cutter line`;
-    }
-  }
+  // An existing tool is changed as little as it can be (`fewest_changes.ts`).
+  const existing = scenario.goals.mode !== "new_tool" && !options.continuousOnly &&
+    space.variables.length > 0 && space.conflicts.length === 0;
+  const fewest = existing ? await fewestChangePlan(space, solver, options, stop) : undefined;
+  if (fewest && !fewest.ok) return fewest;
+  const planned = fewest?.ok ? fewest.plan : undefined;
+  const design = planned?.design ?? await allSizesDesign(space, solver, options, stop);
+  if (!design.ok) return design;
+  let { status, reason, simulations } = design;
+  simulations += planned?.simulations ?? 0;
+  const { before, continuous, after, snap } = design;
   const stoppedNow = stopReason(stop);
   if (stoppedNow && status !== "cancelled") {
     // Stopped during the cutter step: its best snapped design stands, but the run did not end.
@@ -149,12 +131,14 @@ export async function optimizeBalance(
     changesOmitted = `${stopText(stopReason(stop)!)} before the change plan`;
   } else {
     options.onStep?.("changes", simulations);
-    const plan = await planChanges(space, continuous.before, after, snap, stop);
+    const plan = await planChanges(space, before, after, snap, stop);
     simulations += plan.simulations;
     if (plan.complete) changes = plan;
-    else {changesOmitted = `${
+    else {
+      changesOmitted = `${
         plan.stopped ? stopText(plan.stopped) : "stopped"
-      } during the change plan`;}
+      } during the change plan`;
+    }
   }
   return {
     ok: true,
@@ -162,16 +146,196 @@ export async function optimizeBalance(
       status,
       reason,
       space,
-      before: continuous.before,
-      continuous: continuous.optimum,
+      before,
+      continuous,
       after,
       snap,
-      iterations: continuous.iterations,
+      iterations: design.iterations,
       simulations,
       slopes: (options.slopes ?? "tangent") === "tangent" ? "tangent" : "finite_difference",
-      wouldNeed: continuous.wouldNeed,
+      wouldNeed: design.wouldNeed,
       changes,
       changesOmitted,
+      front: planned?.front,
     },
   };
+}
+
+/** A design the driver reports: continuous and snapped, with how it was reached. */
+interface ReachedDesign {
+  ok: true;
+  status: BalanceStatus;
+  reason: string;
+  before: DesignEvaluation;
+  continuous: DesignEvaluation;
+  after: DesignEvaluation;
+  snap?: SnapReport;
+  iterations: BalanceIteration[];
+  simulations: number;
+  wouldNeed: string[];
+}
+
+/** Steps 1 and 2 over every adjustable size: the lightest runner that meets every limit. */
+async function allSizesDesign(
+  space: DesignSpace,
+  solver: LpSolver,
+  options: OptimizeBalanceOptions,
+  stop: StopOptions,
+): Promise<ReachedDesign | Extract<BalanceResult, { ok: false }>> {
+  options.onStep?.("continuous", 0);
+  const solved = await solveContinuous(space, {
+    solver,
+    maxIterations: options.maxIterations ?? DEFAULT_MAX_ITERATIONS,
+    onProgress: options.onProgress,
+    start: options.start,
+    slopes: options.slopes,
+    ...stop,
+  });
+  if (!solved.ok) return solved;
+  const continuous = solved.outcome;
+  let simulations = continuous.simulations;
+  let reason = continuous.reason;
+  let after = continuous.optimum;
+  let snap: SnapReport | undefined;
+  // A stopped run reports the best design so far, unsnapped.
+  if (!options.continuousOnly && continuous.status !== "cancelled") {
+    options.onStep?.("cutters", simulations);
+    const snapped = await snapToCutters(space, continuous, {
+      solver,
+      continuous: solveContinuous,
+      slopes: options.slopes,
+      start: options.start,
+      ...stop,
+    });
+    simulations += snapped.simulations;
+    after = snapped.after;
+    snap = snapped.snap;
+    if (continuous.status === "converged" && !after.feasible) {
+      reason += "; the continuous optimum meets every limit but the design in cutter sizes " +
+        `does not (${after.violations.map((v) => v.message).join("; ")}): see the cutter line`;
+    }
+  }
+  return {
+    ok: true,
+    status: continuous.status,
+    reason,
+    before: continuous.before,
+    continuous: continuous.optimum,
+    after,
+    snap,
+    iterations: continuous.iterations,
+    simulations,
+    wouldNeed: continuous.wouldNeed,
+  };
+}
+
+/** The fewest-change plan of an existing tool, when one meets every limit (else only its front). */
+async function fewestChangePlan(
+  space: DesignSpace,
+  solver: LpSolver,
+  options: OptimizeBalanceOptions,
+  stop: StopOptions,
+): Promise<
+  | { ok: true; plan: { front: FewestChangesFront; design?: ReachedDesign; simulations: number } }
+  | Extract<BalanceResult, { ok: false }>
+> {
+  options.onStep?.("fewest_changes", 0);
+  const todayOutcome = evaluateDesign(space, currentDesign(space), { slopes: true });
+  if (!todayOutcome.ok) {
+    return { ok: false, code: "simulation_failed", message: todayOutcome.message };
+  }
+  const today = todayOutcome.evaluation;
+  const slopes = tangentSensitivities(space, today);
+  if (!slopes) return { ok: true, plan: { front: emptyFront(), simulations: 1 } };
+  const front = await fewestChangeFront(space, today, slopes, {
+    solver,
+    continuous: solveContinuous,
+    slopes: options.slopes,
+    ...stop,
+  });
+  let simulations = 1 + front.simulations;
+  const limit = space.scenario.goals.max_changes;
+  const goal = space.scenario.goals.max_imbalance_percent;
+  // The first plan (fewest changes) that still meets every limit in cutter sizes.
+  front.chosen = undefined;
+  for (const point of front.points) {
+    if (!point.feasible || (limit !== undefined && point.elements.length > limit)) continue;
+    if (stopReason(stop)) break;
+    const k = point.elements.length;
+    if (!point.solved) {
+      front.chosen = point;
+      const design: ReachedDesign = {
+        ok: true,
+        status: "converged",
+        reason: `today's tool meets every limit (imbalance ${
+          today.imbalancePercent.toFixed(2)
+        } %, target ${goal} %): no change needed`,
+        before: today,
+        continuous: today,
+        after: today,
+        iterations: [],
+        simulations: 0,
+        wouldNeed: [],
+      };
+      return { ok: true, plan: { front, design, simulations } };
+    }
+    const sub = point.solved.space;
+    options.onStep?.("cutters", simulations);
+    const snapped = await snapToCutters(sub, point.solved, {
+      solver,
+      continuous: solveContinuous,
+      ...stop,
+    });
+    simulations += snapped.simulations;
+    const after = remap(space, sub, snapped.after);
+    if (!after.feasible) continue;
+    front.chosen = point;
+    const design: ReachedDesign = {
+      ok: true,
+      status: "converged",
+      reason: `every limit met with ${k} change${k === 1 ? "" : "s"}, the fewest found (${
+        point.elements.join(", ")
+      })`,
+      before: today,
+      continuous: remap(space, sub, point.solved.optimum),
+      after,
+      snap: { ...snapped.snap, evaluation: after },
+      iterations: point.solved.iterations,
+      simulations: 0,
+      wouldNeed: [],
+    };
+    return { ok: true, plan: { front, design, simulations } };
+  }
+  if (limit !== undefined && !stopReason(stop)) {
+    // No plan within the bound: the best within it, said honestly, with what would be needed.
+    const within = front.points.filter((p) => p.elements.length <= limit && p.solved).at(-1);
+    const needed = front.neededChanges;
+    const wouldNeed = [
+      needed !== undefined
+        ? `${needed} changes would meet every limit (goals.max_changes is ${limit})`
+        : `no plan with up to ${
+          Math.max(limit, ...front.points.map((p) => p.changes))
+        } changes meets every limit; raise goals.max_changes or relax a limit`,
+    ];
+    const best = within?.solved;
+    const design: ReachedDesign = {
+      ok: true,
+      status: "infeasible",
+      reason: `with at most ${limit} change${limit === 1 ? "" : "s"} the limits cannot all be met${
+        best ? `; best imbalance reached ${best.optimum.imbalancePercent.toFixed(2)} %` : ""
+      } (target ${goal} %)`,
+      before: today,
+      continuous: best ? remap(space, best.space, best.optimum) : today,
+      after: best ? remap(space, best.space, best.optimum) : today,
+      iterations: best?.iterations ?? [],
+      simulations: 0,
+      wouldNeed,
+    };
+    return { ok: true, plan: { front, design, simulations } };
+  }
+  return { ok: true, plan: { front, simulations } };
+}
+
+function emptyFront(): FewestChangesFront {
+  return { points: [], simulations: 0 };
 }
