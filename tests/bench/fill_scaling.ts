@@ -1,7 +1,8 @@
 /**
  * Fill-simulation cost against size, as a table: `deno run -A tests/bench/fill_scaling.ts
  * [--large] [--no-profile]` (--large adds 256 cavities, a few minutes). Generated family
- * layouts, seed 1, each simulated by `runScenario` without and with the tangent along every
+ * layouts, seed 1, each simulated by `runScenario` (the fastest of several runs is shown:
+ * other load on a shared machine only adds time) without and with the tangent along every
  * design size (directions built as the optimizer builds them: each size raised by
  * TANGENT_RELATIVE_STEP, the network rebuilt, the changed element kept). The cost per element
  * per event is what should stay flat as the tool grows (each event needs solves of the whole
@@ -24,7 +25,7 @@ import { TANGENT_RELATIVE_STEP } from "../../src/optimize/evaluate_design.ts";
 /** Parts of the engine, by the source file a profiled function lives in (first match wins). */
 const PARTS: [string, RegExp][] = [
   ["Cross master-curve wall solve (physics/_cross_master.ts)", /physics\/_cross_master\.ts$/],
-  ["exact wall integral (physics/_wall_shear.ts)", /physics\/_wall_shear\.ts$/],
+  ["wall-state dispatch and exact integral (physics/_wall_shear.ts)", /physics\/_wall_shear\.ts$/],
   [
     "channel laws: taper/disk quadrature, sections, Kozicki (physics/)",
     /physics\/(channel_flow|tapered_flow|radial_flow|_local_gradient|section|noncircular|_quadrature)\.ts$/,
@@ -71,12 +72,16 @@ function run(scenario: Scenario, directions?: NetworkElement[][]) {
   return outcome.run;
 }
 
-/** Mean ms of `reps` runs after one warm-up run. */
+/** Fastest of `reps` runs after one warm-up run, ms (other load on the machine only adds time). */
 function timed(reps: number, body: () => void): number {
   body();
-  const start = performance.now();
-  for (let i = 0; i < reps; i++) body();
-  return (performance.now() - start) / reps;
+  let best = Infinity;
+  for (let i = 0; i < reps; i++) {
+    const start = performance.now();
+    body();
+    best = Math.min(best, performance.now() - start);
+  }
+  return best;
 }
 
 if (Deno.args[0] === "--profile-child") {
@@ -97,12 +102,13 @@ if (Deno.args[0] === "--profile-child") {
 
 const sizes = Deno.args.includes("--large") ? [4, 16, 64, 256] : [4, 16, 64];
 console.log(
-  "cavities  elements  events  steps  solves  ms/sim  µs/(el·event)  dirs  ms/sim+tangent  µs/(el·event)+t",
+  "cavities  elements  events  steps  solves  ms/sim  µs/(el·event)  µs/(el·solve)  dirs" +
+    "  ms/sim+tangent  µs/(el·event)+t",
 );
 for (const n of sizes) {
   const scenario = scenarioOf(n);
   const directions = directionsOf(scenario);
-  const reps = n >= 256 ? 1 : n >= 64 ? 3 : 10;
+  const reps = n >= 256 ? 2 : n >= 64 ? 5 : 10;
   let last = run(scenario);
   const ms = timed(reps, () => (last = run(scenario)));
   const msTangent = timed(reps, () => run(scenario, directions));
@@ -118,6 +124,7 @@ for (const n of sizes) {
       String(d.hydraulicSolves).padStart(7),
       ms.toFixed(0).padStart(7),
       perEvent(ms).padStart(14),
+      ((ms * 1000) / (elements * d.hydraulicSolves)).toFixed(2).padStart(14),
       String(directions.length).padStart(5),
       msTangent.toFixed(0).padStart(15),
       perEvent(msTangent).padStart(16),
