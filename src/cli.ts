@@ -342,7 +342,12 @@ export async function main(argv: readonly string[]): Promise<number> {
       }
       const changes = result.outcome.changes?.steps ?? [];
       if (args.flags.has("csv")) {
-        writeAllSync(Deno.stdout, new TextEncoder().encode(changeSheetCsv(changes)));
+        writeAllSync(
+          Deno.stdout,
+          new TextEncoder().encode(
+            changeSheetCsv(changes, { start: result.outcome.changes?.start }),
+          ),
+        );
       } else if (args.flags.has("json")) {
         const json = optimizationJson(result.outcome, {
           history: args.flags.has("history"),

@@ -1,20 +1,71 @@
 import type { Scenario } from "../model/scenario_schema.ts";
 import { M_PER_INCH, mToMm } from "../model/units.ts";
+import { runSetup } from "../network/simulate_scenario.ts";
 import type { DesignSpace } from "./design_space.ts";
 import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
 import type { SnapReport } from "./snap_design.ts";
 import { nextTurn, type StopOptions, type StopReason, stopReason } from "./stop.ts";
 
 /**
- * The change list a toolmaker works from: every size that differs between the
- * design today and the optimizer's answer, ordered so that each cut moves the
- * balance most (greedy, every candidate order step confirmed by a full
- * simulation), with the simulated imbalance, pressure and runner volume after
- * each step. The optimizer's last step (`balance.ts`), counted and stoppable; the
- * reports only print it.
+ * The change list a toolmaker works from: every size that differs between the design
+ * today and the optimizer's answer. The optimizer's last step (`balance.ts`), counted and
+ * stoppable; the reports only print it.
+ *
+ * A new tool (`goals.mode` "new_tool") has no steel to change: the list is the drawing's
+ * sizes ("cut to"), in the design's own order, with the final design's figures (no
+ * simulation). An existing tool (trim, steel_safe) is changed one step at a time and shot
+ * after each, so the order is searched so that every step can be checked on the press:
+ *
+ * - each round simulates the single changes left (all of them up to
+ *   {@link SIMULATED_ORDER_LIMIT}; beyond, the {@link RANKED_SINGLES} the linear model of
+ *   the current tool ranks best) and takes the one with the lowest imbalance among those
+ *   that keep it at or below the bound: today's imbalance, or the final design's when
+ *   that is higher (the last step is the final design whatever the order);
+ * - when none does, the sets of like changes left (same kind, section and sizes: the
+ *   symmetric branches of a balanced tree) are simulated, each cut together as one step;
+ * - when none of those does, pairs are simulated (every pair while at most
+ *   {@link SIMULATED_ORDER_LIMIT} changes are left; beyond, the {@link RANKED_PAIRS} best by
+ *   the linear model), and the best pair within the bound becomes one step, cut together;
+ * - when no pair does either, the lowest single is taken and the step says that and why.
+ *
+ * Every step carries each cavity's predicted fill and short-shot mass at the instant the
+ * first cavity is full, as the plan's start (step 0, today's tool) does, so the shop can
+ * weigh a short shot after each cut and compare.
  *
  * @module
  */
+
+/** What a step does to the steel. */
+export type ChangeAction =
+  /** A new tool: the size is cut as drawn. */
+  | "cut_to"
+  /** An existing tool: the channel is opened up (only steel removed). */
+  | "enlarge"
+  /** An existing tool: the channel is made smaller, steel must be added (weld or insert). */
+  | "add_steel";
+
+/** One cavity of a short shot stopped when the first cavity is full. */
+export interface CavityShortShot {
+  cavity: string;
+  /** Fill fraction, 0…1. */
+  fill: number;
+  /** Fill fraction × the part's mass (solid density), kg. */
+  mass: number;
+}
+
+/** The tool's predicted state after a step (or today, for the start). */
+export interface StepState {
+  imbalancePercent: number;
+  /** Pa */
+  feedPressurePeak: number;
+  /** Cold runner volume, m³. */
+  runnerVolume: number;
+  feasible: boolean;
+  /** When the first cavity is full, s (NaN if not simulated). */
+  firstFullTime: number;
+  /** Each cavity, in cavity order, at `firstFullTime` (empty if not simulated). */
+  shortShot: CavityShortShot[];
+}
 
 /** One change of one element. */
 export interface Change {
@@ -28,23 +79,41 @@ export interface Change {
   to: number;
   /** Cutter or step label of the new size. */
   cutter: string;
-  /** true: only steel is removed (an enlargement); false: steel must be added (weld or insert). */
+  /** What is done to the steel: cut as drawn (new tool), enlarge, or add steel. */
+  action: ChangeAction;
+  /**
+   * true: no steel is added (an enlargement, or any size of a new tool); false: steel must
+   * be added (weld or insert). Meaningful for an existing tool only.
+   */
   steelSafe: boolean;
   /** Where the cut is made. */
   moldHalf: "fixed" | "moving" | "both";
-  /** Position in the order of work, 1-based. */
+  /** Position in the order of work, 1-based; changes cut together share their number. */
   step: number;
-  /** Simulated after this step (and all before it). */
-  after: {
-    imbalancePercent: number;
-    feedPressurePeak: number;
-    runnerVolume: number;
-    feasible: boolean;
-  };
+  /** Cut together with the other changes of the same step (no single one keeps the balance). */
+  together: boolean;
+  /** The imbalance after this step is above today's (an existing tool). */
+  aboveStart: boolean;
+  /** Why, when `aboveStart`. */
+  aboveStartReason?: string;
+  /** Simulated after this step (and all before it); a new tool's: the final design. */
+  after: StepState;
 }
 
-/** Greedy ordering is simulated up to this many changes; beyond, the order is by size of change. */
+/**
+ * Every single change is simulated in a round while at most this many are left, and
+ * every pair when no single change keeps the bound.
+ */
 export const SIMULATED_ORDER_LIMIT = 10;
+/**
+ * Imbalance within this many percentage points of the bound counts as within it: below what
+ * weighed short shots resolve, and below the sheet's two decimals.
+ */
+export const IMBALANCE_TOLERANCE_PERCENT = 0.005;
+/** With more changes left, this many singles ranked by the linear model are simulated. */
+export const RANKED_SINGLES = 5;
+/** With more changes left, this many pairs ranked by the linear model are simulated. */
+export const RANKED_PAIRS = 10;
 
 /** The change plan: the steps in order of work and what they cost to work out. */
 export interface ChangePlan {
@@ -54,20 +123,74 @@ export interface ChangePlan {
   /** False when the plan was stopped before every step was simulated. */
   complete: boolean;
   stopped?: StopReason;
+  /** The scenario's mode the plan was made for. */
+  mode: Scenario["goals"]["mode"];
+  /** Step 0: today's tool (an existing tool only). */
+  start?: StepState;
+  /** The bound the order keeps every step within: max(today's, final design's) imbalance, %. */
+  bound?: number;
 }
 
-const notSimulated: Change["after"] = {
+const notSimulated: StepState = {
   imbalancePercent: NaN,
   feedPressurePeak: NaN,
   runnerVolume: NaN,
   feasible: false,
+  firstFullTime: NaN,
+  shortShot: [],
 };
 
 /**
- * Order the changes from `before` to `after` (designs of `space`): greedily, the change
- * whose simulation leaves the lowest imbalance first (up to {@link SIMULATED_ORDER_LIMIT}
- * changes; beyond, largest relative change first, each prefix simulated once). Stops
- * between simulations on a signal or deadline, returning `complete: false`.
+ * Each cavity's fill fraction and short-shot mass at the instant the first cavity is
+ * full, the fill history interpolated linearly at that instant; `solidDensity` kg/m³.
+ */
+export function shortShotAtFirstFull(
+  evaluation: Pick<DesignEvaluation, "fill" | "network">,
+  solidDensity: number,
+): { time: number; cavities: CavityShortShot[] } {
+  const { fill, network } = evaluation;
+  const time = Math.min(...fill.cavities.map((c) => c.fillTime));
+  const history = fill.history;
+  if (!Number.isFinite(time) || history.length === 0) return { time: NaN, cavities: [] };
+  let k = history.findIndex((h) => h.time >= time);
+  if (k < 0) k = history.length - 1;
+  const b = history[k];
+  const a = history[Math.max(0, k - 1)];
+  const w = b.time > a.time ? Math.max(0, Math.min(1, (time - a.time) / (b.time - a.time))) : 1;
+  return {
+    time,
+    cavities: network.cavities.map((c, i) => {
+      const f = a.cavityFill[i] + w * (b.cavityFill[i] - a.cavityFill[i]);
+      return { cavity: c.id, fill: f, mass: f * c.volume * solidDensity };
+    }),
+  };
+}
+
+function stateOf(e: DesignEvaluation, solidDensity: number): StepState {
+  const shot = shortShotAtFirstFull(e, solidDensity);
+  return {
+    imbalancePercent: e.imbalancePercent,
+    feedPressurePeak: e.feedPressurePeak,
+    runnerVolume: e.runnerVolume,
+    feasible: e.feasible,
+    firstFullTime: shot.time,
+    shortShot: shot.cavities,
+  };
+}
+
+/** One step of the order: the changes (indices into the space's variables) and the state after. */
+interface Taken {
+  changes: number[];
+  state: StepState;
+  aboveStart: boolean;
+  reason?: string;
+}
+
+/**
+ * The change plan from `before` to `after` (designs of `space`): a new tool's sizes as
+ * drawn, or an existing tool's steps in an order every one of which can be checked on the
+ * press (see the module comment). Stops between simulations on a signal or deadline,
+ * returning `complete: false`.
  */
 export async function planChanges(
   space: DesignSpace,
@@ -77,65 +200,15 @@ export async function planChanges(
   stop: StopOptions = {},
 ): Promise<ChangePlan> {
   const scenario = space.scenario;
+  const mode = scenario.goals.mode;
+  const density = runSetup(scenario).material.solidDensity;
   const labels = new Map((snap?.choices ?? []).map((c) => [c.element, c.label]));
   const changed = space.variables.flatMap((_, j) =>
     Math.abs(after.x[j] - before.x[j]) > 1e-9 * before.x[j] ? [j] : []
   );
-  const order: number[] = [];
-  const results: Change["after"][] = [];
-  const x = Float64Array.from(before.x);
-  const remaining = [...changed];
-  const greedy = changed.length <= SIMULATED_ORDER_LIMIT;
-  if (!greedy) {
-    remaining.sort((a, b) =>
-      Math.abs(after.x[b] / before.x[b] - 1) - Math.abs(after.x[a] / before.x[a] - 1)
-    );
-  }
-  let simulations = 0;
-  let stopped: StopReason | undefined;
-  const simulate = async (design: Float64Array): Promise<Change["after"] | undefined> => {
-    await nextTurn();
-    stopped ??= stopReason(stop);
-    if (stopped) return undefined;
-    simulations++;
-    const e = evaluateDesign(space, design, stop);
-    if (!e.ok) {
-      stopped ??= e.stopped;
-      return stopped ? undefined : notSimulated;
-    }
-    return {
-      imbalancePercent: e.evaluation.imbalancePercent,
-      feedPressurePeak: e.evaluation.feedPressurePeak,
-      runnerVolume: e.evaluation.runnerVolume,
-      feasible: e.evaluation.feasible,
-    };
-  };
-  while (remaining.length > 0 && !stopped) {
-    let best = 0;
-    let bestResult: Change["after"] | undefined;
-    if (greedy) {
-      for (const [k, j] of remaining.entries()) {
-        const trial = Float64Array.from(x);
-        trial[j] = after.x[j];
-        const r = await simulate(trial);
-        if (stopped) break;
-        if (!r || Number.isNaN(r.imbalancePercent)) continue;
-        if (!bestResult || r.imbalancePercent < bestResult.imbalancePercent) {
-          best = k;
-          bestResult = r;
-        }
-      }
-      if (stopped) break;
-    }
-    const j = remaining.splice(best, 1)[0];
-    x[j] = after.x[j];
-    bestResult ??= await simulate(Float64Array.from(x));
-    if (stopped || !bestResult) break;
-    order.push(j);
-    results.push(bestResult);
-  }
-  const steps = order.map((j, k): Change => {
+  const change = (j: number, step: number, taken: Taken, together: boolean): Change => {
     const v = space.variables[j];
+    const enlarge = after.x[j] >= before.x[j];
     return {
       element: v.element,
       kind: v.kind,
@@ -144,13 +217,240 @@ export async function planChanges(
       from: before.x[j],
       to: after.x[j],
       cutter: labels.get(v.element) ?? `${mToMm(after.x[j]).toFixed(2)} mm`,
-      steelSafe: after.x[j] >= before.x[j],
+      action: mode === "new_tool" ? "cut_to" : enlarge ? "enlarge" : "add_steel",
+      steelSafe: mode === "new_tool" || enlarge,
       moldHalf: moldHalfOf(scenario, v.kind, v.index),
-      step: k + 1,
-      after: results[k],
+      step,
+      together,
+      aboveStart: taken.aboveStart,
+      ...(taken.reason ? { aboveStartReason: taken.reason } : {}),
+      after: taken.state,
     };
-  });
-  return { steps, simulations, complete: !stopped && steps.length === changed.length, stopped };
+  };
+  if (mode === "new_tool") {
+    // Nothing is cut yet: the drawing's sizes, with the final design's own figures.
+    const final = stateOf(after, density);
+    const taken: Taken = { changes: [], state: final, aboveStart: false };
+    return {
+      steps: changed.map((j, k) => change(j, k + 1, taken, false)),
+      simulations: 0,
+      complete: true,
+      mode,
+    };
+  }
+  const start = stateOf(before, density);
+  const ordered = await orderExisting(space, before, after, changed, density, stop);
+  const steps = ordered.taken.flatMap((t, k) =>
+    t.changes.map((j) => change(j, k + 1, t, t.changes.length > 1))
+  );
+  const complete = !ordered.stopped && steps.length === changed.length;
+  return {
+    steps,
+    simulations: ordered.simulations,
+    complete,
+    ...(ordered.stopped ? { stopped: ordered.stopped } : {}),
+    mode,
+    start,
+    bound: ordered.bound,
+  };
+}
+
+/** The search of the module comment, for an existing tool. */
+async function orderExisting(
+  space: DesignSpace,
+  before: DesignEvaluation,
+  after: DesignEvaluation,
+  changed: number[],
+  density: number,
+  stop: StopOptions,
+): Promise<{ taken: Taken[]; simulations: number; stopped?: StopReason; bound: number }> {
+  const startImbalance = before.imbalancePercent;
+  const bound = Math.max(startImbalance, after.imbalancePercent);
+  const within = (imbalance: number, limit: number) =>
+    imbalance <= limit + IMBALANCE_TOLERANCE_PERCENT;
+  let simulations = 0;
+  let stopped: StopReason | undefined;
+  const finalKey = keyOf(after.x);
+  const evaluate = async (design: Float64Array, slopes = false) => {
+    if (!slopes && keyOf(design) === finalKey) return after;
+    await nextTurn();
+    stopped ??= stopReason(stop);
+    if (stopped) return undefined;
+    simulations++;
+    const e = evaluateDesign(space, design, { ...stop, slopes });
+    if (!e.ok) {
+      stopped ??= e.stopped;
+      return null;
+    }
+    return e.evaluation;
+  };
+  const x = Float64Array.from(before.x);
+  const trialOf = (js: readonly number[]) => {
+    const trial = Float64Array.from(x);
+    for (const j of js) trial[j] = after.x[j];
+    return trial;
+  };
+  const taken: Taken[] = [];
+  const remaining = [...changed];
+  while (remaining.length > 0 && !stopped) {
+    const many = remaining.length > SIMULATED_ORDER_LIMIT;
+    // The linear model of the current tool ranks candidates when not all are simulated.
+    let rank: ((js: readonly number[]) => number) | undefined;
+    if (many) {
+      const withSlopes = await evaluate(Float64Array.from(x), true);
+      if (withSlopes === undefined) break;
+      rank = withSlopes ? linearImbalance(withSlopes, x, after.x) : undefined;
+    }
+    const singles = remaining.map((j) => [j]);
+    const trySingles = many
+      ? (rank
+        ? [...singles].sort((a, b) => rank!(a) - rank!(b))
+        : [...singles].sort((a, b) =>
+          relativeChange(b[0], x, after.x) - relativeChange(a[0], x, after.x)
+        ))
+        .slice(0, RANKED_SINGLES)
+      : singles;
+    const simulateAll = async (moves: readonly number[][]) => {
+      const tried: { changes: number[]; e: DesignEvaluation }[] = [];
+      for (const js of moves) {
+        const e = await evaluate(trialOf(js));
+        if (e === undefined) break;
+        if (e && Number.isFinite(e.imbalancePercent)) tried.push({ changes: [...js], e });
+      }
+      return tried;
+    };
+    const lowest = (list: Awaited<ReturnType<typeof simulateAll>>, limit: number) =>
+      list.filter((t) => within(t.e.imbalancePercent, limit))
+        .sort((a, b) => a.e.imbalancePercent - b.e.imbalancePercent)[0];
+    const tried = await simulateAll(trySingles);
+    if (stopped) break;
+    let pick = lowest(tried, bound);
+    if (!pick) {
+      // Like changes (same kind, section and sizes: symmetric branches) cut together.
+      pick = lowest(await simulateAll(likeSets(space, remaining, x, after.x)), bound);
+      if (stopped) break;
+    }
+    if (!pick && remaining.length >= 2) {
+      const pairs: number[][] = [];
+      for (let a = 0; a < remaining.length; a++) {
+        for (let b = a + 1; b < remaining.length; b++) pairs.push([remaining[a], remaining[b]]);
+      }
+      const tryPairs = many && rank
+        ? pairs.sort((p, q) => rank!(p) - rank!(q)).slice(0, RANKED_PAIRS)
+        : many
+        ? []
+        : pairs;
+      pick = lowest(await simulateAll(tryPairs), bound);
+      if (stopped) break;
+    }
+    let reason: string | undefined;
+    if (!pick) {
+      pick = lowest(tried, Infinity);
+      if (!pick) {
+        // No candidate simulated: the largest change, marked so.
+        const j = remaining.reduce((best, k) =>
+          relativeChange(k, x, after.x) > relativeChange(best, x, after.x) ? k : best
+        );
+        remaining.splice(remaining.indexOf(j), 1);
+        x[j] = after.x[j];
+        taken.push({
+          changes: [j],
+          state: notSimulated,
+          aboveStart: true,
+          reason: "not simulated",
+        });
+        continue;
+      }
+      reason =
+        `no single change${
+          remaining.length >= 2 ? ", set of like changes or pair of changes" : ""
+        } left ` +
+        `keeps the imbalance at or below ${bound.toFixed(2)} %: ` +
+        `the lowest next is ${pick.e.imbalancePercent.toFixed(2)} %`;
+    }
+    const e = pick.e;
+    const aboveStart = !within(e.imbalancePercent, startImbalance);
+    if (aboveStart && !reason) {
+      reason = `the final design's imbalance (${after.imbalancePercent.toFixed(2)} %) ` +
+        `is above today's (${startImbalance.toFixed(2)} %); this step stays within it`;
+    }
+    if (aboveStart) reason = `${leadText(e)}; ${reason}`;
+    for (const j of pick.changes) {
+      remaining.splice(remaining.indexOf(j), 1);
+      x[j] = after.x[j];
+    }
+    taken.push({
+      changes: pick.changes,
+      state: stateOf(e, density),
+      aboveStart,
+      ...(reason ? { reason } : {}),
+    });
+  }
+  return { taken, simulations, ...(stopped ? { stopped } : {}), bound };
+}
+
+/** Which cavity fills first and which last, in words. */
+function leadText(e: DesignEvaluation): string {
+  const ids = e.network.cavities.map((c) => c.id);
+  const times = e.fillTimes;
+  const first = times.indexOf(Math.min(...times));
+  const last = times.indexOf(Math.max(...times));
+  return `rises to ${e.imbalancePercent.toFixed(2)} % (${ids[first]} fills first, ${
+    ids[last]
+  } last)`;
+}
+
+/** |to/from − 1| of change j from the current design. */
+function relativeChange(j: number, x: ArrayLike<number>, target: ArrayLike<number>): number {
+  return Math.abs(target[j] / x[j] - 1);
+}
+
+/**
+ * The imbalance the linear model of `e` predicts when changes `js` are made: split fill
+ * times moved by their slopes, (max − min)/max in %.
+ */
+function linearImbalance(
+  e: DesignEvaluation,
+  x: ArrayLike<number>,
+  target: ArrayLike<number>,
+): ((js: readonly number[]) => number) | undefined {
+  const slopes = e.slopes;
+  if (!slopes) return undefined;
+  const t0 = e.splitFillTimes;
+  return (js) => {
+    const t = t0.map((ti, i) =>
+      js.reduce((sum, j) => sum + slopes.fillTime[i][j] * (target[j] - x[j]), ti)
+    );
+    const max = Math.max(...t);
+    const value = ((max - Math.min(...t)) / max) * 100;
+    return Number.isFinite(value) ? value : Infinity;
+  };
+}
+
+/** Sets of two or more remaining changes alike in kind, section, dimension and both sizes. */
+function likeSets(
+  space: DesignSpace,
+  remaining: readonly number[],
+  x: ArrayLike<number>,
+  target: ArrayLike<number>,
+): number[][] {
+  const sets = new Map<string, number[]>();
+  for (const j of remaining) {
+    const v = space.variables[j];
+    const key = [
+      v.kind,
+      sectionOf(space.scenario, v.kind, v.index),
+      v.dimension,
+      mToMm(x[j]).toFixed(4),
+      mToMm(target[j]).toFixed(4),
+    ].join("|");
+    sets.set(key, [...(sets.get(key) ?? []), j]);
+  }
+  return [...sets.values()].filter((set) => set.length >= 2);
+}
+
+function keyOf(x: ArrayLike<number>): string {
+  return Array.from(x).join(",");
 }
 
 function sectionOf(s: Scenario, kind: "runner" | "gate", index: number): string {

@@ -1,11 +1,12 @@
 import type { BalanceIteration, BalanceOutcome } from "../optimize/balance.ts";
-import { type Change, dualSize } from "../optimize/change_list.ts";
+import { type Change, dualSize, type StepState } from "../optimize/change_list.ts";
 import { m3ToCm3, mToInch, mToMm, paToMpa } from "../model/units.ts";
 import {
   type Continuous,
   type Iteration,
   OPTIMIZATION_FORMAT,
   type OptimizationResult,
+  type StepState as StepStateWire,
 } from "../wire/optimization.ts";
 import { resultJson } from "./result_json.ts";
 
@@ -59,19 +60,40 @@ export function optimizationJson(
       from_in: Number(mToInch(c.from).toFixed(5)),
       to_in: Number(mToInch(c.to).toFixed(5)),
       cutter: c.cutter,
+      action: c.action,
       steel_safe: c.steelSafe,
       mold_half: c.moldHalf,
       step: c.step,
-      after_step: {
-        imbalance_percent: Number(c.after.imbalancePercent.toFixed(3)),
-        feed_pressure_peak_MPa: Number(paToMpa(c.after.feedPressurePeak).toFixed(2)),
-        runner_volume_cm3: Number(m3ToCm3(c.after.runnerVolume).toFixed(4)),
-        limits_met: c.after.feasible,
-      },
+      cut_together: c.together,
+      above_start: c.aboveStart,
+      above_start_reason: c.aboveStartReason ?? null,
+      after_step: stepStateJson(c.after),
     })),
+    changes_start: outcome.changes?.start ? stepStateJson(outcome.changes.start) : null,
     iterations: outcome.iterations.map((i) => ({
       ...iterationJson(i),
       trust_radius: i.trustRadius,
+    })),
+  };
+}
+
+/**
+ * A change-list step's predicted state on the wire; the CSV sheet rounds the same way
+ * (`change_sheet_csv.ts`), so the two agree number for number.
+ */
+export function stepStateJson(state: StepState): StepStateWire {
+  return {
+    imbalance_percent: Number(state.imbalancePercent.toFixed(3)),
+    feed_pressure_peak_MPa: Number(paToMpa(state.feedPressurePeak).toFixed(2)),
+    runner_volume_cm3: Number(m3ToCm3(state.runnerVolume).toFixed(4)),
+    limits_met: state.feasible,
+    first_full_s: Number.isFinite(state.firstFullTime)
+      ? Number(state.firstFullTime.toFixed(4))
+      : null,
+    short_shot: state.shortShot.map((c) => ({
+      cavity: c.cavity,
+      fill_percent: Number((100 * c.fill).toFixed(2)),
+      mass_g: Number((1000 * c.mass).toFixed(3)),
     })),
   };
 }
@@ -129,27 +151,84 @@ export function optimizationText(
     for (const w of outcome.wouldNeed) out.push(`  - ${w}`);
   }
   out.push("");
-  out.push("Change sheet, in order of work (each step simulated with all before it)");
+  const newTool = outcome.space.scenario.goals.mode === "new_tool";
+  out.push(
+    newTool
+      ? "Sizes to cut (a new tool: nothing is cut yet; predicted with every size cut)"
+      : "Change sheet, in order of work (each step simulated with all before it; " +
+        "short shot = each cavity when the first is full)",
+  );
   if (changes.length === 0) {
     out.push(
       outcome.changesOmitted ? `  no change plan (${outcome.changesOmitted})` : "  no change",
     );
   }
-  for (const c of changes) {
-    out.push(
-      `  ${String(c.step).padStart(2)}. ${c.element.padEnd(6)} ${c.kind.padEnd(6)} ${
-        c.section.padEnd(12)
-      } ${c.dimension} ${dualSize(c.from)} → ${dualSize(c.to)}  cutter ${c.cutter}  ${
-        c.steelSafe ? "steel-safe (enlarge)" : "NEEDS STEEL ADDED (weld/insert)"
-      }  ${c.moldHalf} half` +
-        `  → imbalance ${c.after.imbalancePercent.toFixed(2)} %, ${
-          paToMpa(c.after.feedPressurePeak).toFixed(1)
-        } MPa, runner ${m3ToCm3(c.after.runnerVolume).toFixed(2)} cm³`,
-    );
-  }
+  out.push(...changeSheetLines(changes, newTool ? undefined : outcome.changes?.start));
   out.push("");
   out.push(`${outcome.iterations.length} SLP iterations, ${outcome.simulations} simulations.`);
   out.push("Cautions");
   for (const c of a.run.cautions) out.push(`  - ${c}`);
   return out.join("\n") + "\n";
+}
+
+const ACTION_TEXT: Record<Change["action"], string> = {
+  cut_to: "cut to",
+  enlarge: "enlarge (steel-safe)",
+  add_steel: "ADD STEEL (weld or insert)",
+};
+
+/** A state in one line: imbalance, pressure, runner, and each cavity's short shot. */
+function stateLines(state: StepState): string[] {
+  const shot = state.shortShot.map((c) =>
+    `${c.cavity} ${(100 * c.fill).toFixed(1)} % ${(1000 * c.mass).toFixed(3)} g`
+  ).join(" · ");
+  return [
+    `imbalance ${state.imbalancePercent.toFixed(2)} %, ${
+      paToMpa(state.feedPressurePeak).toFixed(1)
+    } MPa, runner ${m3ToCm3(state.runnerVolume).toFixed(2)} cm³`,
+    Number.isFinite(state.firstFullTime)
+      ? `short shot at ${state.firstFullTime.toFixed(3)} s: ${shot}`
+      : "not simulated",
+  ];
+}
+
+/**
+ * The change sheet's lines: step 0 (today's tool, when given), then each step's changes
+ * (the number once for changes cut together), its predicted state and short shot, and
+ * the reason when it rises above today's imbalance. A new tool's sizes are "cut to", with
+ * the final design's state once at the end.
+ */
+function changeSheetLines(changes: readonly Change[], start: StepState | undefined): string[] {
+  const out: string[] = [];
+  const pad = "      ";
+  if (start) {
+    const [figures, shot] = stateLines(start);
+    out.push(`   0. today's tool  → ${figures}`, `${pad}${shot}`);
+  }
+  changes.forEach((c, k) => {
+    const first = k === 0 || changes[k - 1].step !== c.step;
+    const last = k === changes.length - 1 || changes[k + 1].step !== c.step;
+    const number = first ? `${String(c.step).padStart(2)}.` : "   ";
+    const size = c.action === "cut_to"
+      ? `${dualSize(c.to)} (drawn ${dualSize(c.from)})`
+      : `${dualSize(c.from)} → ${dualSize(c.to)}`;
+    out.push(
+      `  ${number} ${c.element.padEnd(6)} ${c.kind.padEnd(6)} ${c.section.padEnd(12)} ${
+        ACTION_TEXT[c.action]
+      } ${c.dimension} ${size}  cutter ${c.cutter}  ${c.moldHalf} half` +
+        (c.together && first ? "  (cut together)" : ""),
+    );
+    if (c.action === "cut_to") return;
+    if (last) {
+      const [figures, shot] = stateLines(c.after);
+      out.push(`${pad}→ ${figures}${c.aboveStart ? "  ABOVE TODAY'S" : ""}`, `${pad}${shot}`);
+      if (c.aboveStartReason) out.push(`${pad}! ${c.aboveStartReason}`);
+    }
+  });
+  const final = changes.at(-1);
+  if (final?.action === "cut_to") {
+    const [figures, shot] = stateLines(final.after);
+    out.push(`${pad}→ ${figures}`, `${pad}${shot}`);
+  }
+  return out;
 }

@@ -30,6 +30,26 @@ export const IterationSchema = z.object({
 /** {@link IterationSchema}. */
 export type Iteration = z.infer<typeof IterationSchema>;
 
+/** The tool's predicted state after a step of the change list, or today (step 0). */
+export const StepStateSchema = z.object({
+  imbalance_percent: z.number(),
+  feed_pressure_peak_MPa: z.number(),
+  runner_volume_cm3: z.number(),
+  limits_met: z.boolean(),
+  first_full_s: z.number().nullable().describe(
+    "when the first cavity is full (null: not simulated)",
+  ),
+  short_shot: z.array(z.object({
+    cavity: z.string(),
+    fill_percent: z.number(),
+    mass_g: z.number().describe("fill fraction × part mass"),
+  })).describe(
+    "each cavity at the instant the first cavity is full: a short shot to weigh and compare",
+  ),
+});
+/** {@link StepStateSchema}. */
+export type StepState = z.infer<typeof StepStateSchema>;
+
 /** One entry of the change list, in order of work. */
 export const ChangeSchema = z.object({
   element: z.string(),
@@ -41,15 +61,20 @@ export const ChangeSchema = z.object({
   from_in: z.number(),
   to_in: z.number(),
   cutter: z.string(),
-  steel_safe: z.boolean().describe("true: steel is removed (enlarge); false: steel must be added"),
+  action: z.enum(["cut_to", "enlarge", "add_steel"]).describe(
+    "cut_to: a new tool, cut as drawn; enlarge: steel removed; add_steel: weld or insert",
+  ),
+  steel_safe: z.boolean().describe(
+    "true: no steel is added (enlarge, or any size of a new tool); false: steel must be added",
+  ),
   mold_half: z.enum(["fixed", "moving", "both"]),
-  step: z.number().int().describe("order of work, from 1"),
-  after_step: z.object({
-    imbalance_percent: z.number(),
-    feed_pressure_peak_MPa: z.number(),
-    runner_volume_cm3: z.number(),
-    limits_met: z.boolean(),
-  }).describe("the tool simulated with this change and every one before it"),
+  step: z.number().int().describe("order of work, from 1; changes cut together share it"),
+  cut_together: z.boolean().describe("cut with the other changes of the same step"),
+  above_start: z.boolean().describe("the imbalance after this step is above today's"),
+  above_start_reason: z.string().nullable(),
+  after_step: StepStateSchema.describe(
+    "the tool simulated with this change and every one before it (a new tool: the final design)",
+  ),
 });
 /** {@link ChangeSchema}. */
 export type Change = z.infer<typeof ChangeSchema>;
@@ -85,6 +110,9 @@ export const OptimizationSchema = z.object({
   continuous: ContinuousSchema,
   after: ResultSchema,
   changes: z.array(ChangeSchema),
+  changes_start: StepStateSchema.nullable().describe(
+    "step 0 of the change list: today's tool (null: a new tool, or no change plan)",
+  ),
   iterations: z.array(IterationSchema.extend({ trust_radius: z.number() })),
 }).describe("evenfill.optimization/1: before/after, the change list, the iteration history");
 /** {@link OptimizationSchema}: the type of `optimizationJson`'s output. */
