@@ -142,7 +142,8 @@ const notSimulated: StepState = {
 
 /**
  * Each cavity's fill fraction and short-shot mass at the instant the first cavity is
- * full, the fill history interpolated linearly at that instant; `solidDensity` kg/m³.
+ * full, the fill history interpolated linearly at that instant (extended along its last
+ * interval when that instant is after switchover); `solidDensity` kg/m³.
  */
 export function shortShotAtFirstFull(
   evaluation: Pick<DesignEvaluation, "fill" | "network">,
@@ -152,15 +153,17 @@ export function shortShotAtFirstFull(
   const time = Math.min(...fill.cavities.map((c) => c.fillTime));
   const history = fill.history;
   if (!Number.isFinite(time) || history.length === 0) return { time: NaN, cavities: [] };
+  // A first fill after switchover (the end of the recorded velocity phase) is reached along
+  // the last recorded interval's intake, as the fill's own cavity fill times are.
   let k = history.findIndex((h) => h.time >= time);
   if (k < 0) k = history.length - 1;
   const b = history[k];
   const a = history[Math.max(0, k - 1)];
-  const w = b.time > a.time ? Math.max(0, Math.min(1, (time - a.time) / (b.time - a.time))) : 1;
+  const w = b.time > a.time ? Math.max(0, (time - a.time) / (b.time - a.time)) : 1;
   return {
     time,
     cavities: network.cavities.map((c, i) => {
-      const f = a.cavityFill[i] + w * (b.cavityFill[i] - a.cavityFill[i]);
+      const f = Math.min(1, a.cavityFill[i] + w * (b.cavityFill[i] - a.cavityFill[i]));
       return { cavity: c.id, fill: f, mass: f * c.volume * solidDensity };
     }),
   };

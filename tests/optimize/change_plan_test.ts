@@ -159,6 +159,8 @@ Deno.test("short shot at first full: 100 % in the first cavity; parts + runner =
   const oneSmaller = evaluate(hotDrop, x);
   assert.ok(oneSmaller.network.feedSystemVolume > oneSmaller.network.coldRunnerVolume, "hot");
   assertShotBalance(oneSmaller, "hot drop, one runner smaller");
+  // Today's hot-drop tool is balanced: every cap is full together, after switchover.
+  assertShotBalance(evaluate(hotDrop, currentDesign(hotDrop)), "hot drop today");
   // The plan's step figures are the same numbers, step 0 included.
   const plan = await planChanges(space, before, after, undefined);
   const density = before.run.material.solidDensity;
