@@ -23,36 +23,40 @@ export function updateMeltTemperature(ctx: FillContext, state: FillState, s: Sol
   if (process.isothermal) return;
   const nodeTemperature = new Float64Array(nodeCount).fill(NaN);
   nodeTemperature[network.inlet] = process.feedTemperature;
-  const order = [...Array(nodeCount).keys()]
-    .filter((n) => !Number.isNaN(s.pressure[n]))
-    .sort((x, y) => s.pressure[y] - s.pressure[x]);
-  const incoming: { heat: number; flow: number }[] = Array.from({ length: nodeCount }, () => ({
-    heat: 0,
-    flow: 0,
-  }));
-  const byUpstream: number[][] = Array.from({ length: nodeCount }, () => []);
-  s.assembly.branches.forEach((br, k) => {
-    const up = s.flows[k] >= 0 ? br.a : br.b;
-    if (up >= 0) byUpstream[up].push(k);
-  });
+  const order: number[] = [];
+  for (let n = 0; n < nodeCount; n++) if (!Number.isNaN(s.pressure[n])) order.push(n);
+  order.sort((x, y) => s.pressure[y] - s.pressure[x]);
+  const heat = new Float64Array(nodeCount);
+  const flow = new Float64Array(nodeCount);
+  // Branches by upstream node, in branch order (compressed rows).
+  const K = s.assembly.branches.length;
+  const upstream = new Int32Array(K);
+  const start = new Int32Array(nodeCount + 1);
+  for (let k = 0; k < K; k++) {
+    const br = s.assembly.branches[k];
+    upstream[k] = s.flows[k] >= 0 ? br.a : br.b;
+    if (upstream[k] >= 0) start[upstream[k] + 1]++;
+  }
+  for (let n = 0; n < nodeCount; n++) start[n + 1] += start[n];
+  const byUpstream = new Int32Array(start[nodeCount]);
+  const cursor = start.slice(0, nodeCount);
+  for (let k = 0; k < K; k++) if (upstream[k] >= 0) byUpstream[cursor[upstream[k]]++] = k;
+  const heating = { density: melt.meltDensity, specificHeat: melt.specificHeat };
   for (const n of order) {
-    const into = incoming[n];
     if (n !== network.inlet) {
-      nodeTemperature[n] = into.flow > 0 ? into.heat / into.flow : process.feedTemperature;
+      nodeTemperature[n] = flow[n] > 0 ? heat[n] / flow[n] : process.feedTemperature;
     }
-    for (const k of byUpstream[n]) {
+    for (let p = start[n]; p < start[n + 1]; p++) {
+      const k = byUpstream[p];
       const br = s.assembly.branches[k];
       const e = elements[br.element];
-      const rise = adiabaticHeating(Math.abs(s.channel[k].pressureDrop), {
-        density: melt.meltDensity,
-        specificHeat: melt.specificHeat,
-      });
+      const rise = adiabaticHeating(Math.abs(s.channel[k].pressureDrop), heating);
       const inlet = e.heated ? process.feedTemperature : nodeTemperature[n];
       state.temperature[e.index] = inlet + rise / 2;
       const down = s.flows[k] >= 0 ? br.b : br.a;
       if (down >= 0) {
-        incoming[down].heat += Math.abs(s.flows[k]) * (inlet + rise);
-        incoming[down].flow += Math.abs(s.flows[k]);
+        heat[down] += Math.abs(s.flows[k]) * (inlet + rise);
+        flow[down] += Math.abs(s.flows[k]);
       }
     }
   }
