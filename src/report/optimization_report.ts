@@ -3,6 +3,7 @@ import { type Change, dualSize, type StepState } from "../optimize/change_list.t
 import { m3ToCm3, mToInch, mToMm, paToMpa } from "../model/units.ts";
 import {
   type Continuous,
+  type FrontPointJson,
   type Iteration,
   OPTIMIZATION_FORMAT,
   type OptimizationResult,
@@ -74,7 +75,25 @@ export function optimizationJson(
       ...iterationJson(i),
       trust_radius: i.trustRadius,
     })),
+    changes_omitted: outcome.changesOmitted ?? null,
+    front: frontJson(outcome),
   };
+}
+
+/** An existing tool's fewest-change front on the wire (masses at the resin's solid density). */
+export function frontJson(outcome: BalanceOutcome): FrontPointJson[] {
+  const front = outcome.front;
+  if (!front) return [];
+  const density = outcome.before.run.material.solidDensity;
+  return front.points.map((p) => ({
+    max_changes: p.changes,
+    changed: p.elements,
+    imbalance_percent: Number(p.imbalancePercent.toFixed(3)),
+    runner_mass_g: Number((p.runnerVolume * density * 1e3).toFixed(3)),
+    limits_met: p.feasible,
+    change_cost: p.cost,
+    chosen: p === front.chosen,
+  }));
 }
 
 /**
@@ -143,6 +162,23 @@ export function optimizationText(
   const c = outcome.continuous;
   if (c !== a && c.x.some((x, j) => x !== a.x[j])) out.push(line("continuous", c));
   out.push(line("after", a));
+  const front = outcome.front?.points ?? [];
+  if (front.length > 0) {
+    const density = outcome.before.run.material.solidDensity;
+    out.push("");
+    out.push("Fewest changes (existing tool; continuous sizes, before cutters):");
+    for (const p of front) {
+      out.push(
+        `  ≤ ${String(p.changes).padStart(2)} change${p.changes === 1 ? " " : "s"}  imbalance ${
+          p.imbalancePercent.toFixed(2).padStart(6)
+        } %   runner ${(p.runnerVolume * density * 1e3).toFixed(1).padStart(7)} g   limits ${
+          p.feasible ? "met    " : "NOT met"
+        }  ${p === outcome.front?.chosen ? "← chosen " : "         "}${
+          p.elements.join(", ") || "none"
+        }`,
+      );
+    }
+  }
   if (outcome.snap) out.push(`  cutters: ${outcome.snap.message}`);
   for (const v of a.violations) out.push(`  ! ${v.message}`);
   if (outcome.wouldNeed.length > 0) {

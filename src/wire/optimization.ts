@@ -95,6 +95,22 @@ export const ContinuousSchema = z.object({
 /** {@link ContinuousSchema}. */
 export type Continuous = z.infer<typeof ContinuousSchema>;
 
+/**
+ * One point of an existing tool's fewest-change front: the best plan found that changes at
+ * most `max_changes` sizes, balanced with continuous sizes (before cutter snapping).
+ */
+export const FrontPointSchema = z.object({
+  max_changes: z.number().int(),
+  changed: z.array(z.string()).describe("the sizes this plan changes"),
+  imbalance_percent: z.number(),
+  runner_mass_g: z.number(),
+  limits_met: z.boolean(),
+  change_cost: z.number().describe("sum of goals.change_costs over its changes"),
+  chosen: z.boolean().describe("the plan the optimization went on with"),
+});
+/** {@link FrontPointSchema}. */
+export type FrontPointJson = z.infer<typeof FrontPointSchema>;
+
 /** `evenfill.optimization/1`. */
 export const OptimizationSchema = z.object({
   format: z.literal(OPTIMIZATION_FORMAT),
@@ -114,6 +130,12 @@ export const OptimizationSchema = z.object({
     "step 0 of the change list: today's tool (null: a new tool, or no change plan)",
   ),
   iterations: z.array(IterationSchema.extend({ trust_radius: z.number() })),
+  changes_omitted: z.string().nullable().describe(
+    "why there is no change list (stopped before it, or not asked for); null when it is there",
+  ),
+  front: z.array(FrontPointSchema).describe(
+    "an existing tool's trade-off: for at most k changes, the best plan found (empty for a new tool)",
+  ),
 }).describe("evenfill.optimization/1: before/after, the change list, the iteration history");
 /** {@link OptimizationSchema}: the type of `optimizationJson`'s output. */
 export type OptimizationResult = z.infer<typeof OptimizationSchema>;

@@ -129,11 +129,14 @@ for (const name of DEMOS) {
       `snapped ${snapped.text} vs plain rounding ${plain.text}`,
     );
 
-    // Cuttable sizes: runners from the catalogue, gates on the 0.05 mm step.
+    // Cuttable sizes: runners from the catalogue, gates on the 0.05 mm step — every size of a
+    // new tool, and every size an existing tool's plan changes (the rest stay as they are).
     const catalogue = cutterCatalogue(goals.cutters);
     assert.equal(catalogue.kind, "discrete");
     if (catalogue.kind !== "discrete") return;
-    for (const v of o.space.variables) {
+    const changed = (j: number) => Math.abs(o.after.x[j] - o.space.variables[j].current) > 1e-12;
+    for (const [j, v] of o.space.variables.entries()) {
+      if (goals.mode !== "new_tool" && !changed(j)) continue;
       if (v.kind === "runner") {
         const d = final.runners[v.index].diameter_mm;
         assert.ok(
