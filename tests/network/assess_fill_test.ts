@@ -297,3 +297,94 @@ Deno.test("freeze times: plate centre line for walls, cylinder axis for round ch
   assert.ok(freeze.runnerCoolingTime > freeze.partCoolingTime);
   assert.equal(freeze.cycleSetBy, "runner R1");
 });
+
+// ---- The practical size rules' warnings (issue 13.3) at their thresholds.
+
+Deno.test("sprue exit: a runner leaving it within 0.5 mm of its size is warned, at 0.5 mm it is not (common practice)", () => {
+  const sprueFed = (runner: number) => {
+    const wire = unequalBranches("full");
+    wire.feed = {
+      kind: "sprue",
+      node: "J",
+      length_mm: 50,
+      entry_diameter_mm: 3,
+      exit_diameter_mm: 5.5,
+    };
+    wire.runners![0].diameter_mm = runner;
+    return codes(wire).run.warnings.filter((w) => w.code === "sprue_exit_below_margin")
+      .map((w) => w.element);
+  };
+  assert.deepEqual(sprueFed(5), []);
+  assert.deepEqual(sprueFed(5.01), ["R1"]);
+  // A hot drop has no sprue exit to compare with.
+  assert.ok(!RUN.warnings.some((w) => w.code === "sprue_exit_below_margin"));
+});
+
+/** A freeze summary with one part cooling `part` s and the given runner and sprue cooling times. */
+function cooling(part: number, cold: Record<string, number>): FreezeTimes {
+  const entry = (id: string, kind: FreezeEntry["kind"], coolingTime: number): FreezeEntry => ({
+    id,
+    kind,
+    size: 1e-3,
+    freezeTime: coolingTime / 2,
+    coolingTime,
+    formula: "cylinder_centre",
+  });
+  const entries = [
+    entry("C1", "part", part),
+    ...Object.entries(cold).map(([id, t]) => entry(id, id === "sprue" ? "sprue" : "runner", t)),
+  ];
+  return {
+    entries,
+    partCoolingTime: part,
+    runnerCoolingTime: Math.max(...Object.values(cold)),
+    cycleSetBy: "runner",
+  };
+}
+
+Deno.test("runner cooling: over ratio × the thickest part's it is a caution naming the ratio, at it not; a longer sprue is the limit", () => {
+  // goals.max_runner_cooling_ratio defaults to 1.5: part 10 s allows 15 s.
+  const over = (freeze: FreezeTimes, ratio?: number) =>
+    warned((s) => ratio !== undefined && (s.goals.max_runner_cooling_ratio = ratio), freeze)
+      .filter((c) => c.startsWith("runner_cooling_over_ratio"));
+  assert.deepEqual(over(cooling(10, { R1: 15, R2: 12 })), []);
+  assert.deepEqual(over(cooling(10, { R1: 15 * (1 + HAIR), R2: 12 })), [
+    "runner_cooling_over_ratio:R1",
+  ]);
+  assert.deepEqual(over(cooling(10, { R1: 30 }), 3), []);
+  // A sprue at 20 s breaks the rule itself; a runner up to 20 s adds nothing to the cycle.
+  assert.deepEqual(over(cooling(10, { sprue: 20, R1: 20 })), ["runner_cooling_over_ratio:sprue"]);
+  assert.deepEqual(over(cooling(10, { sprue: 20, R1: 20 * (1 + HAIR) })), [
+    "runner_cooling_over_ratio:sprue",
+    "runner_cooling_over_ratio:R1",
+  ]);
+  // runner_sets_cycle: a note between 1× and the ratio, a caution naming the ratio past it.
+  const setsCycle = (freeze: FreezeTimes) => {
+    const scenario = structuredClone(RUN.scenario);
+    return fillWarnings({ scenario, network: RUN.network, fill: RUN.fill }, {
+      thermal: THERMAL,
+      freeze,
+    }).find((w) => w.code === "runner_sets_cycle");
+  };
+  assert.equal(setsCycle(cooling(10, { R1: 15 }))?.severity, "info");
+  const caution = setsCycle(cooling(10, { R1: 15 * (1 + HAIR) }));
+  assert.equal(caution?.severity, "caution");
+  assert.match(caution!.message, /1\.5 × of goals\.max_runner_cooling_ratio/);
+});
+
+Deno.test("gate hold: a gate freezing before the hold time ends is warned, freezing at its end is not", () => {
+  const g1 = RUN.freeze.entries.find((x) => x.id === "G1")!;
+  const g2 = RUN.freeze.entries.find((x) => x.id === "G2")!;
+  const hold = (t: number | undefined) =>
+    warned((s) => (s.process.hold_time_s = t)).filter((c) =>
+      c.startsWith("gate_freezes_before_hold")
+    );
+  assert.deepEqual(hold(undefined), []);
+  // Both 1.4 mm pin gates freeze at the same time.
+  assert.equal(g1.freezeTime, g2.freezeTime);
+  assert.deepEqual(hold(g1.freezeTime), []);
+  assert.deepEqual(hold(g1.freezeTime * (1 + HAIR)), [
+    "gate_freezes_before_hold:G1",
+    "gate_freezes_before_hold:G2",
+  ]);
+});
