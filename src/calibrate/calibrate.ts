@@ -31,6 +31,20 @@ export interface CalibrateOptions {
   priorSpread?: readonly number[];
   /** Iteration limit of Levenberg–Marquardt. Default 30. */
   maxIterations?: number;
+  /** Aborting it stops the fit before its next simulation (outcome `stopped`, reason `cancelled`). */
+  signal?: AbortSignal;
+  /** Epoch ms after which the fit stops before its next simulation (reason `deadline`). */
+  deadline?: number;
+  /** Called after every simulation: the iteration reached, simulations so far, best cost so far. */
+  onProgress?: (progress: CalibrationProgress) => void;
+}
+
+/** Where a running fit stands (see {@link CalibrateOptions.onProgress}). */
+export interface CalibrationProgress {
+  iteration: number;
+  simulations: number;
+  /** Weighted sum of squares of the best point so far (data and pull rows). */
+  cost: number;
 }
 
 /** One fitted factor. */
@@ -74,7 +88,14 @@ export type CalibrationOutcome =
     calibrated: ScenarioWire;
   }
   | { ok: false; code: "invalid_measurements"; issues: MeasurementIssue[] }
-  | { ok: false; code: "simulation_failed"; message: string };
+  | { ok: false; code: "simulation_failed"; message: string }
+  | { ok: false; code: "stopped"; reason: "cancelled" | "deadline"; message: string };
+
+class CalibrationStopped extends Error {
+  constructor(readonly reason: "cancelled" | "deadline") {
+    super(`the fit was stopped (${reason})`);
+  }
+}
 
 /** Relative fall of the cost below which an accepted step ends the fit. */
 const CONVERGED_GAIN = 1e-6;
@@ -103,6 +124,26 @@ export function calibrate(
   measurements: Measurements,
   options: CalibrateOptions,
 ): CalibrationOutcome {
+  try {
+    return fit(wire, measurements, options);
+  } catch (error) {
+    if (!(error instanceof CalibrationStopped)) throw error;
+    return {
+      ok: false,
+      code: "stopped",
+      reason: error.reason,
+      message: error.reason === "cancelled"
+        ? "The fit was cancelled before it finished"
+        : "The fit reached its time limit before it finished",
+    };
+  }
+}
+
+function fit(
+  wire: ScenarioWire,
+  measurements: Measurements,
+  options: CalibrateOptions,
+): CalibrationOutcome {
   const factors = options.factors;
   const p = factors.length;
   if (p === 0) throw new RangeError("Cannot calibrate: give at least one factor");
@@ -126,10 +167,18 @@ export function calibrate(
       s.injected_cm3 !== undefined ? s.injected_cm3 * 1e-6 : (s.shot_percent! / 100) * shot
     );
   };
+  let iterations = 0;
+  let bestCost = NaN;
   const run = (w: ScenarioWire): { outcome: RunOutcome; volumes: number[] } => {
+    if (options.signal?.aborted) throw new CalibrationStopped("cancelled");
+    if (options.deadline !== undefined && Date.now() > options.deadline) {
+      throw new CalibrationStopped("deadline");
+    }
     simulations++;
     const volumes = volumesOf(w);
-    return { outcome: simulateScenario(w, { sampleVolumes: volumes }), volumes };
+    const outcome = simulateScenario(w, { sampleVolumes: volumes });
+    options.onProgress?.({ iteration: iterations, simulations, cost: bestCost });
+    return { outcome, volumes };
   };
   const { outcome: nominal, volumes: nominalVolumes } = run(wire);
   if (!nominal.ok) {
@@ -192,8 +241,8 @@ export function calibrate(
   let x = x0.slice();
   let pred = before;
   let r = residuals(pred, x);
+  bestCost = cost(r);
   let mu = 1e-2;
-  let iterations = 0;
   let stoppedBecause: "converged" | "iteration_limit" | "no_progress" = "iteration_limit";
   let jacobian: Float64Array[] = [];
   const clamp = (v: number, j: number) => Math.min(bounds[j][1], Math.max(bounds[j][0], v));
@@ -237,6 +286,7 @@ export function calibrate(
         x = trial;
         pred = trialPred!;
         r = trialR;
+        bestCost = cost(r);
         mu = Math.max(mu / 3, 1e-9);
         accepted = true;
         if (gain <= CONVERGED_GAIN * cost(r) || cost(r) < 1e-20) stoppedBecause = "converged";

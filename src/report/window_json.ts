@@ -1,6 +1,11 @@
 import { paToMpa } from "../model/units.ts";
 import type { ProcessWindowReport } from "../window/process_window.ts";
-import type { WindowJson } from "../wire/window.ts";
+import {
+  WINDOW_FORMAT,
+  type WindowJobResult,
+  type WindowJson,
+  type WindowRangeJson,
+} from "../wire/window.ts";
 
 const finite = (x: number) => (Number.isFinite(x) ? x : null);
 
@@ -21,5 +26,18 @@ export function windowJson(report: ProcessWindowReport): WindowJson {
       imbalance_points: finite(e.imbalancePoints),
     })),
     failures: report.failures,
+  };
+}
+
+/** A window job's result (`evenfill.window/1`): each design's sweep and the range it used. */
+export function windowJobJson(
+  designs: readonly { design: "today" | "after"; name: string; report: ProcessWindowReport }[],
+  range: WindowRangeJson,
+): WindowJobResult {
+  return {
+    format: WINDOW_FORMAT,
+    range,
+    designs: designs.map((d) => ({ design: d.design, name: d.name, ...windowJson(d.report) })),
+    stopped_because: designs.find((d) => d.report.stoppedBecause)?.report.stoppedBecause ?? null,
   };
 }

@@ -6,15 +6,20 @@
  */
 import { z } from "zod";
 import { MaterialSchema } from "../model/material_schema.ts";
+import { DEFAULT_WINDOW_RANGE } from "../window/process_window.ts";
 import {
+  CalibrationFactorSchema,
   IssueSchema,
   JobKindSchema,
   JobStatusSchema,
   ModeSchema,
   SlopeSourceSchema,
+  WindowRangeSchema,
 } from "../wire/mod.ts";
 
 export {
+  CalibrationFactorSchema,
+  CalibrationSchema,
   ErrorSchema,
   IssueSchema,
   JobEndEventSchema,
@@ -28,6 +33,9 @@ export {
   JobSummarySchema,
   OptimizationSchema,
   ResultSchema,
+  StageProgressSchema,
+  WindowJobSchema,
+  WindowRangeSchema,
 } from "../wire/mod.ts";
 
 export const HealthSchema = z.object({
@@ -95,6 +103,17 @@ export const JobSubmitSchema = z.object({
   scenario_id: z.string().max(100).optional().describe("the saved scenario this job is about"),
   slopes: SlopeSourceSchema.optional().describe(
     "where the optimizer's slopes come from: the simulation's tangent (default) or one extra simulation per size",
+  ),
+  factors: z.array(CalibrationFactorSchema).min(1).max(64).optional().describe(
+    "calibrate: the unknowns to fit to the scenario's measurements block (default: the resin lot's viscosity)",
+  ),
+  window: WindowRangeSchema.partial().optional().describe(
+    `window: how far the sweep goes (± each; defaults ${DEFAULT_WINDOW_RANGE.meltTemperatureK} K melt, ${DEFAULT_WINDOW_RANGE.moldTemperatureK} K mold, ${
+      100 * DEFAULT_WINDOW_RANGE.injectionRateShare
+    } % rate, ${100 * DEFAULT_WINDOW_RANGE.viscosityShare} % viscosity)`,
+  ),
+  after_scenario: z.unknown().optional().describe(
+    "window: a second design swept beside the scenario (the optimized tool), evenfill.scenario/1 JSON",
   ),
 });
 

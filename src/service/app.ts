@@ -9,7 +9,9 @@ import { nanoid } from "nanoid";
 import type { z } from "zod";
 import { MATERIALS } from "../materials/library.ts";
 import { type ScenarioIssue, scenarioIssue, zodIssues } from "../wire/issue.ts";
+import type { CalibrationResult } from "../wire/calibration.ts";
 import type { OptimizationResult } from "../wire/optimization.ts";
+import type { WindowJobResult } from "../wire/window.ts";
 import type { Scenario } from "../model/scenario_schema.ts";
 import type { runScenario } from "../network/simulate_scenario.ts";
 import { checkScenario } from "../network/simulate_scenario.ts";
@@ -20,6 +22,7 @@ import { openApiDocument } from "./openapi.ts";
 import { jobEvents } from "./job_events.ts";
 import type { SimulatePool } from "./simulate_pool.ts";
 import { simulateRequest } from "./simulate_request.ts";
+import { afterScenarioIssues, calibrateIssues } from "./study_request.ts";
 import { serveStatic } from "./static_files.ts";
 
 /** Version reported by /api/health and the OpenAPI document. */
@@ -332,7 +335,7 @@ function jobView(job: JobRecord): z.infer<typeof JobSchema> {
     slopes: input.slopes ?? null,
     scenario_id: input.scenario_id ?? null,
     time_limit_s: job.time_limit_ms / 1000,
-    result: (job.result ?? null) as OptimizationResult | null,
+    result: (job.result ?? null) as OptimizationResult | CalibrationResult | WindowJobResult | null,
   };
 }
 
@@ -493,12 +496,32 @@ export function createApp(options: AppOptions): Handler {
       ]);
     }
     const scenario = validScenario(submit.scenario);
+    const studyIssues = submit.kind === "calibrate"
+      ? calibrateIssues(scenario, submit.factors ?? [{ kind: "viscosity" }])
+      : submit.kind === "window"
+      ? afterScenarioIssues(submit.after_scenario)
+      : [];
+    if (studyIssues.length > 0) {
+      throw new HttpError(
+        400,
+        "invalid_request",
+        `The ${submit.kind} job cannot run: ${studyIssues[0].at}: ${studyIssues[0].message}${
+          studyIssues.length > 1 ? ` (and ${studyIssues.length - 1} more)` : ""
+        }`,
+        studyIssues,
+      );
+    }
     if (submit.scenario_id !== undefined && !await db.getScenario(submit.scenario_id)) {
       throw new HttpError(404, "not_found", `No saved scenario "${submit.scenario_id}"`);
     }
     const input: Record<string, unknown> = { scenario: submit.scenario };
     if (submit.mode !== undefined) input.mode = submit.mode;
     if (submit.slopes !== undefined) input.slopes = submit.slopes;
+    if (submit.kind === "calibrate") input.factors = submit.factors ?? [{ kind: "viscosity" }];
+    if (submit.kind === "window") {
+      if (submit.window !== undefined) input.window = submit.window;
+      if (submit.after_scenario !== undefined) input.after_scenario = submit.after_scenario;
+    }
     if (submit.scenario_id !== undefined) input.scenario_id = submit.scenario_id;
     const job = await db.submitJob({
       id: nanoid(),

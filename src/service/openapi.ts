@@ -22,6 +22,11 @@ const COMPONENTS: Record<string, z.ZodType> = {
   Validation: api.ValidationSchema,
   Result: wire.ResultSchema,
   Optimization: wire.OptimizationSchema,
+  Calibration: wire.CalibrationSchema,
+  CalibrationFactor: wire.CalibrationFactorSchema,
+  Window: wire.WindowJobSchema,
+  WindowRange: wire.WindowRangeSchema,
+  StageProgress: wire.StageProgressSchema,
   Mode: wire.ModeSchema,
   SlopeSource: wire.SlopeSourceSchema,
   JobKind: wire.JobKindSchema,
@@ -221,11 +226,14 @@ export function openApiDocument(version: string): Schema {
         get: { summary: "Recent jobs", responses: { 200: ok("jobs", "JobList") } },
         post: {
           ...write,
-          summary: "Submit an optimization job",
+          summary:
+            "Submit a job: optimize (balance the sizes), calibrate (fit the model to the scenario's weighed short shots) or window (sweep the process window)",
           requestBody: { required: true, content: jsonContent("JobSubmit") },
           responses: {
             202: ok("queued", "JobAccepted"),
-            400: invalid,
+            400: error(
+              "invalid JSON, scenario, factors (an unknown gate or runner), measurements or second design (issues with JSON paths)",
+            ),
             404: error("unknown scenario_id"),
             413: tooLarge,
             429: error("queue full; see Retry-After"),

@@ -2,6 +2,14 @@ import { applyFactors } from "../calibrate/factors.ts";
 import type { ScenarioWire } from "../model/scenario_schema.ts";
 import { simulateScenario } from "../network/simulate_scenario.ts";
 
+/** The sweep's default half-ranges (see {@link ProcessWindowRange}). Common practice, no source. */
+export const DEFAULT_WINDOW_RANGE: Required<ProcessWindowRange> = {
+  meltTemperatureK: 10,
+  moldTemperatureK: 10,
+  injectionRateShare: 0.2,
+  viscosityShare: 0.15,
+};
+
 /** How far the sweep goes from the scenario's settings. */
 export interface ProcessWindowRange {
   /** Melt temperature ± this, K (°C difference). Default 10. */
@@ -39,6 +47,18 @@ export interface ProcessWindowReport {
    */
   effects: { factor: (typeof WINDOW_FACTORS)[number]; imbalancePoints: number }[];
   failures: { levels: WindowPoint["levels"]; message: string }[];
+  /** Set when the sweep was stopped before its last point (the report covers the points run). */
+  stoppedBecause?: "cancelled" | "deadline";
+}
+
+/** Options of {@link processWindow}. */
+export interface ProcessWindowOptions {
+  /** Aborting it stops the sweep before its next simulation. */
+  signal?: AbortSignal;
+  /** Epoch ms after which the sweep stops before its next simulation. */
+  deadline?: number;
+  /** Called after every simulation with the points done and the points in all (17). */
+  onProgress?: (done: number, total: number) => void;
 }
 
 /**
@@ -50,11 +70,12 @@ export interface ProcessWindowReport {
 export function processWindow(
   wire: ScenarioWire,
   range: ProcessWindowRange = {},
+  options: ProcessWindowOptions = {},
 ): ProcessWindowReport {
-  const dMelt = range.meltTemperatureK ?? 10;
-  const dMold = range.moldTemperatureK ?? 10;
-  const dRate = range.injectionRateShare ?? 0.2;
-  const dVisc = range.viscosityShare ?? 0.15;
+  const dMelt = range.meltTemperatureK ?? DEFAULT_WINDOW_RANGE.meltTemperatureK;
+  const dMold = range.moldTemperatureK ?? DEFAULT_WINDOW_RANGE.moldTemperatureK;
+  const dRate = range.injectionRateShare ?? DEFAULT_WINDOW_RANGE.injectionRateShare;
+  const dVisc = range.viscosityShare ?? DEFAULT_WINDOW_RANGE.viscosityShare;
   const levels: WindowPoint["levels"][] = [{ melt: 0, mold: 0, rate: 0, viscosity: 0 }];
   for (let k = 0; k < 16; k++) {
     const bit = (b: number) => ((k >> b) & 1 ? 1 : -1);
@@ -62,7 +83,13 @@ export function processWindow(
   }
   const points: WindowPoint[] = [];
   const failures: ProcessWindowReport["failures"] = [];
+  let stoppedBecause: ProcessWindowReport["stoppedBecause"];
   for (const l of levels) {
+    if (options.signal?.aborted) stoppedBecause = "cancelled";
+    else if (options.deadline !== undefined && Date.now() > options.deadline) {
+      stoppedBecause = "deadline";
+    }
+    if (stoppedBecause) break;
     const w = applyFactors(wire, [{ kind: "viscosity" }], [1 + l.viscosity * dVisc]);
     w.process.melt_temperature_C += l.melt * dMelt;
     if (w.feed.kind === "hot_drop" && w.feed.tip_temperature_C !== undefined) {
@@ -74,6 +101,7 @@ export function processWindow(
       ? { flow_rate_cm3_s: w.process.injection.flow_rate_cm3_s * scale }
       : { fill_time_s: w.process.injection.fill_time_s / scale };
     const outcome = simulateScenario(w);
+    options.onProgress?.(points.length + failures.length + 1, levels.length);
     if (!outcome.ok) {
       failures.push({
         levels: l,
@@ -109,5 +137,6 @@ export function processWindow(
     gateShearRange: span(points.map((p) => p.gateShearPeak)),
     effects,
     failures,
+    ...(stoppedBecause ? { stoppedBecause } : {}),
   };
 }

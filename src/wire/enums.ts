@@ -34,8 +34,12 @@ export type JobStatus = z.infer<typeof JobStatusSchema>;
 /** The statuses after which a job never changes again. */
 export const FINAL_JOB_STATUSES: ReadonlySet<JobStatus> = new Set(["done", "failed", "cancelled"]);
 
-/** Kinds of job the workers run; `test_spin` (a deliberately endless job) only when test jobs are enabled. */
-export const JobKindSchema = z.enum(["optimize", "test_spin"]);
+/**
+ * Kinds of job the workers run: `optimize` (balance the sizes), `calibrate` (fit the model to the
+ * scenario's weighed short shots), `window` (sweep the process window); `test_spin` (a
+ * deliberately endless job) only when test jobs are enabled.
+ */
+export const JobKindSchema = z.enum(["optimize", "calibrate", "window", "test_spin"]);
 /** {@link JobKindSchema}. */
 export type JobKind = z.infer<typeof JobKindSchema>;
 
@@ -63,8 +67,12 @@ export const JobErrorCodeSchema = z.enum([
   "no_variables",
   "simulation_failed",
   "lp_failed",
+  // the calibration's expected failures
+  "invalid_measurements",
   // an engine exception
   "optimization_failed",
+  "calibration_failed",
+  "window_failed",
   // the supervisor and the store's retry rule
   "time_limit",
   "cancelled",

@@ -12,10 +12,26 @@ import {
   ModeSchema,
   SlopeSourceSchema,
 } from "./enums.ts";
+import { CalibrationSchema } from "./calibration.ts";
 import { IterationSchema, OptimizationSchema } from "./optimization.ts";
+import { WindowJobSchema } from "./window.ts";
 
-/** Latest progress of a running optimization: its last SLP iteration. */
-export const JobProgressSchema = IterationSchema;
+/** Latest progress of a running calibration or process-window sweep. */
+export const StageProgressSchema = z.object({
+  stage: z.enum(["calibrate", "window"]),
+  simulations: z.number().int().describe("simulations so far"),
+  iteration: z.number().int().nullable().describe("the fit's iteration (null for a sweep)"),
+  done: z.number().int().nullable().describe("points of the sweep done (null for a fit)"),
+  total: z.number().int().nullable().describe("points of the sweep in all (null for a fit)"),
+});
+/** {@link StageProgressSchema}. */
+export type StageProgress = z.infer<typeof StageProgressSchema>;
+
+/**
+ * Latest progress of a running job: an optimization's last SLP iteration, or where a
+ * calibration or sweep stands (it has a `stage`).
+ */
+export const JobProgressSchema = z.union([IterationSchema, StageProgressSchema]);
 /** {@link JobProgressSchema}. */
 export type JobProgress = z.infer<typeof JobProgressSchema>;
 
@@ -73,8 +89,8 @@ export const JobSchema = JobSummarySchema.extend({
   slopes: SlopeSourceSchema.nullable(),
   scenario_id: z.string().nullable(),
   time_limit_s: z.number(),
-  result: OptimizationSchema.nullable().describe(
-    "evenfill.optimization/1 JSON with the before/after fill history",
+  result: z.union([OptimizationSchema, CalibrationSchema, WindowJobSchema, z.null()]).describe(
+    "by kind: evenfill.optimization/1 with the before/after fill history, evenfill.calibration/1, evenfill.window/1",
   ),
 });
 /** {@link JobSchema}. */

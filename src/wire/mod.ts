@@ -14,3 +14,4 @@ export * from "./result.ts";
 export * from "./optimization.ts";
 export * from "./job.ts";
 export * from "./window.ts";
+export * from "./calibration.ts";

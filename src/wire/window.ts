@@ -38,3 +38,31 @@ export const WindowSchema = z.object({
 });
 /** {@link WindowSchema}: the type of `windowJson`'s output. */
 export type WindowJson = z.infer<typeof WindowSchema>;
+
+/** Wire format of a process-window job's result. */
+export const WINDOW_FORMAT = "evenfill.window/1";
+
+/** How far a sweep goes from the scenario's settings (± each), as a window job takes it. */
+export const WindowRangeSchema = z.object({
+  melt_temperature_K: z.number().positive().max(100).describe("melt temperature ±, K"),
+  mold_temperature_K: z.number().positive().max(100).describe("mold temperature ±, K"),
+  injection_rate_percent: z.number().positive().max(90).describe("injection rate ±, %"),
+  viscosity_percent: z.number().positive().max(90).describe("resin-lot viscosity ±, %"),
+});
+/** {@link WindowRangeSchema}. */
+export type WindowRangeJson = z.infer<typeof WindowRangeSchema>;
+
+/** `evenfill.window/1`: the sweep of one or two designs (today's tool, the optimized one). */
+export const WindowJobSchema = z.object({
+  format: z.literal(WINDOW_FORMAT),
+  range: WindowRangeSchema,
+  designs: z.array(WindowSchema.extend({
+    design: z.enum(["today", "after"]),
+    name: z.string(),
+  })),
+  stopped_because: z.enum(["cancelled", "deadline"]).nullable().describe(
+    "set when the sweep stopped before its last point",
+  ),
+}).describe("evenfill.window/1: each design's imbalance and gate shear over the process window");
+/** {@link WindowJobSchema}. */
+export type WindowJobResult = z.infer<typeof WindowJobSchema>;

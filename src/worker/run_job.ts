@@ -16,7 +16,14 @@
 import { parseScenario } from "../model/parse_scenario.ts";
 import { LIBRARY_MATERIAL_IDS } from "../network/simulate_scenario.ts";
 import { optimizeBalance } from "../optimize/balance.ts";
+import { calibrate } from "../calibrate/calibrate.ts";
+import type { Measurements } from "../model/measurements_schema.ts";
+import type { ScenarioWire } from "../model/scenario_schema.ts";
+import { calibrationJson } from "../report/calibration_json.ts";
 import { iterationJson, optimizationJson } from "../report/optimization_report.ts";
+import { windowJobJson } from "../report/window_json.ts";
+import { DEFAULT_WINDOW_RANGE, processWindow } from "../window/process_window.ts";
+import type { CalibrationFactorJson, StageProgress, WindowRangeJson } from "../wire/mod.ts";
 import { SqliteStore } from "../store/sqlite_store.ts";
 import { lines } from "./lines.ts";
 import {
@@ -137,9 +144,92 @@ export async function runJobAttempt(
   if (input.mode === "new_tool" || input.mode === "trim" || input.mode === "steel_safe") {
     scenario.goals.mode = input.mode;
   }
+  const watch = watchStop(store, job, orphaned);
+  const { controller, poll } = watch;
+  if (job.kind === "calibrate" || job.kind === "window") {
+    return await runStudy(store, job, parsed.scenario.measurements, {
+      ...options,
+      watch,
+      finish,
+      fail,
+    });
+  }
   let lastWrite = -Infinity;
-  // Cancel, a lost lease and the time limit end the optimization through its signal and
-  // deadline: it returns its best design so far, which is written (except on a lost lease).
+  const deadline = Date.now() + Math.max(0, job.time_limit_ms - TIME_LIMIT_MARGIN_MS);
+  let result;
+  try {
+    result = await (options.optimize ?? optimizeBalance)(scenario, {
+      slopes: input.slopes === "finite_difference" ? "finite_difference" : "tangent",
+      signal: controller.signal,
+      deadline,
+      onProgress: (i) => {
+        poll();
+        const now = performance.now();
+        if (now - lastWrite < PROGRESS_EVERY_MS) return;
+        lastWrite = now;
+        const progress: JobProgress = iterationJson(i);
+        try {
+          if (!store.writeProgress(job.id, owner, attempt, progress)) watch.loseLease();
+        } catch (error) {
+          // Progress is best effort: a locked database skips this write, not the job.
+          if (!(error instanceof StoreBusyError)) throw error;
+        }
+      },
+    });
+  } catch (error) {
+    // An exception from the engine (a bug, or a failure it did not turn into a
+    // value): the job fails with its message; the stack goes to the log.
+    const message = error instanceof Error ? error.message : String(error);
+    (options.logError ?? ((e) => console.error(JSON.stringify(e))))({
+      event: "job_engine_error",
+      job: job.id,
+      attempt,
+      error: error instanceof Error ? (error.stack ?? message) : message,
+    });
+    if (watch.leaseLost) throw new LeaseLost();
+    return fail("optimization_failed", `The optimization stopped on an engine error: ${message}`);
+  } finally {
+    watch.stop();
+  }
+  if (watch.leaseLost) throw new LeaseLost();
+  if (watch.pollError) throw watch.pollError;
+  if (!result.ok) return fail(result.code, result.message);
+  const json = optimizationJson(result.outcome, { history: true });
+  if (result.outcome.status === "cancelled") {
+    if (!controller.signal.aborted) {
+      // Stopped by the deadline: the time limit, with the best design so far.
+      const seconds = (job.time_limit_ms / 1000).toString();
+      const message = `Stopped at its time limit of ${seconds} s; the best design so far is kept`;
+      return finish({ status: "failed", error: { code: "time_limit", message }, result: json });
+    }
+    const error: JobError = {
+      code: "cancelled",
+      message: "cancelled by request; the best design so far is kept",
+    };
+    return finish({ status: "cancelled", result: json, error });
+  }
+  return finish({ status: "done", result: json });
+}
+
+/** A job's stop signal: aborted on cancel, a lost lease or a store failure (see {@link watchStop}). */
+interface StopWatch {
+  controller: AbortController;
+  /** Look at the cancel flag and the supervisor now (the engine calls it on progress). */
+  poll(): void;
+  /** The lease is gone: abort, and never write an outcome. */
+  loseLease(): void;
+  /** Stop the background poll. */
+  stop(): void;
+  readonly leaseLost: boolean;
+  readonly pollError: unknown;
+}
+
+/**
+ * Cancel, a lost lease and the time limit end a job's engine run through its signal and
+ * deadline: a 100 ms poll of the cancel flag and of the supervisor aborts the controller
+ * (and so does each progress callback, for an engine that does not yield).
+ */
+function watchStop(store: Store, job: JobRecord, orphaned: () => boolean): StopWatch {
   const controller = new AbortController();
   let leaseLost = false;
   let pollError: unknown;
@@ -159,63 +249,171 @@ export async function runJobAttempt(
     }
   };
   const poller = setInterval(poll, CANCEL_POLL_MS);
+  return {
+    controller,
+    poll,
+    loseLease: () => {
+      leaseLost = true;
+      controller.abort();
+    },
+    stop: () => clearInterval(poller),
+    get leaseLost() {
+      return leaseLost;
+    },
+    get pollError() {
+      return pollError;
+    },
+  };
+}
+
+/** What {@link runStudy} needs from {@link runJobAttempt}. */
+interface StudyContext extends RunJobAttemptOptions {
+  watch: StopWatch;
+  finish: (outcome: JobOutcome) => Promise<boolean>;
+  fail: (code: string, message: string) => Promise<boolean>;
+}
+
+/** The window job's ranges in the sweep's terms, the defaults filled in. */
+function windowRange(given: Partial<WindowRangeJson> | undefined): WindowRangeJson {
+  return {
+    melt_temperature_K: given?.melt_temperature_K ?? DEFAULT_WINDOW_RANGE.meltTemperatureK,
+    mold_temperature_K: given?.mold_temperature_K ?? DEFAULT_WINDOW_RANGE.moldTemperatureK,
+    injection_rate_percent: given?.injection_rate_percent ??
+      100 * DEFAULT_WINDOW_RANGE.injectionRateShare,
+    viscosity_percent: given?.viscosity_percent ?? 100 * DEFAULT_WINDOW_RANGE.viscosityShare,
+  };
+}
+
+/**
+ * A calibrate or window job: the fit to the scenario's weighed short shots, or the process-window
+ * sweep of today's design (and of an `after_scenario`), each simulation in turn in this process.
+ * Progress after every simulation (throttled), the stop signal polled at each.
+ */
+async function runStudy(
+  store: Store,
+  job: JobRecord,
+  measurements: Measurements | undefined,
+  context: StudyContext,
+): Promise<boolean> {
+  const { owner, attempt, watch, finish, fail } = context;
+  const input = (job.input ?? {}) as {
+    scenario: ScenarioWire;
+    after_scenario?: ScenarioWire;
+    factors?: CalibrationFactorJson[];
+    window?: Partial<WindowRangeJson>;
+  };
   const deadline = Date.now() + Math.max(0, job.time_limit_ms - TIME_LIMIT_MARGIN_MS);
-  let result;
-  try {
-    result = await (options.optimize ?? optimizeBalance)(scenario, {
-      slopes: input.slopes === "finite_difference" ? "finite_difference" : "tangent",
-      signal: controller.signal,
-      deadline,
-      onProgress: (i) => {
-        poll();
-        const now = performance.now();
-        if (now - lastWrite < PROGRESS_EVERY_MS) return;
-        lastWrite = now;
-        const progress: JobProgress = iterationJson(i);
-        try {
-          if (!store.writeProgress(job.id, owner, attempt, progress)) {
-            leaseLost = true;
-            controller.abort();
-          }
-        } catch (error) {
-          // Progress is best effort: a locked database skips this write, not the job.
-          if (!(error instanceof StoreBusyError)) throw error;
-        }
-      },
+  let lastWrite = -Infinity;
+  const progress = (p: StageProgress) => {
+    watch.poll();
+    const now = performance.now();
+    if (now - lastWrite < PROGRESS_EVERY_MS) return;
+    lastWrite = now;
+    try {
+      if (!store.writeProgress(job.id, owner, attempt, p)) watch.loseLease();
+    } catch (error) {
+      if (!(error instanceof StoreBusyError)) throw error;
+    }
+  };
+  const stopped = (reason: "cancelled" | "deadline", result?: unknown) => {
+    if (reason === "cancelled") {
+      return finish({
+        status: "cancelled",
+        error: { code: "cancelled", message: "cancelled by request" },
+        ...(result ? { result } : {}),
+      });
+    }
+    const seconds = (job.time_limit_ms / 1000).toString();
+    return finish({
+      status: "failed",
+      error: { code: "time_limit", message: `Stopped at its time limit of ${seconds} s` },
+      ...(result ? { result } : {}),
     });
+  };
+  const signal = watch.controller.signal;
+  try {
+    if (job.kind === "calibrate") {
+      if (!measurements) {
+        return await fail("invalid_measurements", "The scenario has no measurements block");
+      }
+      let simulations = 0;
+      const fit = calibrate(input.scenario, measurements, {
+        factors: input.factors ?? [{ kind: "viscosity" }],
+        signal,
+        deadline,
+        onProgress: (p) => {
+          simulations = p.simulations;
+          progress({
+            stage: "calibrate",
+            simulations,
+            iteration: p.iteration,
+            done: null,
+            total: null,
+          });
+        },
+      });
+      if (watch.leaseLost) throw new LeaseLost();
+      if (watch.pollError) throw watch.pollError;
+      if (!fit.ok) {
+        if (fit.code === "stopped") return await stopped(fit.reason);
+        if (fit.code === "invalid_measurements") {
+          return await fail(
+            fit.code,
+            fit.issues.map((i) => `${i.at}: ${i.message}`).join("; "),
+          );
+        }
+        return await fail(fit.code, fit.message);
+      }
+      return await finish({ status: "done", result: calibrationJson(fit) });
+    }
+    const range = windowRange(input.window);
+    const designs: { design: "today" | "after"; scenario: ScenarioWire }[] = [
+      { design: "today", scenario: input.scenario },
+    ];
+    if (input.after_scenario) designs.push({ design: "after", scenario: input.after_scenario });
+    const total = 17 * designs.length;
+    let simulations = 0;
+    const reports = [];
+    for (const d of designs) {
+      const report = processWindow(d.scenario, {
+        meltTemperatureK: range.melt_temperature_K,
+        moldTemperatureK: range.mold_temperature_K,
+        injectionRateShare: range.injection_rate_percent / 100,
+        viscosityShare: range.viscosity_percent / 100,
+      }, {
+        signal,
+        deadline,
+        onProgress: () => {
+          simulations++;
+          progress({ stage: "window", simulations, iteration: null, done: simulations, total });
+        },
+      });
+      reports.push({ design: d.design, name: d.scenario.name, report });
+      if (report.stoppedBecause) break;
+    }
+    if (watch.leaseLost) throw new LeaseLost();
+    if (watch.pollError) throw watch.pollError;
+    const json = windowJobJson(reports, range);
+    if (json.stopped_because) return await stopped(json.stopped_because, json);
+    return await finish({ status: "done", result: json });
   } catch (error) {
-    // An exception from the engine (a bug, or a failure it did not turn into a
-    // value): the job fails with its message; the stack goes to the log.
+    if (error instanceof LeaseLost) throw error;
     const message = error instanceof Error ? error.message : String(error);
-    (options.logError ?? ((e) => console.error(JSON.stringify(e))))({
+    (context.logError ?? ((e) => console.error(JSON.stringify(e))))({
       event: "job_engine_error",
       job: job.id,
       attempt,
       error: error instanceof Error ? (error.stack ?? message) : message,
     });
-    if (leaseLost) throw new LeaseLost();
-    return fail("optimization_failed", `The optimization stopped on an engine error: ${message}`);
+    if (watch.leaseLost) throw new LeaseLost();
+    const what = job.kind === "calibrate" ? "calibration" : "process-window sweep";
+    return await fail(
+      job.kind === "calibrate" ? "calibration_failed" : "window_failed",
+      `The ${what} stopped on an engine error: ${message}`,
+    );
   } finally {
-    clearInterval(poller);
+    watch.stop();
   }
-  if (leaseLost) throw new LeaseLost();
-  if (pollError) throw pollError;
-  if (!result.ok) return fail(result.code, result.message);
-  const json = optimizationJson(result.outcome, { history: true });
-  if (result.outcome.status === "cancelled") {
-    if (!controller.signal.aborted) {
-      // Stopped by the deadline: the time limit, with the best design so far.
-      const seconds = (job.time_limit_ms / 1000).toString();
-      const message = `Stopped at its time limit of ${seconds} s; the best design so far is kept`;
-      return finish({ status: "failed", error: { code: "time_limit", message }, result: json });
-    }
-    const error: JobError = {
-      code: "cancelled",
-      message: "cancelled by request; the best design so far is kept",
-    };
-    return finish({ status: "cancelled", result: json, error });
-  }
-  return finish({ status: "done", result: json });
 }
 
 function flag(args: readonly string[], name: string): string | undefined {

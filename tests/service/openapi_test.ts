@@ -117,6 +117,8 @@ Deno.test("OpenAPI: result, optimization, job, progress, event and issue bodies 
       const name of [
         "Result",
         "Optimization",
+        "Calibration",
+        "Window",
         "Job",
         "JobList",
         "JobProgress",
@@ -136,8 +138,14 @@ Deno.test("OpenAPI: result, optimization, job, progress, event and issue bodies 
     }
     const job = schemas.Job as { properties: Record<string, Json> };
     assert.deepEqual(job.properties.result, {
-      anyOf: [{ $ref: "#/components/schemas/Optimization" }, { type: "null" }],
-      description: "evenfill.optimization/1 JSON with the before/after fill history",
+      anyOf: [
+        { $ref: "#/components/schemas/Optimization" },
+        { $ref: "#/components/schemas/Calibration" },
+        { $ref: "#/components/schemas/Window" },
+        { type: "null" },
+      ],
+      description:
+        "by kind: evenfill.optimization/1 with the before/after fill history, evenfill.calibration/1, evenfill.window/1",
     });
     const optimization = schemas.Optimization as { properties: Record<string, Json> };
     assert.deepEqual(optimization.properties.before, { $ref: "#/components/schemas/Result" });
