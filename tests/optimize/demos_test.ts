@@ -28,8 +28,12 @@ const DEMOS = ["family_four_housing", "hot_drop_eight_caps", "two_gate_frame_and
  * design leaves the clip's gate G4 about 0.6 % over the resin's shear limit (opening G4 one
  * step pushes G3, already at its 60 %-of-wall rule size, over instead).
  */
-const KNOWN_MISSES: Record<string, { shearShare: number }> = {
-  family_four_housing: { shearShare: 0.01 },
+const KNOWN_MISSES: Record<string, { shearShare: number; imbalancePercent?: number }> = {
+  // Since the sprue-exit rule (issue 13.3): R1 and R2 stay 0.5 mm under the 7 mm sprue exit, so
+  // 6 mm in metric cutters; the continuous optimum (R1 at 6.5 mm) meets every limit, but no
+  // cutter design found does (before the rule the cutter line took R1 to 8 mm, past the sprue).
+  // Said in the report; a larger sprue exit or a better cutter line would close it.
+  family_four_housing: { shearShare: 0.07, imbalancePercent: 6.6 },
 };
 
 function load(name: string): Scenario {
@@ -80,9 +84,10 @@ for (const name of DEMOS) {
     const times = fill.cavities.map((c) => c.fillTime);
     const imbalance = (Math.max(...times) - Math.min(...times)) / Math.max(...times) * 100;
     assert.ok(
-      imbalance <= goals.max_imbalance_percent,
+      imbalance <= (KNOWN_MISSES[name]?.imbalancePercent ?? goals.max_imbalance_percent),
       `imbalance ${imbalance.toFixed(3)} % > ${goals.max_imbalance_percent} %`,
     );
+    if (imbalance > goals.max_imbalance_percent) assert.equal(o.after.feasible, false);
     const material = typeof scenario.material === "string"
       ? materialById(scenario.material)!
       : undefined;
@@ -159,6 +164,19 @@ for (const name of DEMOS) {
       assert.ok(
         diameter.get(up)! >= diameter.get(child)! - 1e-9,
         `${up} (${diameter.get(up)} mm) feeds the larger ${child} (${diameter.get(child)} mm)`,
+      );
+    }
+    // Size rules (issue 13.3), by the re-simulation's own warnings: no runner within 0.5 mm of the
+    // sprue exit it leaves, none cooling longer than the ratio allows, unless an existing tool
+    // already did at today's size (a rule never forces a change, but nothing grows past it).
+    for (const w of run.run.warnings) {
+      if (w.code !== "sprue_exit_below_margin" && w.code !== "runner_cooling_over_ratio") continue;
+      const k = final.runners.findIndex((r) => r.id === w.element);
+      if (k < 0) continue; // the sprue itself: not a size the optimizer sets
+      assert.ok(
+        goals.mode !== "new_tool" &&
+          final.runners[k].diameter_mm <= scenario.runners[k].diameter_mm + 1e-9,
+        `${w.element}: ${w.message}`,
       );
     }
     // Steel-safe: nothing below today's size, and the change list says so.
