@@ -10,7 +10,6 @@ import {
   fillWarnings,
   type FreezeTimes,
   freezeTimes,
-  type ThermalData,
   thermalDataOf,
   type ThermalSettings,
 } from "./assess_fill.ts";
