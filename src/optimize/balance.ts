@@ -1,4 +1,5 @@
 import type { Scenario } from "../model/scenario_schema.ts";
+import { mToMm } from "../model/units.ts";
 import { type ChangePlan, planChanges } from "./change_list.ts";
 import {
   type BalanceIteration,
@@ -215,6 +216,10 @@ async function allSizesDesign(
         `does not (${after.violations.map((v) => v.message).join("; ")}): see the cutter line`;
     }
   }
+  const wouldNeed = [...continuous.wouldNeed];
+  if (!after.feasible && continuous.status === "converged") {
+    wouldNeed.push(...roomNotes(space, continuous.optimum));
+  }
   return {
     ok: true,
     status: continuous.status,
@@ -225,8 +230,34 @@ async function allSizesDesign(
     snap,
     iterations: continuous.iterations,
     simulations,
-    wouldNeed: continuous.wouldNeed,
+    wouldNeed,
   };
+}
+
+/**
+ * When the continuous optimum meets every limit but no cutter design does: the sizes the
+ * optimum holds at a size rule's ceiling or floor, where the rule (not the physics) leaves the
+ * cutters no room — a larger sprue exit, a longer hold or a relaxed ratio would give them some.
+ */
+function roomNotes(space: DesignSpace, optimum: DesignEvaluation): string[] {
+  const at = (a: number, b: number) => Math.abs(a - b) <= 1e-6 * b;
+  return space.variables.flatMap((v, j) => {
+    const x = optimum.x[j];
+    const rule = (kind: string) => kind === "rule" || kind === "strict_rule";
+    if (rule(v.upperKind) && at(x, v.upper)) {
+      return [
+        `${v.element} sits at its ${v.upperReason} (${mToMm(v.upper).toFixed(2)} mm): ` +
+        "room above it would let the cutter sizes balance",
+      ];
+    }
+    if (rule(v.lowerKind) && at(x, v.lower)) {
+      return [
+        `${v.element} sits at its ${v.lowerReason} (${mToMm(v.lower).toFixed(2)} mm): ` +
+        "room below it would let the cutter sizes balance",
+      ];
+    }
+    return [];
+  });
 }
 
 /** The fewest-change plan of an existing tool, when one meets every limit (else only its front). */
