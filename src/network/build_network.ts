@@ -1,5 +1,5 @@
 import type { Cavity, Gate, Runner, Scenario } from "../model/scenario_schema.ts";
-import { pathText, type ScenarioIssue } from "../model/parse_scenario.ts";
+import { pathText, type ScenarioIssue } from "../wire/issue.ts";
 import { cm2ToM2, cm3ToM3, degToRad, mmToM } from "../model/units.ts";
 import { partingPlaneWidth, type Section, validateSection } from "../physics/mod.ts";
 import { geometryVolume } from "./_fill_geometry.ts";

@@ -1,7 +1,8 @@
 import { materialById, materialIds } from "../materials/library.ts";
 import { type Material, toMaterial } from "../materials/material.ts";
 import { flowCurveAt } from "../materials/viscosity.ts";
-import { parseScenario, type ScenarioIssue } from "../model/parse_scenario.ts";
+import { parseScenario } from "../model/parse_scenario.ts";
+import type { ScenarioIssue } from "../wire/issue.ts";
 import type { Scenario } from "../model/scenario_schema.ts";
 import { cm3PerSToM3PerS, cToK } from "../model/units.ts";
 import {

@@ -1,5 +1,6 @@
 import type { Scenario } from "../model/scenario_schema.ts";
 import { mToMm } from "../model/units.ts";
+import type { SlopeSource } from "../wire/enums.ts";
 import { type ChangePlan, planChanges } from "./change_list.ts";
 import {
   type BalanceIteration,
@@ -59,7 +60,7 @@ export interface OptimizeBalanceOptions extends StopOptions {
    * Where the slopes come from: `"tangent"` (default), carried by each simulation
    * (`network/fill_tangent.ts`); or `"finite_difference"`, one extra simulation per size.
    */
-  slopes?: "tangent" | "finite_difference";
+  slopes?: SlopeSource;
 }
 
 /** The steps of an optimization, in order. */
@@ -80,7 +81,7 @@ export interface BalanceOutcome {
   /** Every simulation of the run, the change plan's included. */
   simulations: number;
   /** Where the slopes came from. */
-  slopes: "tangent" | "finite_difference";
+  slopes: SlopeSource;
   /** When infeasible: changes outside today's bounds that the linear model says would help. */
   wouldNeed: string[];
   /** The change plan from today's design to `after`, when there was time for it. */
@@ -153,7 +154,7 @@ export async function optimizeBalance(
       snap,
       iterations: design.iterations,
       simulations,
-      slopes: (options.slopes ?? "tangent") === "tangent" ? "tangent" : "finite_difference",
+      slopes: options.slopes ?? "tangent",
       wouldNeed: design.wouldNeed,
       changes,
       changesOmitted,

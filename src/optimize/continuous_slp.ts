@@ -1,4 +1,5 @@
 import { mmToM, mToMm } from "../model/units.ts";
+import type { SlopeSource } from "../wire/enums.ts";
 import type { DesignSpace } from "./design_space.ts";
 import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
 import type { LpSolver } from "./lp_solver.ts";
@@ -94,7 +95,7 @@ export interface ContinuousOptions extends StopOptions {
   /** Starting sizes by element id, m (default: today's sizes, clamped into the bounds). */
   start?: ReadonlyMap<string, number>;
   /** Where the slopes come from (default `"tangent"`). */
-  slopes?: "tangent" | "finite_difference";
+  slopes?: SlopeSource;
   /**
    * Share of each limit the LP aims at: room below the limits for the cutter snapping
    * ({@link LP_LIMIT_SHARE}), or {@link CONTINUOUS_LIMIT_SHARE} when the scenario asks for

@@ -1,4 +1,5 @@
 import { mToMm } from "../model/units.ts";
+import type { SlopeSource } from "../wire/enums.ts";
 import type { ContinuousOutcome, ContinuousSolver } from "./continuous_slp.ts";
 import { cutterCatalogue } from "./cutters.ts";
 import { applyDesign, type DesignSpace, designSpace } from "./design_space.ts";
@@ -52,7 +53,7 @@ export interface CutterStrategyOptions extends StopOptions {
   /** The continuous solver, run on sub-spaces (gates alone; the sizes relax-and-fix leaves free). */
   continuous: ContinuousSolver;
   /** Slopes and starting sizes of the gates' re-balance (as the whole run's). */
-  slopes?: "tangent" | "finite_difference";
+  slopes?: SlopeSource;
   start?: ReadonlyMap<string, number>;
 }
 

@@ -1,4 +1,5 @@
 import type { ChangeCosts, Scenario } from "../model/scenario_schema.ts";
+import type { SlopeSource } from "../wire/enums.ts";
 import type { ContinuousOutcome, ContinuousSolver } from "./continuous_slp.ts";
 import { type DesignSpace, designSpace } from "./design_space.ts";
 import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
@@ -49,7 +50,7 @@ export interface FrontPoint {
 export interface FewestChangesOptions extends StopOptions {
   solver: LpSolver;
   continuous: ContinuousSolver;
-  slopes?: "tangent" | "finite_difference";
+  slopes?: SlopeSource;
 }
 
 /** The front and where it stopped. */

@@ -14,6 +14,7 @@
  * @module
  */
 import { parseScenario } from "../model/parse_scenario.ts";
+import { ModeSchema, SlopeSourceSchema } from "../wire/enums.ts";
 import { LIBRARY_MATERIAL_IDS } from "../network/simulate_scenario.ts";
 import { optimizeBalance } from "../optimize/balance.ts";
 import { calibrate } from "../calibrate/calibrate.ts";
@@ -141,8 +142,9 @@ export async function runJobAttempt(
     return fail("invalid_scenario", parsed.issues.map((i) => `${i.at}: ${i.message}`).join("; "));
   }
   const scenario = parsed.scenario;
-  if (input.mode === "new_tool" || input.mode === "trim" || input.mode === "steel_safe") {
-    scenario.goals.mode = input.mode;
+  const mode = ModeSchema.safeParse(input.mode);
+  if (mode.success) {
+    scenario.goals.mode = mode.data;
   }
   const watch = watchStop(store, job, orphaned);
   const { controller, poll } = watch;
@@ -159,7 +161,7 @@ export async function runJobAttempt(
   let result;
   try {
     result = await (options.optimize ?? optimizeBalance)(scenario, {
-      slopes: input.slopes === "finite_difference" ? "finite_difference" : "tangent",
+      slopes: SlopeSourceSchema.safeParse(input.slopes).data ?? "tangent",
       signal: controller.signal,
       deadline,
       onProgress: (i) => {
