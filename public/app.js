@@ -107,6 +107,18 @@
         slopes: options.slopes
       } : {}
     }),
+    startCalibration: (scenario, factors) => call("POST", "/api/jobs", {
+      kind: "calibrate",
+      scenario,
+      factors
+    }),
+    startWindow: (scenario, after) => call("POST", "/api/jobs", {
+      kind: "window",
+      scenario,
+      ...after !== void 0 ? {
+        after_scenario: after
+      } : {}
+    }),
     job: (id) => call("GET", `/api/jobs/${encodeURIComponent(id)}`),
     cancelJob: (id) => call("POST", `/api/jobs/${encodeURIComponent(id)}/cancel`)
   };
@@ -1985,6 +1997,375 @@
     })}</section><section class="sheet-effect"><h3>Predicted effect</h3><table class="data compact"><thead><tr><th></th><th scope="col">before</th><th scope="col">after all steps</th></tr></thead><tbody>` + row("fill-time imbalance", `${num(b.imbalance_percent)} %`, `${num(a.imbalance_percent)} %`) + row(`peak injection pressure${at}`, formatPressure(b.feed_pressure_peak_MPa, u), formatPressure(a.feed_pressure_peak_MPa, u)) + row(`peak clamp force${at}`, formatForce(b.clamp_force_peak_kN, u), formatForce(a.clamp_force_peak_kN, u)) + row("cold runner", formatMass(b.runner_mass_g, u), formatMass(a.runner_mass_g, u)) + `</tbody></table></section></div></div></article>`;
   }
 
+  // src/page/calibration_view.ts
+  function massUnit(units) {
+    return units.length === "in" ? "oz" : "g";
+  }
+  var toGrams = (value, units) => massUnit(units) === "oz" ? value * G_PER_OUNCE : value;
+  var fromGrams = (g, units) => massUnit(units) === "oz" ? g / G_PER_OUNCE : g;
+  function shotRowsFrom(scenario, units) {
+    const shots = (scenario.measurements?.short_shots ?? []).filter((s) => s.shot_percent !== void 0);
+    if (shots.length === 0) return [
+      {
+        shotPercent: "",
+        masses: {}
+      }
+    ];
+    return shots.map((s) => ({
+      shotPercent: String(s.shot_percent),
+      masses: Object.fromEntries(s.parts.filter((p) => p.mass_g !== void 0).map((p) => [
+        p.cavity,
+        String(Number(fromGrams(p.mass_g, units).toPrecision(6)))
+      ]))
+    }));
+  }
+  function positive(text) {
+    if (text === void 0 || text.trim() === "") return void 0;
+    const v = Number(text.replace(/,/g, ""));
+    return Number.isFinite(v) && v > 0 ? v : void 0;
+  }
+  function shotRowProblems(rows, scenario) {
+    const problems = [];
+    let weighed = 0;
+    rows.forEach((row, k) => {
+      const masses = scenario.cavities.filter((c) => row.masses[c.id]?.trim());
+      const shot = positive(row.shotPercent);
+      if (masses.length === 0 && row.shotPercent.trim() === "") return;
+      if (shot === void 0 || shot > 100) {
+        problems.push(`Shot ${k + 1}: give the shot size as a share of the full shot, 0\u2013100 %.`);
+      }
+      for (const c of masses) {
+        if (positive(row.masses[c.id]) === void 0) {
+          problems.push(`Shot ${k + 1}, ${c.id}: the mass must be a number above 0.`);
+        }
+      }
+      weighed += masses.length;
+    });
+    if (weighed === 0) problems.push("Weigh at least one part of one short shot.");
+    return problems;
+  }
+  function measurementsFromRows(rows, scenario, units) {
+    const typed = rows.flatMap((row) => {
+      const shot = positive(row.shotPercent);
+      const parts = scenario.cavities.flatMap((c) => {
+        const m = positive(row.masses[c.id]);
+        return m === void 0 ? [] : [
+          {
+            cavity: c.id,
+            mass_g: Number(toGrams(m, units).toPrecision(8))
+          }
+        ];
+      });
+      return shot === void 0 || parts.length === 0 ? [] : [
+        {
+          shot_percent: shot,
+          parts
+        }
+      ];
+    });
+    const kept = (scenario.measurements?.short_shots ?? []).filter((s) => s.shot_percent === void 0 || s.parts.some((p) => p.mass_g === void 0));
+    const pressure = scenario.measurements?.full_shot_pressure_MPa;
+    return {
+      short_shots: [
+        ...kept,
+        ...typed
+      ],
+      ...pressure !== void 0 ? {
+        full_shot_pressure_MPa: pressure
+      } : {}
+    };
+  }
+  function withMeasurements(scenario, rows, units) {
+    return {
+      ...structuredClone(scenario),
+      measurements: measurementsFromRows(rows, scenario, units)
+    };
+  }
+  function factorChoices(scenario) {
+    const cavityName = (id) => {
+      const c = scenario.cavities.find((x) => x.id === id);
+      return c ? ` (into ${c.id}${c.name ? ` ${c.name}` : ""})` : "";
+    };
+    return [
+      {
+        key: "viscosity",
+        label: "Resin lot: how thick this lot runs",
+        factor: {
+          kind: "viscosity"
+        }
+      },
+      ...scenario.gates.map((g) => ({
+        key: `gate:${g.id}`,
+        label: `Gate ${g.id}${cavityName(g.cavity)}: effective opening`,
+        factor: {
+          kind: "gate_size",
+          gate: g.id
+        }
+      })),
+      ...(scenario.runners ?? []).map((r) => ({
+        key: `runner:${r.id}`,
+        label: `Branch ${r.id}: how freely it flows`,
+        factor: {
+          kind: "runner_size",
+          runner: r.id
+        }
+      })),
+      {
+        key: "melt",
+        label: "Melt temperature: actual against set",
+        factor: {
+          kind: "melt_temperature"
+        }
+      }
+    ];
+  }
+  function factorWords(f) {
+    switch (f.kind) {
+      case "viscosity":
+        return "Resin lot viscosity";
+      case "gate_size":
+        return `Gate ${f.gate} effective opening`;
+      case "runner_size":
+        return `Branch ${f.runner} effective size`;
+      case "melt_temperature":
+        return "Melt temperature, actual against set";
+    }
+  }
+  function factorValueText(f, value, units) {
+    if (value === null) return "\u2013";
+    if (f.kind === "melt_temperature") {
+      return `${value >= 0 ? "+" : "\u2212"}${formatTemperatureRise(Math.abs(value), units)}`;
+    }
+    return `\xD7 ${formatNumber(value, 3)}`;
+  }
+  var FIT_CAUTION = "A fit is only as good as the shots behind it: weigh several short shots of each size, all at the same settings (melt, mold, rate, switchover), after the process has settled, and trim runners off before weighing. One odd shot moves every factor.";
+  function factorTableHtml(result, units) {
+    const rows = result.factors.map((f) => {
+      const value = factorValueText(f.factor, f.value, units);
+      const se = f.standard_error === null ? "\u2013" : f.factor.kind === "melt_temperature" ? `\xB1 ${formatTemperatureRise(f.standard_error, units)}` : `\xB1 ${formatNumber(f.standard_error, 2)}`;
+      const verdict = !f.identified ? `<strong>Not identified</strong>: these shots cannot tell it apart, so it stays near today's model. Do not read a change into it.` : f.at_bound ? `At the edge of what the fit allows: check the shots and the scenario before trusting it.` : `Pinned down by the shots.`;
+      return `<tr data-factor="${escapeXml(f.name)}" data-identified="${f.identified}"><th scope="row">${escapeXml(factorWords(f.factor))}</th><td class="num">${escapeXml(value)}</td><td class="num">${escapeXml(se)}</td><td>${verdict}</td></tr>`;
+    }).join("");
+    return `<div class="table-scroll" tabindex="0"><table class="data" id="fit-factors"><caption>Fitted factors (today's model is \xD7 1, or +0)</caption><thead><tr><th scope="col">factor</th><th scope="col">fitted</th><th scope="col">uncertainty (1 standard error)</th><th scope="col">what it means</th></tr></thead><tbody>${rows}</tbody></table></div>`;
+  }
+  function fitBarsSvg(result, options = {}) {
+    const groups = result.residuals;
+    const width = options.width ?? 460;
+    const barH = 7, gap = 3, groupGap = 10;
+    const margin = {
+      left: 92,
+      right: 16,
+      top: 30,
+      bottom: 40
+    };
+    const groupH = 3 * barH + 2 * gap;
+    const height = margin.top + margin.bottom + groups.length * (groupH + groupGap);
+    const xd = niceDomain(0, 100, 5);
+    const xs = linearScale(xd.domain, [
+      margin.left,
+      width - margin.right
+    ]);
+    const series = [
+      {
+        key: "measured",
+        label: "weighed",
+        style: seriesStyle(6),
+        fill: "solid"
+      },
+      {
+        key: "before",
+        label: "model before",
+        style: seriesStyle(1),
+        fill: "hatch"
+      },
+      {
+        key: "after",
+        label: "model after the fit",
+        style: seriesStyle(0),
+        fill: "outline"
+      }
+    ];
+    const id = options.id ?? "fit-bars";
+    const out = [];
+    out.push(`<svg xmlns="http://www.w3.org/2000/svg" class="chart" id="${escapeXml(id)}" viewBox="0 0 ${width} ${height}" width="${width}" height="${height}" role="img" aria-label="Weighed fill against the model, before and after the fit">`, `<defs><pattern id="${escapeXml(id)}-hatch" width="4" height="4" patternUnits="userSpaceOnUse" patternTransform="rotate(45)"><rect width="4" height="4" fill="#ffffff"/><line x1="0" y1="0" x2="0" y2="4" stroke="${series[1].style.colour}" stroke-width="2.4"/></pattern></defs>`, `<text class="chart-title" x="${margin.left}" y="16">Part fill: weighed against the model</text>`);
+    for (const t of xd.ticks) {
+      const x = xs(t).toFixed(1);
+      out.push(`<line class="grid" x1="${x}" x2="${x}" y1="${margin.top - 4}" y2="${height - margin.bottom}"/>`, `<text class="tick" x="${x}" y="${height - margin.bottom + 14}" text-anchor="middle">${tickLabel(t, xd.step)}</text>`);
+    }
+    out.push(`<text class="axis-label" x="${(margin.left + width - margin.right) / 2}" y="${height - 8}" text-anchor="middle">fill of the part, %</text>`);
+    const many = new Set(groups.map((g) => g.shot)).size > 1;
+    groups.forEach((g, k) => {
+      const y0 = margin.top + k * (groupH + groupGap);
+      const label = many ? `${g.cavity} \xB7 shot ${g.shot + 1}` : g.cavity;
+      out.push(`<g class="fit-group" data-cavity="${escapeXml(g.cavity)}" data-shot="${g.shot}">`, `<text class="tick" x="${margin.left - 6}" y="${y0 + groupH / 2}" text-anchor="end" dy="0.32em">${escapeXml(label)}</text>`);
+      series.forEach((s, j) => {
+        const value = g[`${s.key}_fill_percent`];
+        const v = Math.max(0, Math.min(100, value ?? 0));
+        const y = y0 + j * (barH + gap);
+        const w = Math.max(0.5, xs(v) - xs(0));
+        const fill = s.fill === "solid" ? s.style.colour : s.fill === "hatch" ? `url(#${escapeXml(id)}-hatch)` : "#ffffff";
+        out.push(`<rect class="bar" data-series="${s.key}" data-value="${value === null ? "" : value.toFixed(3)}" x="${xs(0).toFixed(1)}" y="${y}" width="${w.toFixed(1)}" height="${barH}" fill="${fill}" stroke="${s.style.colour}" stroke-width="1.2"><title>${escapeXml(`${label}, ${s.label}: ${formatNumber(value, 3)} %`)}</title></rect>`);
+      });
+      out.push(`</g>`);
+    });
+    out.push(`</svg>`);
+    return out.join("");
+  }
+  function fitBarsKeyHtml() {
+    return `<ul class="series-key fit-key"><li><span class="swatch solid" aria-hidden="true"></span>weighed</li><li><span class="swatch hatch" aria-hidden="true"></span>model before the fit</li><li><span class="swatch outline" aria-hidden="true"></span>model after the fit</li></ul>`;
+  }
+  function fitSummaryText(result) {
+    const rms = (key) => {
+      const d = result.residuals.map((r) => (r[key] ?? NaN) - (r.measured_fill_percent ?? NaN));
+      return Math.sqrt(d.reduce((s, x) => s + x * x, 0) / Math.max(1, d.length));
+    };
+    const how = result.stopped_because === "converged" ? "The fit settled" : result.stopped_because === "iteration_limit" ? "The fit used all its rounds without settling" : "The fit could not improve further";
+    return `${how} after ${result.iterations} rounds and ${formatNumber(result.simulations, 3)} simulations. Typical gap between weighed and predicted fill: ${formatNumber(rms("before_fill_percent"), 2)} % before, ${formatNumber(rms("after_fill_percent"), 2)} % after.`;
+  }
+  function scenarioAfterChanges(scenario, changes) {
+    const out = structuredClone(scenario);
+    for (const c of changes) {
+      const list = c.kind === "gate" ? out.gates : out.runners;
+      const el = list?.find((e) => e.id === c.element);
+      if (!el) continue;
+      const key = c.dimension === "thickness" ? "thickness_mm" : "diameter_mm";
+      const before = Number(el[key]);
+      el[key] = c.to_mm;
+      const ratio = before > 0 ? c.to_mm / before : 1;
+      for (const side of [
+        "width_mm",
+        "depth_mm",
+        "entry_diameter_mm"
+      ]) {
+        if (key === "diameter_mm" && typeof el[side] === "number") {
+          el[side] = el[side] * ratio;
+        }
+      }
+    }
+    return out;
+  }
+  var WINDOW_FACTOR_WORDS = {
+    melt: "melt temperature",
+    mold: "mold temperature",
+    rate: "injection rate",
+    viscosity: "resin lot viscosity"
+  };
+  function rangeChart(title, rows, axisLabel, id, width) {
+    const margin = {
+      left: 92,
+      right: 20,
+      top: 28,
+      bottom: 40
+    };
+    const rowH = 26;
+    const height = margin.top + margin.bottom + rows.length * rowH;
+    const values = rows.flatMap((r) => r.range).filter((v) => v !== null);
+    const hi = values.length > 0 ? Math.max(...values) : 1;
+    const xd = niceDomain(0, hi > 0 ? hi : 1, 4);
+    const xs = linearScale(xd.domain, [
+      margin.left,
+      width - margin.right
+    ]);
+    const out = [
+      `<svg xmlns="http://www.w3.org/2000/svg" class="chart" id="${escapeXml(id)}" viewBox="0 0 ${width} ${height}" width="${width}" height="${height}" role="img" aria-label="${escapeXml(title)}">`,
+      `<text class="chart-title" x="${margin.left}" y="16">${escapeXml(title)}</text>`
+    ];
+    for (const t of xd.ticks) {
+      const x = xs(t).toFixed(1);
+      out.push(`<line class="grid" x1="${x}" x2="${x}" y1="${margin.top - 4}" y2="${height - margin.bottom}"/>`, `<text class="tick" x="${x}" y="${height - margin.bottom + 14}" text-anchor="middle">${tickLabel(t, xd.step)}</text>`);
+    }
+    out.push(`<text class="axis-label" x="${(margin.left + width - margin.right) / 2}" y="${height - 8}" text-anchor="middle">${escapeXml(axisLabel)}</text>`);
+    rows.forEach((r, k) => {
+      const y = margin.top + k * rowH + 6;
+      const [a, b] = r.range;
+      const style = seriesStyle(r.style);
+      out.push(`<text class="tick" x="${margin.left - 6}" y="${y + 7}" text-anchor="end" dy="0.32em">${escapeXml(r.label)}</text>`);
+      if (a === null || b === null) return;
+      const x0 = xs(a), x1 = Math.max(xs(b), x0 + 2);
+      out.push(`<rect class="range" data-design="${escapeXml(r.label)}" data-low="${a}" data-high="${b}" x="${x0.toFixed(1)}" y="${y}" width="${(x1 - x0).toFixed(1)}" height="14" fill="${r.style === 0 ? style.colour : "#ffffff"}" stroke="${style.colour}" stroke-width="1.6"${style.dash ? ` stroke-dasharray="${style.dash}"` : ""}/>`);
+    });
+    out.push(`</svg>`);
+    return out.join("");
+  }
+  var DESIGN_WORDS = {
+    today: "today's tool",
+    after: "after the changes"
+  };
+  function windowViewHtml(result, units) {
+    const rows = result.designs.map((d, k) => ({
+      d,
+      style: k === 0 ? 0 : 1
+    }));
+    const imbalance = rangeChart("Imbalance across the window", rows.map(({ d, style }) => ({
+      label: DESIGN_WORDS[d.design] ?? d.design,
+      range: d.imbalance_range_percent,
+      style
+    })), "fill-time imbalance, %", "window-imbalance", 420);
+    const shear = rangeChart("Peak gate shear across the window", rows.map(({ d, style }) => ({
+      label: DESIGN_WORDS[d.design] ?? d.design,
+      range: d.gate_shear_range_1_s,
+      style
+    })), "highest gate shear rate, 1/s", "window-shear", 420);
+    const effects = effectsSvg(result);
+    const r = result.range;
+    const words = result.designs.map((d) => {
+      const top = d.effects[0];
+      const [lo, hi] = d.imbalance_range_percent;
+      const [slo, shi] = d.gate_shear_range_1_s;
+      const moves = top && top.imbalance_points !== null && Math.abs(top.imbalance_points) > 5e-3 ? ` ${capital(WINDOW_FACTOR_WORDS[top.factor] ?? top.factor)} moves the balance most: from its low to its high setting the imbalance ${top.imbalance_points > 0 ? "grows" : "shrinks"} by ${formatNumber(Math.abs(top.imbalance_points), 2)} points.` : " No setting in the window moves the balance noticeably.";
+      const failed = d.failures.length > 0 ? ` ${d.failures.length} corner${d.failures.length === 1 ? "" : "s"} could not be simulated.` : "";
+      return `<li data-design="${escapeXml(d.design)}"><strong>${escapeXml(capital(DESIGN_WORDS[d.design] ?? d.design))}:</strong> imbalance between ${formatNumber(lo, 2)} % and ${formatNumber(hi, 2)} %, peak gate shear between ${formatNumber(slo, 3)} and ${formatNumber(shi, 3)} 1/s.${moves}${failed}</li>`;
+    }).join("");
+    return `<p class="note">Each design simulated ${formatNumber(17, 2)} times: every combination of melt temperature \xB1 ${escapeXml(formatTemperatureRise(r.melt_temperature_K, units))}, mold temperature \xB1 ${escapeXml(formatTemperatureRise(r.mold_temperature_K, units))}, injection rate \xB1 ${formatNumber(r.injection_rate_percent, 3)} % and resin-lot viscosity \xB1 ${formatNumber(r.viscosity_percent, 3)} %, and the set point.</p><div class="charts">${imbalance}${shear}${effects}</div><ul class="window-words">${words}</ul>`;
+  }
+  var capital = (text) => text.charAt(0).toUpperCase() + text.slice(1);
+  function effectsSvg(result) {
+    const factors = [
+      "melt",
+      "mold",
+      "rate",
+      "viscosity"
+    ];
+    const width = 420;
+    const margin = {
+      left: 130,
+      right: 20,
+      top: 28,
+      bottom: 40
+    };
+    const designs = result.designs;
+    const barH = 9;
+    const groupH = designs.length * (barH + 3) + 8;
+    const height = margin.top + margin.bottom + factors.length * groupH;
+    const all = designs.flatMap((d) => d.effects.map((e) => Math.abs(e.imbalance_points ?? 0)));
+    const xd = niceDomain(0, Math.max(0.01, ...all), 4);
+    const xs = linearScale(xd.domain, [
+      margin.left,
+      width - margin.right
+    ]);
+    const out = [
+      `<svg xmlns="http://www.w3.org/2000/svg" class="chart" id="window-effects" viewBox="0 0 ${width} ${height}" width="${width}" height="${height}" role="img" aria-label="What moves the balance">`,
+      `<text class="chart-title" x="${margin.left}" y="16">What moves the balance (low \u2192 high setting)</text>`
+    ];
+    for (const t of xd.ticks) {
+      const x = xs(t).toFixed(1);
+      out.push(`<line class="grid" x1="${x}" x2="${x}" y1="${margin.top - 4}" y2="${height - margin.bottom}"/>`, `<text class="tick" x="${x}" y="${height - margin.bottom + 14}" text-anchor="middle">${tickLabel(t, xd.step)}</text>`);
+    }
+    out.push(`<text class="axis-label" x="${(margin.left + width - margin.right) / 2}" y="${height - 8}" text-anchor="middle">change of the imbalance, % points</text>`);
+    factors.forEach((f, k) => {
+      const y0 = margin.top + k * groupH;
+      out.push(`<text class="tick" x="${margin.left - 6}" y="${y0 + (groupH - 8) / 2}" text-anchor="end" dy="0.32em">${escapeXml(WINDOW_FACTOR_WORDS[f])}</text>`);
+      designs.forEach((d, j) => {
+        const e = d.effects.find((x) => x.factor === f);
+        const v = Math.abs(e?.imbalance_points ?? 0);
+        const style = seriesStyle(j);
+        out.push(`<rect class="effect" data-factor="${f}" data-design="${d.design}" x="${xs(0).toFixed(1)}" y="${y0 + j * (barH + 3)}" width="${Math.max(0.5, xs(v) - xs(0)).toFixed(1)}" height="${barH}" fill="${j === 0 ? style.colour : "#ffffff"}" stroke="${style.colour}" stroke-width="1.4"${style.dash ? ` stroke-dasharray="${style.dash}"` : ""}><title>${escapeXml(`${DESIGN_WORDS[d.design] ?? d.design}, ${WINDOW_FACTOR_WORDS[f]}: ${formatNumber(e?.imbalance_points, 2)} points`)}</title></rect>`);
+      });
+    });
+    out.push(`</svg>`);
+    return out.join("");
+  }
+
   // src/page/scenario_form.ts
   var obj = (v) => typeof v === "object" && v !== null && !Array.isArray(v) ? v : {};
   var numOrNull = (v) => typeof v === "number" && Number.isFinite(v) ? v : null;
@@ -2178,7 +2559,21 @@
     /** The simulate request in flight (the Cancel button aborts it). */
     simulating: null,
     /** The press's hold time for the gate-freeze check, s (page only; not in the scenario). */
-    holdTime: loadHoldTime()
+    holdTime: loadHoldTime(),
+    trial: {
+      /** The mass table, and the cavity ids it was laid out for. */
+      rows: [],
+      rowsFor: "",
+      /** Ticked factor keys (see factorChoices). */
+      factors: /* @__PURE__ */ new Set([
+        "viscosity"
+      ]),
+      fit: null,
+      window: null,
+      jobId: null,
+      /** Check code of the calibrated scenario put in the editor. */
+      calibratedHash: null
+    }
   };
   function loadHoldTime() {
     const v = Number(localStorage.getItem("evenfill.holdTime") ?? "");
@@ -2196,8 +2591,10 @@
     state.stale = false;
   }
   function checkStale() {
-    const stale = state.ran !== null && scenarioHash(editor().value) !== state.ran.hash;
+    const hash = scenarioHash(editor().value);
+    const stale = state.ran !== null && hash !== state.ran.hash;
     document.body.dataset.stale = String(stale);
+    renderTrialResults(hash);
     if (stale !== state.stale) {
       state.stale = stale;
       renderResults();
@@ -2219,7 +2616,8 @@
     "scenario",
     "run",
     "results",
-    "sheet"
+    "sheet",
+    "trials"
   ];
   function showTab(tab, focus = false) {
     for (const t of TABS) {
@@ -2231,6 +2629,7 @@
       panel.hidden = !on;
     }
     document.body.dataset.view = tab;
+    if (tab === "trials") renderTrials();
     if (focus) $(`tab-${tab}`).focus();
     if (location.hash !== `#${tab}`) history.replaceState(null, "", `#${tab}`);
   }
@@ -2273,6 +2672,7 @@
         renderPreview();
         renderProgress();
         renderResults();
+        if (document.body.dataset.view === "trials") renderTrials();
       });
     }
   }
@@ -2511,7 +2911,8 @@
     return "new";
   }
   function renderSourceState() {
-    $("source-state").textContent = `Editing: ${sourceLabel()}`;
+    const calibrated = state.trial.calibratedHash !== null && scenarioHash(editor().value) === state.trial.calibratedHash;
+    $("source-state").innerHTML = `Editing: ${escapeXml(sourceLabel())}${calibrated ? ` <span class="calibrated-mark" id="calibrated-mark">calibrated to weighed short shots</span>` : ""}`;
     const saved = state.source.kind === "saved";
     $("save").textContent = saved ? "Save revision" : "Save";
     $("revisions-box").hidden = !saved;
@@ -2891,6 +3292,167 @@
     }) : `<p class="empty">The change sheet comes from an optimization: run one on the Run tab.</p>`;
     $("print").textContent = state.stale ? "Print (marked out of date)" : "Print the change sheet";
   }
+  function trialScenario() {
+    const value = currentObject();
+    if (!value || !Array.isArray(value.cavities) || !Array.isArray(value.gates)) return null;
+    return value;
+  }
+  function renderTrials() {
+    $("fit-caution").textContent = FIT_CAUTION;
+    const scenario = trialScenario();
+    if (!scenario) {
+      $("shot-table").innerHTML = `<p class="empty">Fix the scenario's JSON first.</p>`;
+      return;
+    }
+    const key = JSON.stringify([
+      scenario.cavities.map((c) => c.id),
+      state.units.length
+    ]);
+    if (state.trial.rowsFor !== key) {
+      state.trial.rows = shotRowsFrom(scenario, state.units);
+      state.trial.rowsFor = key;
+    }
+    const unit = massUnit(state.units);
+    const rows = state.trial.rows;
+    const head = rows.map((row, k) => `<th scope="col"><label for="shot-${k}-size">shot ${k + 1} size, % of full shot</label><br><input id="shot-${k}-size" data-shot="${k}" data-field="size" type="number" min="0" max="100" step="any" inputmode="decimal" value="${escapeXml(row.shotPercent)}"></th>`).join("");
+    const body = scenario.cavities.map((c) => `<tr><th scope="row">${escapeXml(c.id)}${c.name ? ` <span class="muted">${escapeXml(c.name)}</span>` : ""}</th>${rows.map((row, k) => `<td><input aria-label="${escapeXml(c.id)} mass in shot ${k + 1}, ${unit}" data-shot="${k}" data-cavity="${escapeXml(c.id)}" type="number" min="0" step="any" inputmode="decimal" value="${escapeXml(row.masses[c.id] ?? "")}"></td>`).join("")}</tr>`).join("");
+    $("shot-table").innerHTML = `<table class="data shot-table" id="mass-table"><caption>Weighed part mass, ${unit}</caption><thead><tr><th scope="col">cavity</th>${head}</tr></thead><tbody>${body}</tbody></table>`;
+    const choices = factorChoices(scenario);
+    $("factor-list").innerHTML = choices.map((f) => `<label><input type="checkbox" name="fit-factor" value="${escapeXml(f.key)}"${state.trial.factors.has(f.key) ? " checked" : ""}> ${escapeXml(f.label)}</label>`).join("");
+    renderTrialResults();
+  }
+  function renderTrialResults(hash = scenarioHash(editor().value)) {
+    const fit = state.trial.fit;
+    const u = state.units;
+    $("fit-result").innerHTML = fit ? (hash !== fit.hash ? staleBannerHtml("fit") : "") + `<p>${escapeXml(fitSummaryText(fit.result))}</p>${fitBarsKeyHtml()}<div class="charts">${fitBarsSvg(fit.result)}</div>${factorTableHtml(fit.result, u)}<p class="caution">${FIT_CAUTION}</p><div class="toolbar"><button type="button" id="optimize-calibrated" class="primary">Optimize from the calibrated model</button><span class="muted">puts the calibrated scenario in the editor and starts the optimization</span></div>` : "";
+    const win = state.trial.window;
+    $("window-result").innerHTML = win ? (hash !== win.hash ? staleBannerHtml("sweep") : "") + windowViewHtml(win.result, u) : "";
+  }
+  function setTrialBusy(busy) {
+    $("run-fit").disabled = busy;
+    $("run-window").disabled = busy;
+    $("cancel-trial").disabled = !busy;
+  }
+  function writeShots() {
+    const scenario = editorScenarioOr("Fix the scenario's JSON first (see the editor).");
+    if (scenario === null) return null;
+    const problems = shotRowProblems(state.trial.rows, scenario);
+    if (problems.length > 0) {
+      say(problems.join(" "), "error");
+      return null;
+    }
+    const next = withMeasurements(scenario, state.trial.rows, state.units);
+    setEditorText(JSON.stringify(next, null, 2) + "\n");
+    return next;
+  }
+  async function runTrialJob(start2, stateId, words, onDone) {
+    setTrialBusy(true);
+    $(stateId).textContent = `${words}: queued\u2026`;
+    try {
+      const started = await start2();
+      state.trial.jobId = started.id;
+      const job = await watchJob(started.id, {
+        onState: (status) => $(stateId).textContent = `${words}: ${status}\u2026`,
+        onProgress: (p) => {
+          const q = p;
+          $(stateId).textContent = q.stage === "window" ? `${words}: ${q.done ?? 0} of ${q.total ?? "?"} simulations\u2026` : `${words}: round ${(q.iteration ?? 0) + 1}, ${q.simulations} simulations\u2026`;
+        },
+        onStreamLost: () => health.suspect()
+      });
+      if (job.status === "done" && job.result) {
+        onDone(job.result);
+        $(stateId).textContent = `${words}: done.`;
+        say(`${words}: done.`, "ok");
+      } else {
+        const message = job.error?.message ?? job.status;
+        $(stateId).textContent = `${words} ${job.status}: ${message}`;
+        say(`${words} ${job.status}: ${message}`, job.status === "cancelled" ? "info" : "error");
+      }
+    } catch (error) {
+      $(stateId).textContent = `${words} could not run.`;
+      report(error);
+    } finally {
+      state.trial.jobId = null;
+      setTrialBusy(false);
+    }
+  }
+  async function runFit() {
+    const scenario = writeShots();
+    if (scenario === null) return;
+    const choices = factorChoices(scenario);
+    const factors = choices.filter((c) => state.trial.factors.has(c.key)).map((c) => c.factor);
+    if (factors.length === 0) {
+      say("Tick at least one thing that may differ from the model.", "error");
+      return;
+    }
+    const hash = scenarioHash(editor().value);
+    await runTrialJob(() => api.startCalibration(scenario, factors), "fit-state", "Fit", (result) => {
+      state.trial.fit = {
+        result,
+        hash
+      };
+      renderTrialResults();
+    });
+  }
+  async function runWindow() {
+    const scenario = editorScenarioOr("Fix the scenario's JSON first (see the editor).");
+    if (scenario === null) return;
+    const hash = scenarioHash(editor().value);
+    const opt = state.shown?.kind === "optimization" && !state.stale ? state.shown.result : null;
+    const after = opt && opt.changes.length > 0 && state.ranScenario ? scenarioAfterChanges(state.ranScenario, opt.changes) : void 0;
+    await runTrialJob(() => api.startWindow(scenario, after), "window-state", "Process-window sweep", (result) => {
+      state.trial.window = {
+        result,
+        hash
+      };
+      renderTrialResults();
+    });
+  }
+  function setupTrials() {
+    const table = $("shot-table");
+    table.addEventListener("input", (e) => {
+      const input = e.target;
+      const k = Number(input.dataset.shot);
+      const row = state.trial.rows[k];
+      if (!row) return;
+      if (input.dataset.field === "size") row.shotPercent = input.value;
+      else if (input.dataset.cavity) row.masses[input.dataset.cavity] = input.value;
+    });
+    $("add-shot").addEventListener("click", () => {
+      state.trial.rows.push({
+        shotPercent: "",
+        masses: {}
+      });
+      renderTrials();
+    });
+    $("write-shots").addEventListener("click", () => {
+      if (writeShots()) say("The masses are in the scenario's measurements block.", "ok");
+    });
+    $("factor-list").addEventListener("change", (e) => {
+      const box = e.target;
+      if (box.checked) state.trial.factors.add(box.value);
+      else state.trial.factors.delete(box.value);
+    });
+    $("run-fit").addEventListener("click", runFit);
+    $("run-window").addEventListener("click", runWindow);
+    $("cancel-trial").addEventListener("click", async () => {
+      if (!state.trial.jobId) return;
+      try {
+        await api.cancelJob(state.trial.jobId);
+      } catch (error) {
+        report(error);
+      }
+    });
+    $("fit-result").addEventListener("click", (e) => {
+      if (e.target.id !== "optimize-calibrated" || !state.trial.fit) return;
+      const text = JSON.stringify(state.trial.fit.result.calibrated, null, 2) + "\n";
+      state.trial.calibratedHash = scenarioHash(text);
+      setEditorText(text);
+      renderSourceState();
+      showTab("run");
+      void optimize();
+    });
+  }
   var health = new HealthMonitor({
     check: async () => {
       try {
@@ -2943,6 +3505,7 @@
     setupForm();
     setupSources();
     setupRun();
+    setupTrials();
     setBusy(false);
     renderResults();
     renderProgress();

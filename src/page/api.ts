@@ -1,5 +1,6 @@
 import type {
   ApiErrorBody,
+  CalibrationFactorEntry,
   DemoEntry,
   Issue,
   Job,
@@ -175,6 +176,18 @@ export const api = {
       scenario,
       ...(options.mode ? { mode: options.mode } : {}),
       ...(options.slopes ? { slopes: options.slopes } : {}),
+    }),
+  startCalibration: (scenario: unknown, factors: CalibrationFactorEntry[]) =>
+    call<{ id: string; status: string }>("POST", "/api/jobs", {
+      kind: "calibrate",
+      scenario,
+      factors,
+    }),
+  startWindow: (scenario: unknown, after?: unknown) =>
+    call<{ id: string; status: string }>("POST", "/api/jobs", {
+      kind: "window",
+      scenario,
+      ...(after !== undefined ? { after_scenario: after } : {}),
     }),
   job: (id: string) => call<Job>("GET", `/api/jobs/${encodeURIComponent(id)}`),
   cancelJob: (id: string) => call<unknown>("POST", `/api/jobs/${encodeURIComponent(id)}/cancel`),

@@ -37,10 +37,34 @@ import {
   verdictHtml,
   warningsHtml,
 } from "./results_view.ts";
+import {
+  factorChoices,
+  factorTableHtml,
+  FIT_CAUTION,
+  fitBarsKeyHtml,
+  fitBarsSvg,
+  fitSummaryText,
+  massUnit,
+  scenarioAfterChanges,
+  type ShotRow,
+  shotRowProblems,
+  shotRowsFrom,
+  type TrialScenario,
+  windowViewHtml,
+  withMeasurements,
+} from "./calibration_view.ts";
 import { applyFormField, type FormValues, readForm } from "./scenario_form.ts";
 import { scenarioHash } from "./scenario_hash.ts";
 import { HealthMonitor, type ServiceState } from "./service_health.ts";
-import type { DemoEntry, JobProgress, MaterialEntry, SavedEntry } from "./wire.ts";
+import type {
+  CalibrationResult,
+  DemoEntry,
+  JobProgress,
+  MaterialEntry,
+  SavedEntry,
+  StageProgress,
+  WindowJobResult,
+} from "./wire.ts";
 
 const $ = <T extends HTMLElement = HTMLElement>(id: string): T => {
   const el = document.getElementById(id);
@@ -75,6 +99,18 @@ const state = {
   simulating: null as AbortController | null,
   /** The press's hold time for the gate-freeze check, s (page only; not in the scenario). */
   holdTime: loadHoldTime(),
+  trial: {
+    /** The mass table, and the cavity ids it was laid out for. */
+    rows: [] as ShotRow[],
+    rowsFor: "",
+    /** Ticked factor keys (see factorChoices). */
+    factors: new Set<string>(["viscosity"]),
+    fit: null as { result: CalibrationResult; hash: string } | null,
+    window: null as { result: WindowJobResult; hash: string } | null,
+    jobId: null as string | null,
+    /** Check code of the calibrated scenario put in the editor. */
+    calibratedHash: null as string | null,
+  },
 };
 
 /** What a result came from, fixed when it was run (not when it is shown). */
@@ -107,8 +143,10 @@ function rememberRun(scenario: unknown, text: string) {
 
 /** Compare the editor with the shown result's scenario; re-render when that changes. */
 function checkStale() {
-  const stale = state.ran !== null && scenarioHash(editor().value) !== state.ran.hash;
+  const hash = scenarioHash(editor().value);
+  const stale = state.ran !== null && hash !== state.ran.hash;
   document.body.dataset.stale = String(stale);
+  renderTrialResults(hash);
   if (stale !== state.stale) {
     state.stale = stale;
     renderResults();
@@ -131,7 +169,7 @@ function say(message: string, kind: "info" | "error" | "ok" = "info") {
 }
 
 // ---------- tabs ----------
-const TABS = ["scenario", "run", "results", "sheet"] as const;
+const TABS = ["scenario", "run", "results", "sheet", "trials"] as const;
 type Tab = typeof TABS[number];
 
 function showTab(tab: Tab, focus = false) {
@@ -144,6 +182,7 @@ function showTab(tab: Tab, focus = false) {
     panel.hidden = !on;
   }
   document.body.dataset.view = tab;
+  if (tab === "trials") renderTrials();
   if (focus) $(`tab-${tab}`).focus();
   if (location.hash !== `#${tab}`) history.replaceState(null, "", `#${tab}`);
 }
@@ -181,6 +220,7 @@ function setupUnits() {
       renderPreview();
       renderProgress();
       renderResults();
+      if (document.body.dataset.view === "trials") renderTrials();
     });
   }
 }
@@ -486,7 +526,13 @@ function sourceLabel(): string {
 }
 
 function renderSourceState() {
-  $("source-state").textContent = `Editing: ${sourceLabel()}`;
+  const calibrated = state.trial.calibratedHash !== null &&
+    scenarioHash(editor().value) === state.trial.calibratedHash;
+  $("source-state").innerHTML = `Editing: ${esc(sourceLabel())}${
+    calibrated
+      ? ` <span class="calibrated-mark" id="calibrated-mark">calibrated to weighed short shots</span>`
+      : ""
+  }`;
   const saved = state.source.kind === "saved";
   $("save").textContent = saved ? "Save revision" : "Save";
   $("revisions-box").hidden = !saved;
@@ -885,6 +931,222 @@ function renderResults() {
     : "Print the change sheet";
 }
 
+// ---------- trial shots ----------
+function trialScenario(): TrialScenario | null {
+  const value = currentObject() as TrialScenario | null;
+  if (!value || !Array.isArray(value.cavities) || !Array.isArray(value.gates)) return null;
+  return value;
+}
+
+/** Lay the mass table and the factor list out for the editor's scenario (kept while its cavities stay). */
+function renderTrials() {
+  $("fit-caution").textContent = FIT_CAUTION;
+  const scenario = trialScenario();
+  if (!scenario) {
+    $("shot-table").innerHTML = `<p class="empty">Fix the scenario's JSON first.</p>`;
+    return;
+  }
+  const key = JSON.stringify([scenario.cavities.map((c) => c.id), state.units.length]);
+  if (state.trial.rowsFor !== key) {
+    state.trial.rows = shotRowsFrom(scenario, state.units);
+    state.trial.rowsFor = key;
+  }
+  const unit = massUnit(state.units);
+  const rows = state.trial.rows;
+  const head = rows.map((row, k) =>
+    `<th scope="col"><label for="shot-${k}-size">shot ${
+      k + 1
+    } size, % of full shot</label><br><input id="shot-${k}-size" data-shot="${k}" data-field="size" type="number" min="0" max="100" step="any" inputmode="decimal" value="${
+      esc(row.shotPercent)
+    }"></th>`
+  ).join("");
+  const body = scenario.cavities.map((c) =>
+    `<tr><th scope="row">${esc(c.id)}${
+      c.name ? ` <span class="muted">${esc(c.name)}</span>` : ""
+    }</th>${
+      rows.map((row, k) =>
+        `<td><input aria-label="${esc(c.id)} mass in shot ${
+          k + 1
+        }, ${unit}" data-shot="${k}" data-cavity="${
+          esc(c.id)
+        }" type="number" min="0" step="any" inputmode="decimal" value="${
+          esc(row.masses[c.id] ?? "")
+        }"></td>`
+      ).join("")
+    }</tr>`
+  ).join("");
+  $("shot-table").innerHTML =
+    `<table class="data shot-table" id="mass-table"><caption>Weighed part mass, ${unit}</caption><thead><tr><th scope="col">cavity</th>${head}</tr></thead><tbody>${body}</tbody></table>`;
+  const choices = factorChoices(scenario);
+  $("factor-list").innerHTML = choices.map((f) =>
+    `<label><input type="checkbox" name="fit-factor" value="${esc(f.key)}"${
+      state.trial.factors.has(f.key) ? " checked" : ""
+    }> ${esc(f.label)}</label>`
+  ).join("");
+  renderTrialResults();
+}
+
+function renderTrialResults(hash = scenarioHash(editor().value)) {
+  const fit = state.trial.fit;
+  const u = state.units;
+  $("fit-result").innerHTML = fit
+    ? (hash !== fit.hash ? staleBannerHtml("fit") : "") +
+      `<p>${esc(fitSummaryText(fit.result))}</p>${fitBarsKeyHtml()}<div class="charts">${
+        fitBarsSvg(fit.result)
+      }</div>${
+        factorTableHtml(fit.result, u)
+      }<p class="caution">${FIT_CAUTION}</p><div class="toolbar"><button type="button" id="optimize-calibrated" class="primary">Optimize from the calibrated model</button><span class="muted">puts the calibrated scenario in the editor and starts the optimization</span></div>`
+    : "";
+  const win = state.trial.window;
+  $("window-result").innerHTML = win
+    ? (hash !== win.hash ? staleBannerHtml("sweep") : "") + windowViewHtml(win.result, u)
+    : "";
+}
+
+function setTrialBusy(busy: boolean) {
+  $<HTMLButtonElement>("run-fit").disabled = busy;
+  $<HTMLButtonElement>("run-window").disabled = busy;
+  $<HTMLButtonElement>("cancel-trial").disabled = !busy;
+}
+
+/** Write the mass table into the editor's scenario; the scenario, or null after saying why not. */
+function writeShots(): Record<string, unknown> | null {
+  const scenario = editorScenarioOr("Fix the scenario's JSON first (see the editor).") as
+    | (TrialScenario & Record<string, unknown>)
+    | null;
+  if (scenario === null) return null;
+  const problems = shotRowProblems(state.trial.rows, scenario);
+  if (problems.length > 0) {
+    say(problems.join(" "), "error");
+    return null;
+  }
+  const next = withMeasurements(scenario, state.trial.rows, state.units);
+  setEditorText(JSON.stringify(next, null, 2) + "\n");
+  return next;
+}
+
+async function runTrialJob<T>(
+  start: () => Promise<{ id: string }>,
+  stateId: string,
+  words: string,
+  onDone: (result: T) => void,
+) {
+  setTrialBusy(true);
+  $(stateId).textContent = `${words}: queued…`;
+  try {
+    const started = await start();
+    state.trial.jobId = started.id;
+    const job = await watchJob(started.id, {
+      onState: (status) => ($(stateId).textContent = `${words}: ${status}…`),
+      onProgress: (p) => {
+        const q = p as unknown as StageProgress;
+        $(stateId).textContent = q.stage === "window"
+          ? `${words}: ${q.done ?? 0} of ${q.total ?? "?"} simulations…`
+          : `${words}: round ${(q.iteration ?? 0) + 1}, ${q.simulations} simulations…`;
+      },
+      onStreamLost: () => health.suspect(),
+    });
+    if (job.status === "done" && job.result) {
+      onDone(job.result as unknown as T);
+      $(stateId).textContent = `${words}: done.`;
+      say(`${words}: done.`, "ok");
+    } else {
+      const message = (job.error as { message?: string } | null)?.message ?? job.status;
+      $(stateId).textContent = `${words} ${job.status}: ${message}`;
+      say(`${words} ${job.status}: ${message}`, job.status === "cancelled" ? "info" : "error");
+    }
+  } catch (error) {
+    $(stateId).textContent = `${words} could not run.`;
+    report(error);
+  } finally {
+    state.trial.jobId = null;
+    setTrialBusy(false);
+  }
+}
+
+async function runFit() {
+  const scenario = writeShots();
+  if (scenario === null) return;
+  const choices = factorChoices(scenario as unknown as TrialScenario);
+  const factors = choices.filter((c) => state.trial.factors.has(c.key)).map((c) => c.factor);
+  if (factors.length === 0) {
+    say("Tick at least one thing that may differ from the model.", "error");
+    return;
+  }
+  const hash = scenarioHash(editor().value);
+  await runTrialJob<CalibrationResult>(
+    () => api.startCalibration(scenario, factors),
+    "fit-state",
+    "Fit",
+    (result) => {
+      state.trial.fit = { result, hash };
+      renderTrialResults();
+    },
+  );
+}
+
+async function runWindow() {
+  const scenario = editorScenarioOr("Fix the scenario's JSON first (see the editor).");
+  if (scenario === null) return;
+  const hash = scenarioHash(editor().value);
+  const opt = state.shown?.kind === "optimization" && !state.stale ? state.shown.result : null;
+  const after = opt && opt.changes.length > 0 && state.ranScenario
+    ? scenarioAfterChanges(state.ranScenario, opt.changes)
+    : undefined;
+  await runTrialJob<WindowJobResult>(
+    () => api.startWindow(scenario, after),
+    "window-state",
+    "Process-window sweep",
+    (result) => {
+      state.trial.window = { result, hash };
+      renderTrialResults();
+    },
+  );
+}
+
+function setupTrials() {
+  const table = $("shot-table");
+  table.addEventListener("input", (e) => {
+    const input = e.target as HTMLInputElement;
+    const k = Number(input.dataset.shot);
+    const row = state.trial.rows[k];
+    if (!row) return;
+    if (input.dataset.field === "size") row.shotPercent = input.value;
+    else if (input.dataset.cavity) row.masses[input.dataset.cavity] = input.value;
+  });
+  $("add-shot").addEventListener("click", () => {
+    state.trial.rows.push({ shotPercent: "", masses: {} });
+    renderTrials();
+  });
+  $("write-shots").addEventListener("click", () => {
+    if (writeShots()) say("The masses are in the scenario's measurements block.", "ok");
+  });
+  $("factor-list").addEventListener("change", (e) => {
+    const box = e.target as HTMLInputElement;
+    if (box.checked) state.trial.factors.add(box.value);
+    else state.trial.factors.delete(box.value);
+  });
+  $("run-fit").addEventListener("click", runFit);
+  $("run-window").addEventListener("click", runWindow);
+  $("cancel-trial").addEventListener("click", async () => {
+    if (!state.trial.jobId) return;
+    try {
+      await api.cancelJob(state.trial.jobId);
+    } catch (error) {
+      report(error);
+    }
+  });
+  $("fit-result").addEventListener("click", (e) => {
+    if ((e.target as HTMLElement).id !== "optimize-calibrated" || !state.trial.fit) return;
+    const text = JSON.stringify(state.trial.fit.result.calibrated, null, 2) + "\n";
+    state.trial.calibratedHash = scenarioHash(text);
+    setEditorText(text);
+    renderSourceState();
+    showTab("run");
+    void optimize();
+  });
+}
+
 // ---------- service health ----------
 const health = new HealthMonitor({
   check: async () => {
@@ -944,6 +1206,7 @@ async function start() {
   setupForm();
   setupSources();
   setupRun();
+  setupTrials();
   setBusy(false);
   renderResults();
   renderProgress();

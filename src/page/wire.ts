@@ -217,3 +217,72 @@ export interface SavedEntry {
   revision: number;
   updated_at: string;
 }
+
+/** A factor a calibration may fit (the `factors` of a calibrate job). */
+export type CalibrationFactorEntry =
+  | { kind: "viscosity" }
+  | { kind: "gate_size"; gate: string }
+  | { kind: "runner_size"; runner: string }
+  | { kind: "melt_temperature" };
+
+/** `evenfill.calibration/1`. */
+export interface CalibrationResult {
+  format: string;
+  stopped_because: string;
+  iterations: number;
+  simulations: number;
+  cost_before: number | null;
+  cost_after: number | null;
+  factors: {
+    factor: CalibrationFactorEntry;
+    name: string;
+    nominal: number;
+    value: number | null;
+    standard_error: number | null;
+    identified: boolean;
+    at_bound: boolean;
+    bounds: [number, number];
+  }[];
+  residuals: {
+    shot: number;
+    cavity: string;
+    injected_cm3: number | null;
+    measured_fill_percent: number | null;
+    before_fill_percent: number | null;
+    after_fill_percent: number | null;
+  }[];
+  pressure:
+    | { measured_MPa: number | null; before_MPa: number | null; after_MPa: number | null }
+    | null;
+  calibrated: Record<string, unknown>;
+}
+
+/** `evenfill.window/1`: each design's sweep. */
+export interface WindowJobResult {
+  format: string;
+  range: {
+    melt_temperature_K: number;
+    mold_temperature_K: number;
+    injection_rate_percent: number;
+    viscosity_percent: number;
+  };
+  designs: {
+    design: "today" | "after";
+    name: string;
+    points: { levels: Record<string, number>; imbalance_percent: number | null }[];
+    imbalance_range_percent: [number | null, number | null];
+    gate_shear_range_1_s: [number | null, number | null];
+    effects: { factor: string; imbalance_points: number | null }[];
+    failures: { message: string }[];
+  }[];
+  stopped_because: string | null;
+}
+
+/** Progress of a running calibrate or window job. */
+export interface StageProgress {
+  stage: "calibrate" | "window";
+  simulations: number;
+  iteration: number | null;
+  done: number | null;
+  total: number | null;
+}
