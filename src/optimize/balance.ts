@@ -11,8 +11,7 @@ import {
 import { snapToCutters } from "./cutter_strategy.ts";
 import { currentDesign, type DesignSpace, designSpace } from "./design_space.ts";
 import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
-import { fewestChangeFront, type FewestChangesFront } from "./fewest_changes.ts";
-import { tangentSensitivities } from "./sensitivities.ts";
+import { fewestChangeFront, type FewestChangesFront, slopesAt } from "./fewest_changes.ts";
 import { remap } from "./snap_runners.ts";
 import { createHighsSolver } from "./highs_solver.ts";
 import type { LpSolver } from "./lp_solver.ts";
@@ -277,15 +276,17 @@ async function fewestChangePlan(
     return { ok: false, code: "simulation_failed", message: todayOutcome.message };
   }
   const today = todayOutcome.evaluation;
-  const slopes = tangentSensitivities(space, today);
+  const slopes = slopesAt(space, today, { ...stop, slopes: options.slopes });
   if (!slopes) return { ok: true, plan: { front: emptyFront(), simulations: 1 } };
   const front = await fewestChangeFront(space, today, slopes, {
     solver,
     continuous: solveContinuous,
     slopes: options.slopes,
+    onProgress: options.onProgress,
+    simulationsBefore: 1 + slopes.simulations,
     ...stop,
   });
-  let simulations = 1 + front.simulations;
+  let simulations = 1 + slopes.simulations + front.simulations;
   const limit = space.scenario.goals.max_changes;
   const goal = space.scenario.goals.max_imbalance_percent;
   // The first plan (fewest changes) that still meets every limit in cutter sizes.

@@ -1,10 +1,14 @@
 import type { ChangeCosts, Scenario } from "../model/scenario_schema.ts";
 import type { SlopeSource } from "../wire/enums.ts";
-import type { ContinuousOutcome, ContinuousSolver } from "./continuous_slp.ts";
+import type { BalanceIteration, ContinuousOutcome, ContinuousSolver } from "./continuous_slp.ts";
 import { type DesignSpace, designSpace } from "./design_space.ts";
 import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
 import type { LpSolver, LpVariable } from "./lp_solver.ts";
-import { type Sensitivities, tangentSensitivities } from "./sensitivities.ts";
+import {
+  finiteDifferenceSensitivities,
+  type Sensitivities,
+  tangentSensitivities,
+} from "./sensitivities.ts";
 import { formulateStep, LP_BAND_SHARE, LP_LIMIT_SHARE, violation } from "./slp_step.ts";
 import { type StopOptions, stopReason } from "./stop.ts";
 
@@ -51,6 +55,13 @@ export interface FewestChangesOptions extends StopOptions {
   solver: LpSolver;
   continuous: ContinuousSolver;
   slopes?: SlopeSource;
+  /**
+   * Called after every iteration of every k's re-balance, numbered on across them, with the
+   * simulations of the whole front (plus `simulationsBefore`).
+   */
+  onProgress?: (iteration: BalanceIteration) => void;
+  /** Simulations spent before the front, for the progress counts (default 0). */
+  simulationsBefore?: number;
 }
 
 /** The front and where it stopped. */
@@ -230,6 +241,7 @@ export async function fewestChangeFront(
   let base = today;
   let baseSlopes = slopes;
   let explored: number[] = [];
+  const progress = new FrontProgress(options.onProgress);
   let stalled = 0;
   for (let k = 1; k <= n; k++) {
     if (stopReason(options)) break;
@@ -240,7 +252,16 @@ export async function fewestChangeFront(
     }
     explored = pick.chosen;
     const previous = points.at(-1);
-    let point = await balanceChanges(space, today, pick.chosen, pick.proposal, k, options);
+    progress.simulations = (options.simulationsBefore ?? 0) + simulations;
+    let point = await balanceChanges(
+      space,
+      today,
+      pick.chosen,
+      pick.proposal,
+      k,
+      options,
+      progress,
+    );
     if (point) simulations += point.simulations;
     // A plan with fewer changes is a plan with at most k: the front never gets worse.
     if (previous && (!point || !better(point, previous, epsilon, today.runnerVolume))) {
@@ -254,7 +275,8 @@ export async function fewestChangeFront(
       // The next choice is linearised where this plan landed (one simulation with its tangent).
       const again = evaluateDesign(space, point.x, { slopes: true });
       simulations++;
-      const s = again.ok ? tangentSensitivities(space, again.evaluation) : undefined;
+      const s = again.ok ? slopesAt(space, again.evaluation, options) : undefined;
+      if (s) simulations += s.simulations;
       if (again.ok && s) {
         base = again.evaluation;
         baseSlopes = s;
@@ -274,6 +296,20 @@ export async function fewestChangeFront(
   return { points, chosen, neededChanges, simulations };
 }
 
+/**
+ * The slopes the choice of changes linearises with at `e` (evaluated with its tangent): the
+ * tangent's, or finite differences (one simulation per size) when the run asks for them.
+ */
+export function slopesAt(
+  space: DesignSpace,
+  e: DesignEvaluation,
+  options: StopOptions & { slopes?: SlopeSource },
+): Sensitivities | undefined {
+  if (options.slopes !== "finite_difference") return tangentSensitivities(space, e);
+  const s = finiteDifferenceSensitivities(space, e, options);
+  return "failure" in s ? undefined : s;
+}
+
 /** Balance the sizes in `free` (the rest at today's) and judge the plan. */
 async function balanceChanges(
   space: DesignSpace,
@@ -282,6 +318,7 @@ async function balanceChanges(
   proposal: Float64Array,
   k: number,
   options: FewestChangesOptions,
+  progress: FrontProgress,
 ): Promise<FrontPoint | undefined> {
   const sub = spaceOf(space, free);
   const start = new Map(free.map((j) => [space.variables[j].element, proposal[j]]));
@@ -292,6 +329,7 @@ async function balanceChanges(
     slopes: options.slopes,
     signal: options.signal,
     deadline: options.deadline,
+    onProgress: (i) => progress.report(i),
   });
   if (!solved.ok) return undefined;
   const e = solved.outcome.optimum;
@@ -327,4 +365,19 @@ function better(a: FrontPoint, b: FrontPoint, epsilon: number, V0: number): bool
   }
   return a.runnerVolume / V0 + 1e-9 < b.runnerVolume / V0 ||
     (Math.abs(a.runnerVolume - b.runnerVolume) <= 1e-9 * V0 && a.cost < b.cost);
+}
+
+/** Progress across the front's re-balances: one running iteration count and simulation total. */
+class FrontProgress {
+  iterations = 0;
+  /** Simulations before the re-balance now running. */
+  simulations = 0;
+  constructor(private readonly onProgress?: (iteration: BalanceIteration) => void) {}
+  report(i: BalanceIteration): void {
+    this.onProgress?.({
+      ...i,
+      iteration: ++this.iterations,
+      simulations: this.simulations + i.simulations,
+    });
+  }
 }
