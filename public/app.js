@@ -1659,21 +1659,143 @@
     const mm = side === "from" ? c.from_mm : c.to_mm;
     return units.length === "mm" ? `${formatLength(mm, "mm")} mm (${formatLength(mm, "in")} in)` : `${formatLength(mm, "in")} in (${formatLength(mm, "mm")} mm)`;
   }
-  var STEEL_WORDS = (c) => c.steel_safe ? "enlarge (steel-safe)" : "<strong>ADD STEEL</strong> (weld or insert)";
+  var ACTION_WORDS = {
+    cut_to: {
+      full: "cut to",
+      short: "cut to"
+    },
+    enlarge: {
+      full: "enlarge (steel-safe)",
+      short: "enlarge"
+    },
+    add_steel: {
+      full: "<strong>ADD STEEL</strong> (weld or insert)",
+      short: "<strong>ADD STEEL</strong>"
+    }
+  };
+  function changeSteps(changes) {
+    const steps = [];
+    for (const c of changes) {
+      const last = steps[steps.length - 1];
+      if (last && last.step === c.step) {
+        last.changes.push(c);
+        last.together = true;
+        last.after = c.after_step;
+        last.above_start ||= c.above_start;
+        last.above_start_reason ??= c.above_start_reason;
+      } else {
+        steps.push({
+          step: c.step,
+          changes: [
+            c
+          ],
+          together: c.cut_together,
+          after: c.after_step,
+          above_start: c.above_start,
+          above_start_reason: c.above_start_reason
+        });
+      }
+    }
+    return steps;
+  }
+  var newTool = (changes) => changes.length > 0 && changes.every((c) => c.action === "cut_to");
+  function omittedText(omitted) {
+    if (!omitted) return "No change proposed.";
+    return omitted === "not asked for" ? "No change list: it was not asked for." : `No change list: the run was ${omitted}. The sizes shown are the design it reached; run again for the order of work.`;
+  }
+  function shotAttrs(step, s) {
+    return `data-step="${step}" data-cavity="${escapeXml(s.cavity)}" data-fill="${s.fill_percent}" data-mass-g="${s.mass_g}"`;
+  }
+  function shotCompact(step, state2, units) {
+    if (state2.first_full_s === null || state2.short_shot.length === 0) return "not simulated";
+    const sorted = [
+      ...state2.short_shot
+    ].sort((a, b) => b.fill_percent - a.fill_percent);
+    const first = sorted[0], low = sorted[sorted.length - 1];
+    return `<span ${shotAttrs(step, first)}>${escapeXml(first.cavity)} full</span> \xB7 <span ${shotAttrs(step, low)}>${escapeXml(low.cavity)} ${num(low.fill_percent, 3)} % ${escapeXml(formatMass(low.mass_g, units, 3))}</span>`;
+  }
   function changeTableHtml(changes, units, options = {}) {
     const id = escapeXml(options.id ?? "change-table");
-    if (changes.length === 0) return `<p class="empty" id="${id}">No change proposed.</p>`;
-    const sizes = (c) => `<td class="num" data-field="from" data-mm="${c.from_mm}">${escapeXml(changeSizeText(c, "from", units))}</td><td class="num" data-field="to" data-mm="${c.to_mm}"><strong>${escapeXml(changeSizeText(c, "to", units))}</strong></td>`;
+    if (changes.length === 0) {
+      return `<p class="empty" id="${id}"${options.omitted ? ` data-omitted="true"` : ""}>${escapeXml(omittedText(options.omitted))}</p>`;
+    }
+    const fresh = newTool(changes);
+    const steps = changeSteps(changes);
+    const start2 = fresh ? null : options.start ?? null;
+    const imbalance = (s, above) => `<td class="num${above ? " over" : ""}" data-field="imbalance" data-value="${s.imbalance_percent}"${above ? ' data-above-start="true"' : ""}>${num(s.imbalance_percent, 3)} %${s.limits_met ? "" : " *"}</td>`;
+    const stepCell = (s, span) => `<td class="num step" rowspan="${span}" data-step-number="${s.step}">${s.step}${s.together ? `<br><span class="muted small" data-field="together">cut together</span>` : ""}</td>`;
+    const reasons = steps.filter((s) => s.above_start);
+    const reasonNote = (s) => `step ${s.step} is above today's imbalance${s.above_start_reason ? `: ${s.above_start_reason}` : ""}`;
     if (options.sheet) {
       const other = units.length === "mm" ? "in" : "mm";
-      const rows2 = changes.map((c) => `<tr data-step="${c.step}" data-element="${escapeXml(c.element)}"><td class="num step">${c.step}</td><th scope="row">${escapeXml(c.element)} <span class="muted">${escapeXml(c.dimension === "diameter" ? "\u2300" : c.dimension)}</span></th><td class="num" data-field="from" data-mm="${c.from_mm}">${formatLength(c.from_mm, units.length)}</td><td class="num" data-field="to" data-mm="${c.to_mm}"><strong>${formatLength(c.to_mm, units.length)} ${unitSymbol(units, "length")}</strong> <span class="muted">(${formatLength(c.to_mm, other)} ${other})</span></td><td data-field="cutter">${escapeXml(c.cutter)}</td><td>${escapeXml(c.mold_half)}</td><td data-field="steel">${c.steel_safe ? "enlarge" : "<strong>ADD STEEL</strong>"}</td><td class="num" data-field="imbalance" data-value="${c.after_step.imbalance_percent}">${num(c.after_step.imbalance_percent, 3)} %${c.after_step.limits_met ? "" : " *"}</td><td class="tick-box" aria-label="done">\u2610</td></tr>`).join("");
-      return `<table class="data changes sheet-steps" id="${id}"><thead><tr><th scope="col">step</th><th scope="col">element</th><th scope="col">now, ${unitSymbol(units, "length")}</th><th scope="col">cut to</th><th scope="col">cutter</th><th scope="col">half</th><th scope="col">steel</th><th scope="col">imbalance after</th><th scope="col">done</th></tr></thead><tbody>${rows2}</tbody></table><p class="note">* limits not yet met after this step. \u201Cenlarge\u201D: steel-safe, metal is removed; ADD STEEL: weld or insert first.</p>`;
+      const span = (s) => fresh ? changes.length : s.changes.length;
+      const rows2 = steps.map((s, k) => s.changes.map((c, i) => `<tr data-step="${c.step}" data-element="${escapeXml(c.element)}">` + (i === 0 ? stepCell(s, s.changes.length) : "") + `<th scope="row">${escapeXml(c.element)} <span class="muted">${escapeXml(c.dimension === "diameter" ? "\u2300" : c.dimension)}</span></th><td class="num" data-field="from" data-mm="${c.from_mm}">${formatLength(c.from_mm, units.length)}</td><td class="num" data-field="to" data-mm="${c.to_mm}"><strong>${formatLength(c.to_mm, units.length)} ${unitSymbol(units, "length")}</strong> <span class="muted">(${formatLength(c.to_mm, other)} ${other})</span></td><td data-field="cutter">${escapeXml(c.cutter)}</td><td>${escapeXml(c.mold_half)}</td><td data-field="steel" data-action="${c.action}">${ACTION_WORDS[c.action].short}</td>` + (i === 0 && (!fresh || k === 0) ? imbalance(s.after, s.above_start).replace("<td ", `<td rowspan="${span(s)}" `) + `<td class="shot" rowspan="${span(s)}" data-field="short-shot">${shotCompact(s.step, s.after, units)}</td><td class="tick-box" rowspan="${span(s)}" aria-label="done">\u2610</td>` : "") + `</tr>`).join("")).join("");
+      const zero2 = start2 ? `<tr data-step="0" class="start"><td class="num step">0</td><th scope="row" colspan="6">today's tool, before any cut</th>${imbalance(start2, false)}<td class="shot" data-field="short-shot">${shotCompact(0, start2, units)}</td><td></td></tr>` : "";
+      const words = fresh ? "\u201Ccut to\u201D: a new tool, cut as drawn; the figures are the design with every size cut." : "\u201Cenlarge\u201D: steel-safe, metal is removed; ADD STEEL: weld or insert first. \u25B2 above today's imbalance.";
+      return `<table class="data changes sheet-steps" id="${id}"><thead><tr><th scope="col">step</th><th scope="col">element</th><th scope="col">${fresh ? "drawn" : "now"}, ${unitSymbol(units, "length")}</th><th scope="col">cut to</th><th scope="col">cutter</th><th scope="col">half</th><th scope="col">steel</th><th scope="col">imbalance ${fresh ? "all cut" : "after"}</th><th scope="col">short shot: first full \xB7 lowest</th><th scope="col">done</th></tr></thead><tbody>${zero2}${rows2}</tbody></table><p class="note">* limits not yet met. ${words}</p>` + (reasons.length ? `<ul class="note step-reasons">${reasons.map((s) => `<li data-step="${s.step}" data-above-start="true">${escapeXml(reasonNote(s))}</li>`).join("")}</ul>` : "");
     }
-    const rows = changes.map((c) => {
-      const t = c.after_step;
-      return `<tr data-step="${c.step}" data-element="${escapeXml(c.element)}"><td class="num step">${c.step}</td><th scope="row">${escapeXml(c.element)}</th><td>${escapeXml(c.kind)}, ${escapeXml(c.section)}</td><td>${escapeXml(c.dimension)}</td>` + sizes(c) + `<td data-field="cutter">${escapeXml(c.cutter)}</td><td data-field="steel">${STEEL_WORDS(c)}</td><td>${escapeXml(c.mold_half)}</td><td class="num" data-field="imbalance" data-value="${t.imbalance_percent}">${num(t.imbalance_percent, 3)} %</td><td class="num" data-field="pressure" data-value="${t.feed_pressure_peak_MPa}">${escapeXml(formatPressure(t.feed_pressure_peak_MPa, units))}</td><td class="num" data-field="runner" data-value="${t.runner_volume_cm3}">${escapeXml(formatVolume(t.runner_volume_cm3, units))}</td><td>${t.limits_met ? "yes" : "no"}</td></tr>`;
+    const sizes = (c) => `<td class="num" data-field="from" data-mm="${c.from_mm}">${escapeXml(changeSizeText(c, "from", units))}</td><td class="num" data-field="to" data-mm="${c.to_mm}"><strong>${escapeXml(changeSizeText(c, "to", units))}</strong></td>`;
+    const figures = (t, above, span) => [
+      imbalance(t, above),
+      `<td class="num" data-field="pressure" data-value="${t.feed_pressure_peak_MPa}">${escapeXml(formatPressure(t.feed_pressure_peak_MPa, units))}</td>`,
+      `<td class="num" data-field="runner" data-value="${t.runner_volume_cm3}">${escapeXml(formatVolume(t.runner_volume_cm3, units))}</td>`,
+      `<td>${t.limits_met ? "yes" : "no"}</td>`
+    ].map((td) => td.replace("<td", `<td rowspan="${span}"`)).join("");
+    const columns = 13;
+    const rows = steps.map((s, k) => s.changes.map((c, i) => `<tr data-step="${c.step}" data-element="${escapeXml(c.element)}">` + (i === 0 ? stepCell(s, s.changes.length) : "") + `<th scope="row">${escapeXml(c.element)}</th><td>${escapeXml(c.kind)}, ${escapeXml(c.section)}</td><td>${escapeXml(c.dimension)}</td>` + sizes(c) + `<td data-field="cutter">${escapeXml(c.cutter)}</td><td data-field="steel" data-action="${c.action}">${ACTION_WORDS[c.action].full}</td><td>${escapeXml(c.mold_half)}</td>` + (i === 0 && (!fresh || k === 0) ? figures(s.after, s.above_start, fresh ? changes.length : s.changes.length) : "") + `</tr>`).join("") + (s.above_start ? `<tr class="step-note" data-step="${s.step}" data-above-start="true"><td colspan="${columns}">\u25B2 ${escapeXml(reasonNote(s))}</td></tr>` : "")).join("");
+    const zero = start2 ? `<tr data-step="0" class="start"><td class="num step">0</td><th scope="row" colspan="8">today's tool, before any cut</th>${figures(start2, false, 1)}</tr>` : "";
+    return scrollBox(`<table class="data changes" id="${id}"><caption>${fresh ? "Sizes to cut (a new tool: the figures are the design with every size cut)" : "Changes in order of work (each step simulated with every step before it)"}</caption><thead><tr><th scope="col">step</th><th scope="col">element</th><th scope="col">what</th><th scope="col">size</th><th scope="col">${fresh ? "drawn" : "before"}</th><th scope="col">${fresh ? "cut to" : "after"}</th><th scope="col">cutter</th><th scope="col">steel</th><th scope="col">mold half</th><th scope="col">imbalance after</th><th scope="col">peak pressure after</th><th scope="col">runner after</th><th scope="col">limits met</th></tr></thead><tbody>${zero}${rows}</tbody></table>`) + `<p class="note">* limits not yet met.</p>`;
+  }
+  function shortShotTableHtml(opt, units, id = "short-shot-table") {
+    const fresh = newTool(opt.changes);
+    const steps = changeSteps(opt.changes);
+    const rows = [];
+    if (opt.changes_start && !fresh) {
+      rows.push({
+        step: 0,
+        label: "0 today",
+        state: opt.changes_start
+      });
+    }
+    if (fresh) {
+      rows.push({
+        step: steps.at(-1).step,
+        label: "all cut",
+        state: steps.at(-1).after
+      });
+    } else {
+      for (const s of steps) rows.push({
+        step: s.step,
+        label: String(s.step),
+        state: s.after
+      });
+    }
+    const cavities = rows.find((r) => r.state.short_shot.length > 0)?.state.short_shot.map((s) => s.cavity) ?? [];
+    if (rows.length === 0 || cavities.length === 0) return "";
+    const body = rows.map((r) => {
+      const byCavity = new Map(r.state.short_shot.map((s) => [
+        s.cavity,
+        s
+      ]));
+      const lowest = Math.min(...r.state.short_shot.map((s) => s.fill_percent));
+      return `<tr data-step="${r.step}"><th scope="row">${escapeXml(r.label)}</th><td class="num">${r.state.first_full_s === null ? "not simulated" : `${num(r.state.first_full_s, 3)} s`}</td>` + cavities.map((cavity) => {
+        const s = byCavity.get(cavity);
+        if (!s) return "<td>\u2013</td>";
+        const low = r.state.short_shot.length > 1 && s.fill_percent === lowest;
+        return `<td class="num${low ? " low" : ""}" ${shotAttrs(r.step, s)}>${num(s.fill_percent, 3)} % <span class="muted">${escapeXml(formatMass(s.mass_g, units, 3))}</span></td>`;
+      }).join("") + `</tr>`;
     }).join("");
-    return scrollBox(`<table class="data changes" id="${id}"><caption>Changes in order of work (each step simulated with every step before it)</caption><thead><tr><th scope="col">step</th><th scope="col">element</th><th scope="col">what</th><th scope="col">size</th><th scope="col">before</th><th scope="col">after</th><th scope="col">cutter</th><th scope="col">steel</th><th scope="col">mold half</th><th scope="col">imbalance after</th><th scope="col">peak pressure after</th><th scope="col">runner after</th><th scope="col">limits met</th></tr></thead><tbody>${rows}</tbody></table>`);
+    return scrollBox(`<table class="data short-shots" id="${escapeXml(id)}"><caption>Short shot to weigh after each step: each cavity's fill and mass when the first cavity is full (predicted)</caption><thead><tr><th scope="col">step</th><th scope="col">first full at</th>${cavities.map((c) => `<th scope="col">${escapeXml(c)}</th>`).join("")}</tr></thead><tbody>${body}</tbody></table>`) + `<p class="note">Set the shot size so that the first cavity just fills, weigh each part and compare with its row before cutting the next step.</p>`;
+  }
+  function frontTableHtml(opt, units) {
+    if (opt.front.length === 0) return "";
+    const rows = opt.front.map((p) => `<tr data-max-changes="${p.max_changes}" data-chosen="${p.chosen}"${p.chosen ? ' class="chosen"' : ""}><th scope="row">${p.max_changes === 0 ? "none" : `up to ${p.max_changes}`}</th><td data-field="changed">${p.changed.length ? escapeXml(p.changed.join(", ")) : "none"}</td>` + cell(p.imbalance_percent, `${num(p.imbalance_percent, 3)} %`, {
+      field: "imbalance"
+    }) + cell(p.runner_mass_g, formatMass(p.runner_mass_g, units, 3), {
+      field: "runner"
+    }) + `<td data-field="limits">${p.limits_met ? "yes" : "no"}</td><td data-field="chosen">${p.chosen ? "<strong>\u25C0 plan taken</strong>" : ""}</td></tr>`).join("");
+    const chosen = opt.front.find((p) => p.chosen);
+    return scrollBox(`<table class="data front" id="front-table"><caption>Fewest changes: the best plan found for each number of sizes allowed to change (sizes as calculated, before rounding to cutters)</caption><thead><tr><th scope="col">sizes allowed to change</th><th scope="col">which sizes change</th><th scope="col">imbalance</th><th scope="col">runner per shot</th><th scope="col">limits met</th><th scope="col"></th></tr></thead><tbody>${rows}</tbody></table>`) + `<p class="note">The plan taken is the first, with the fewest changes, that meets every limit${chosen && !chosen.limits_met ? "; none here meets them all, so the one that comes closest was taken" : ""}: each size more is more work on the tool.</p>`;
   }
   function chartEnd(results) {
     const ends = results.flatMap((r) => {
@@ -1967,7 +2089,7 @@
     const internals = [
       `<p>${escapeXml(opt.reason)}</p>`,
       opt.snapping ? `<p>Cutters: ${escapeXml(opt.snapping)}</p>` : "",
-      opt.simulations !== void 0 ? `<p>${opt.simulations} fill simulations${opt.slopes ? `; slopes ${SLOPE_WORDS[opt.slopes] ?? escapeXml(opt.slopes)}` : ""}.</p>` : ""
+      `<p>${opt.simulations} fill simulations; slopes ${SLOPE_WORDS[opt.slopes]}.</p>`
     ].join("");
     return `<div class="verdict" data-status="${escapeXml(opt.status)}"><p><strong>${escapeXml(STATUS_WORDS[opt.status] ?? opt.status)}</strong> \u2014 ${escapeXml(STATUS_MEANING[opt.status] ?? "")}</p>` + (opt.would_need.length ? `<p>What would make it reachable (a first estimate; simulate to confirm):</p><ul>${opt.would_need.map((w) => `<li>${escapeXml(w)}</li>`).join("")}</ul>` : "") + `<details class="advanced"><summary>Advanced: the optimizer's own account</summary>${internals}</details></div>`;
   }
@@ -1991,9 +2113,11 @@
       "Checked by",
       "Toolmaker",
       "Trial shot approved"
-    ].map((who) => `<div class="sign"><span class="line"></span><span>${escapeXml(who)} \u2014 name, date</span></div>`).join("") + `</div></section></div><div class="sheet-side"><section class="sheet-steps"><h3>Steps in order of work</h3><p class="muted small">Cut one step, shoot and weigh short shots, compare with the predicted imbalance, then decide on the next. Each step was simulated with every step before it.</p>${changeTableHtml(opt.changes, u, {
+    ].map((who) => `<div class="sign"><span class="line"></span><span>${escapeXml(who)} \u2014 name, date</span></div>`).join("") + `</div></section></div><div class="sheet-side"><section class="sheet-steps"><h3>${newTool(opt.changes) ? "Sizes to cut" : "Steps in order of work"}</h3><p class="muted small">${newTool(opt.changes) ? "A new tool: cut every size as listed, then shoot and weigh short shots against the predicted short shot." : "Cut one step, shoot a short shot (the first cavity just full), weigh each part against the predicted short shot, then decide on the next. Each step was simulated with every step before it."}</p>${changeTableHtml(opt.changes, u, {
       id: "sheet-changes",
-      sheet: true
+      sheet: true,
+      start: opt.changes_start,
+      omitted: opt.changes_omitted
     })}</section><section class="sheet-effect"><h3>Predicted effect</h3><table class="data compact"><thead><tr><th></th><th scope="col">before</th><th scope="col">after all steps</th></tr></thead><tbody>` + row("fill-time imbalance", `${num(b.imbalance_percent)} %`, `${num(a.imbalance_percent)} %`) + row(`peak injection pressure${at}`, formatPressure(b.feed_pressure_peak_MPa, u), formatPressure(a.feed_pressure_peak_MPa, u)) + row(`peak clamp force${at}`, formatForce(b.clamp_force_peak_kN, u), formatForce(a.clamp_force_peak_kN, u)) + row("cold runner", formatMass(b.runner_mass_g, u), formatMass(a.runner_mass_g, u)) + `</tbody></table></section></div></div></article>`;
   }
 
@@ -3113,6 +3237,7 @@
           $("run-panel").dataset.job = status;
         },
         onProgress: (p) => {
+          if ("stage" in p) return;
           const last = state.progress[state.progress.length - 1];
           if (!last || last.iteration !== p.iteration || last.simulations !== p.simulations) {
             state.progress.push(p);
@@ -3122,23 +3247,24 @@
         onStreamLost: () => health.suspect()
       });
       $("run-panel").dataset.job = job.status;
-      if (job.status === "done" && job.result) {
+      const result = job.result?.format === "evenfill.optimization/1" ? job.result : null;
+      if (job.status === "done" && result) {
         state.shown = {
           kind: "optimization",
-          result: job.result
+          result
         };
         rememberRun(scenario, text);
         checkStale();
         renderResults();
-        const words = STATUS_WORDS[job.result.status] ?? job.result.status;
+        const words = STATUS_WORDS[result.status] ?? result.status;
         $("run-state").textContent = `Optimization done: ${words}.`;
         say(`Optimization done: ${words}.`, "ok");
         showTab("results");
-      } else if (job.status === "cancelled" && job.result) {
+      } else if (job.status === "cancelled" && result) {
         state.shown = {
           kind: "optimization",
           result: {
-            ...job.result,
+            ...result,
             status: "cancelled"
           }
         };
@@ -3273,8 +3399,10 @@
       xMax,
       switchoverPercent: sw
     })}</div><p class="note">The charts end at switchover (${sw} % of the shot volume), where the press changes from filling at the set rate to holding pressure. A cavity still filling then ends at its fill % at switchover; the hold phase fills the rest.</p></section><section class="block">${cavityTableHtml(shown, u)}</section>` + (opt ? `<section class="block"><h3>Change list</h3>${changeTableHtml(changes, u, {
-      id: "change-table"
-    })}</section>` : "") + `<section class="block"><h3>Runners and gates</h3><p class="hold"><label for="hold-time">Hold time on the press, s</label> <input id="hold-time" type="number" min="0" step="any" inputmode="decimal" value="${state.holdTime ?? ""}"> <span class="muted small">not in the scenario: enter it to check each gate seals within it</span></p>${elementTableHtml(r, u, ran.meltTemperature_C, {
+      id: "change-table",
+      start: opt.changes_start,
+      omitted: opt.changes_omitted
+    })}${shortShotTableHtml(opt, u)}</section>` + (opt.front.length ? `<section class="block" id="front-panel"><h3>Fewest changes</h3>${frontTableHtml(opt, u)}</section>` : "") : "") + `<section class="block"><h3>Runners and gates</h3><p class="hold"><label for="hold-time">Hold time on the press, s</label> <input id="hold-time" type="number" min="0" step="any" inputmode="decimal" value="${state.holdTime ?? ""}"> <span class="muted small">not in the scenario: enter it to check each gate seals within it</span></p>${elementTableHtml(r, u, ran.meltTemperature_C, {
       holdTime_s: state.holdTime
     })}</section><section class="block"><h3>Pressure along each flow path</h3>${seriesKeyHtml(ids)}<div class="charts">${pathPressureSvg(shown, ctx)}</div></section><section class="block"><h3>Against the press</h3><div class="charts">${pressChartsSvg(shown, ctx)}</div><p class="muted">Filling only, to switchover: the peaks are the figures above. Estimates: the press maker's limits and local safety practice come first.</p></section><section class="block two"><div><h3>Warnings</h3>${warningsHtml(r)}</div><div><h3>Cautions</h3>${cautionsHtml(r)}</div></section>`;
     sheet.innerHTML = opt ? changeSheetHtml(opt, {

@@ -1,12 +1,12 @@
 import type {
-  ApiErrorBody,
+  ApiError as ApiErrorBody,
   CalibrationFactorEntry,
   DemoEntry,
-  Issue,
   Job,
   JobProgress,
   MaterialEntry,
   SavedEntry,
+  ScenarioIssue as Issue,
   SimulationResult,
 } from "./wire.ts";
 

@@ -13,12 +13,7 @@ import {
   formatTemperatureRise,
   G_PER_OUNCE,
 } from "./display_units.ts";
-import type {
-  CalibrationFactorEntry,
-  CalibrationResult,
-  ChangeEntry,
-  WindowJobResult,
-} from "./wire.ts";
+import type { CalibrationFactorEntry, CalibrationResult, Change, WindowJobResult } from "./wire.ts";
 
 /** The parts of a scenario these views read. */
 export interface TrialScenario {
@@ -345,7 +340,7 @@ export function fitSummaryText(result: CalibrationResult): string {
 }
 
 /** The scenario with an optimization's changes cut into it (a new object): the "after" tool. */
-export function scenarioAfterChanges<T>(scenario: T, changes: readonly ChangeEntry[]): T {
+export function scenarioAfterChanges<T>(scenario: T, changes: readonly Change[]): T {
   const out = structuredClone(scenario) as unknown as {
     runners?: Record<string, unknown>[];
     gates?: Record<string, unknown>[];

@@ -1,5 +1,5 @@
 import { locateJson, spanForPath, type TextSpan } from "./json_locate.ts";
-import type { Issue } from "./wire.ts";
+import type { ScenarioIssue as Issue } from "./wire.ts";
 
 /**
  * Check the editor's text before anything is sent: JSON syntax here, in the

@@ -25,11 +25,13 @@ import {
   chartEnd,
   elementTableHtml,
   fillChartSvg,
+  frontTableHtml,
   pathPressureSvg,
   pressChartsSvg,
   primary,
   type ScenarioForViews,
   seriesKeyHtml,
+  shortShotTableHtml,
   type Shown,
   staleBannerHtml,
   STATUS_WORDS,
@@ -59,7 +61,7 @@ import { HealthMonitor, type ServiceState } from "./service_health.ts";
 import type {
   CalibrationResult,
   DemoEntry,
-  JobProgress,
+  Iteration,
   MaterialEntry,
   SavedEntry,
   StageProgress,
@@ -88,7 +90,7 @@ const state = {
   shown: null as Shown | null,
   ranScenario: null as ScenarioForViews | null,
   jobId: null as string | null,
-  progress: [] as JobProgress[],
+  progress: [] as Iteration[],
   /** Imbalance target of the job being run, %. */
   runTarget: null as number | null,
   /** Where the shown result came from: the scenario's check code, source and name then. */
@@ -730,6 +732,7 @@ async function optimize() {
         $("run-panel").dataset.job = status;
       },
       onProgress: (p) => {
+        if ("stage" in p) return;
         const last = state.progress[state.progress.length - 1];
         if (!last || last.iteration !== p.iteration || last.simulations !== p.simulations) {
           state.progress.push(p);
@@ -739,18 +742,19 @@ async function optimize() {
       onStreamLost: () => health.suspect(),
     });
     $("run-panel").dataset.job = job.status;
-    if (job.status === "done" && job.result) {
-      state.shown = { kind: "optimization", result: job.result };
+    const result = job.result?.format === "evenfill.optimization/1" ? job.result : null;
+    if (job.status === "done" && result) {
+      state.shown = { kind: "optimization", result };
       rememberRun(scenario, text);
       checkStale();
       renderResults();
-      const words = STATUS_WORDS[job.result.status] ?? job.result.status;
+      const words = STATUS_WORDS[result.status] ?? result.status;
       $("run-state").textContent = `Optimization done: ${words}.`;
       say(`Optimization done: ${words}.`, "ok");
       showTab("results");
-    } else if (job.status === "cancelled" && job.result) {
+    } else if (job.status === "cancelled" && result) {
       // the job wrote the best design it had reached before it stopped
-      state.shown = { kind: "optimization", result: { ...job.result, status: "cancelled" } };
+      state.shown = { kind: "optimization", result: { ...result, status: "cancelled" } };
       rememberRun(scenario, text);
       checkStale();
       renderResults();
@@ -895,8 +899,17 @@ function renderResults() {
     `<section class="block">${cavityTableHtml(shown, u)}</section>` +
     (opt
       ? `<section class="block"><h3>Change list</h3>${
-        changeTableHtml(changes, u, { id: "change-table" })
-      }</section>`
+        changeTableHtml(changes, u, {
+          id: "change-table",
+          start: opt.changes_start,
+          omitted: opt.changes_omitted,
+        })
+      }${shortShotTableHtml(opt, u)}</section>` +
+        (opt.front.length
+          ? `<section class="block" id="front-panel"><h3>Fewest changes</h3>${
+            frontTableHtml(opt, u)
+          }</section>`
+          : "")
       : "") +
     `<section class="block"><h3>Runners and gates</h3><p class="hold"><label for="hold-time">Hold time on the press, s</label> <input id="hold-time" type="number" min="0" step="any" inputmode="decimal" value="${
       state.holdTime ?? ""

@@ -17,10 +17,12 @@ import {
 } from "./display_units.ts";
 import type {
   CavityResult,
-  ChangeEntry,
+  Change,
   HistorySample,
   OptimizationResult,
   SimulationResult,
+  SlopeSource,
+  StepState,
 } from "./wire.ts";
 
 /**
@@ -290,100 +292,336 @@ export function cavityTableHtml(shown: Shown, units: DisplayUnits = METRIC_UNITS
 }
 
 /** Text of a change's size in the chosen unit, the other beside; each rounded once from mm. */
-export function changeSizeText(c: ChangeEntry, side: "from" | "to", units: DisplayUnits): string {
+export function changeSizeText(c: Change, side: "from" | "to", units: DisplayUnits): string {
   const mm = side === "from" ? c.from_mm : c.to_mm;
   return units.length === "mm"
     ? `${formatLength(mm, "mm")} mm (${formatLength(mm, "in")} in)`
     : `${formatLength(mm, "in")} in (${formatLength(mm, "mm")} mm)`;
 }
 
-const STEEL_WORDS = (c: ChangeEntry) =>
-  c.steel_safe ? "enlarge (steel-safe)" : "<strong>ADD STEEL</strong> (weld or insert)";
+/** What a change does to the steel, in shop words (HTML): Results, and the sheet's short form. */
+const ACTION_WORDS: Record<Change["action"], { full: string; short: string }> = {
+  cut_to: { full: "cut to", short: "cut to" },
+  enlarge: { full: "enlarge (steel-safe)", short: "enlarge" },
+  add_steel: {
+    full: "<strong>ADD STEEL</strong> (weld or insert)",
+    short: "<strong>ADD STEEL</strong>",
+  },
+};
+
+/** One step of the order of work: the changes cut at once and the tool's state after them. */
+export interface ChangeStep {
+  step: number;
+  changes: Change[];
+  /** More than one change, cut at once. */
+  together: boolean;
+  after: StepState;
+  above_start: boolean;
+  above_start_reason: string | null;
+}
+
+/** The change list grouped into steps (consecutive changes sharing their step number). */
+export function changeSteps(changes: readonly Change[]): ChangeStep[] {
+  const steps: ChangeStep[] = [];
+  for (const c of changes) {
+    const last = steps[steps.length - 1];
+    if (last && last.step === c.step) {
+      last.changes.push(c);
+      last.together = true;
+      last.after = c.after_step;
+      last.above_start ||= c.above_start;
+      last.above_start_reason ??= c.above_start_reason;
+    } else {
+      steps.push({
+        step: c.step,
+        changes: [c],
+        together: c.cut_together,
+        after: c.after_step,
+        above_start: c.above_start,
+        above_start_reason: c.above_start_reason,
+      });
+    }
+  }
+  return steps;
+}
+
+/** A new tool's list: every size is cut as drawn, and every step carries the final design. */
+const newTool = (changes: readonly Change[]) =>
+  changes.length > 0 && changes.every((c) => c.action === "cut_to");
+
+/** Options of {@link changeTableHtml}. */
+export interface ChangeTableOptions {
+  id?: string;
+  /** The toolmaker's sheet: fewer, narrower columns for one printed page. */
+  sheet?: boolean;
+  /** Step 0: today's tool (`changes_start`; null or absent for a new tool). */
+  start?: StepState | null;
+  /** Why there is no change list (`changes_omitted`). */
+  omitted?: string | null;
+}
+
+/** Why there is no change list, in plain words. */
+export function omittedText(omitted: string | null | undefined): string {
+  if (!omitted) return "No change proposed.";
+  return omitted === "not asked for"
+    ? "No change list: it was not asked for."
+    : `No change list: the run was ${omitted}. The sizes shown are the design it reached; run again for the order of work.`;
+}
+
+/** The short-shot cells' raw values, for tests and the shop's own sheet. */
+function shotAttrs(step: number, s: StepState["short_shot"][number]): string {
+  return `data-step="${step}" data-cavity="${
+    esc(s.cavity)
+  }" data-fill="${s.fill_percent}" data-mass-g="${s.mass_g}"`;
+}
+
+/** The sheet's compact short shot: the first cavity full and the lowest, with its mass. */
+function shotCompact(step: number, state: StepState, units: DisplayUnits): string {
+  if (state.first_full_s === null || state.short_shot.length === 0) return "not simulated";
+  const sorted = [...state.short_shot].sort((a, b) => b.fill_percent - a.fill_percent);
+  const first = sorted[0], low = sorted[sorted.length - 1];
+  return `<span ${shotAttrs(step, first)}>${esc(first.cavity)} full</span> · <span ${
+    shotAttrs(step, low)
+  }>${esc(low.cavity)} ${num(low.fill_percent, 3)} % ${
+    esc(formatMass(low.mass_g, units, 3))
+  }</span>`;
+}
 
 /**
- * The ordered change list. On Results: every column, in its own scroll box. On the sheet
- * (`sheet: true`): the toolmaker's columns only (step, element, before → after, cutter, mold
- * half and steel, imbalance after the step, a tick box), narrow enough for one printed page.
+ * The ordered change list, one row per change, the changes of a step cut together under one
+ * step number, step 0 (today's tool) first when given. On Results: every column, in its own
+ * scroll box. On the sheet (`sheet: true`): the toolmaker's columns only (step, element, now →
+ * cut to, cutter, mold half and steel, imbalance and short shot after the step, a tick box),
+ * narrow enough for one printed page. A new tool's sizes are "cut to", with the final design's
+ * figures once. A step above today's imbalance is marked, with its reason.
  */
 export function changeTableHtml(
-  changes: ChangeEntry[],
+  changes: Change[],
   units: DisplayUnits,
-  options: { id?: string; sheet?: boolean } = {},
+  options: ChangeTableOptions = {},
 ): string {
   const id = esc(options.id ?? "change-table");
-  if (changes.length === 0) return `<p class="empty" id="${id}">No change proposed.</p>`;
-  const sizes = (c: ChangeEntry) =>
+  if (changes.length === 0) {
+    return `<p class="empty" id="${id}"${options.omitted ? ` data-omitted="true"` : ""}>${
+      esc(omittedText(options.omitted))
+    }</p>`;
+  }
+  const fresh = newTool(changes);
+  const steps = changeSteps(changes);
+  const start = fresh ? null : options.start ?? null;
+  const imbalance = (s: StepState, above: boolean) =>
+    `<td class="num${
+      above ? " over" : ""
+    }" data-field="imbalance" data-value="${s.imbalance_percent}"${
+      above ? ' data-above-start="true"' : ""
+    }>${num(s.imbalance_percent, 3)} %${s.limits_met ? "" : " *"}</td>`;
+  const stepCell = (s: ChangeStep, span: number) =>
+    `<td class="num step" rowspan="${span}" data-step-number="${s.step}">${s.step}${
+      s.together ? `<br><span class="muted small" data-field="together">cut together</span>` : ""
+    }</td>`;
+  const reasons = steps.filter((s) => s.above_start);
+  const reasonNote = (s: ChangeStep) =>
+    `step ${s.step} is above today's imbalance${
+      s.above_start_reason ? `: ${s.above_start_reason}` : ""
+    }`;
+  if (options.sheet) {
+    const other = units.length === "mm" ? "in" : "mm";
+    const span = (s: ChangeStep) => (fresh ? changes.length : s.changes.length);
+    const rows = steps.map((s, k) =>
+      s.changes.map((c, i) =>
+        `<tr data-step="${c.step}" data-element="${esc(c.element)}">` +
+        (i === 0 ? stepCell(s, s.changes.length) : "") +
+        `<th scope="row">${esc(c.element)} <span class="muted">${
+          esc(c.dimension === "diameter" ? "⌀" : c.dimension)
+        }</span></th>` +
+        `<td class="num" data-field="from" data-mm="${c.from_mm}">${
+          formatLength(c.from_mm, units.length)
+        }</td>` +
+        `<td class="num" data-field="to" data-mm="${c.to_mm}"><strong>${
+          formatLength(c.to_mm, units.length)
+        } ${unitSymbol(units, "length")}</strong> <span class="muted">(${
+          formatLength(c.to_mm, other)
+        } ${other})</span></td>` +
+        `<td data-field="cutter">${esc(c.cutter)}</td>` +
+        `<td>${esc(c.mold_half)}</td>` +
+        `<td data-field="steel" data-action="${c.action}">${ACTION_WORDS[c.action].short}</td>` +
+        (i === 0 && (!fresh || k === 0)
+          ? imbalance(s.after, s.above_start).replace("<td ", `<td rowspan="${span(s)}" `) +
+            `<td class="shot" rowspan="${span(s)}" data-field="short-shot">${
+              shotCompact(s.step, s.after, units)
+            }</td>` +
+            `<td class="tick-box" rowspan="${span(s)}" aria-label="done">☐</td>`
+          : "") +
+        `</tr>`
+      ).join("")
+    ).join("");
+    const zero = start
+      ? `<tr data-step="0" class="start"><td class="num step">0</td><th scope="row" colspan="6">today's tool, before any cut</th>${
+        imbalance(start, false)
+      }<td class="shot" data-field="short-shot">${shotCompact(0, start, units)}</td><td></td></tr>`
+      : "";
+    const words = fresh
+      ? "“cut to”: a new tool, cut as drawn; the figures are the design with every size cut."
+      : "“enlarge”: steel-safe, metal is removed; ADD STEEL: weld or insert first. ▲ above today's imbalance.";
+    return `<table class="data changes sheet-steps" id="${id}"><thead><tr>` +
+      `<th scope="col">step</th><th scope="col">element</th><th scope="col">${
+        fresh ? "drawn" : "now"
+      }, ${unitSymbol(units, "length")}</th>` +
+      `<th scope="col">cut to</th><th scope="col">cutter</th><th scope="col">half</th>` +
+      `<th scope="col">steel</th><th scope="col">imbalance ${
+        fresh ? "all cut" : "after"
+      }</th><th scope="col">short shot: first full · lowest</th><th scope="col">done</th>` +
+      `</tr></thead><tbody>${zero}${rows}</tbody></table>` +
+      `<p class="note">* limits not yet met. ${words}</p>` +
+      (reasons.length
+        ? `<ul class="note step-reasons">${
+          reasons.map((s) =>
+            `<li data-step="${s.step}" data-above-start="true">${esc(reasonNote(s))}</li>`
+          ).join("")
+        }</ul>`
+        : "");
+  }
+  const sizes = (c: Change) =>
     `<td class="num" data-field="from" data-mm="${c.from_mm}">${
       esc(changeSizeText(c, "from", units))
     }</td>` +
     `<td class="num" data-field="to" data-mm="${c.to_mm}"><strong>${
       esc(changeSizeText(c, "to", units))
     }</strong></td>`;
-  if (options.sheet) {
-    const other = units.length === "mm" ? "in" : "mm";
-    const rows = changes.map((c) =>
+  const figures = (t: StepState, above: boolean, span: number) =>
+    [
+      imbalance(t, above),
+      `<td class="num" data-field="pressure" data-value="${t.feed_pressure_peak_MPa}">${
+        esc(formatPressure(t.feed_pressure_peak_MPa, units))
+      }</td>`,
+      `<td class="num" data-field="runner" data-value="${t.runner_volume_cm3}">${
+        esc(formatVolume(t.runner_volume_cm3, units))
+      }</td>`,
+      `<td>${t.limits_met ? "yes" : "no"}</td>`,
+    ].map((td) => td.replace("<td", `<td rowspan="${span}"`)).join("");
+  const columns = 13;
+  const rows = steps.map((s, k) =>
+    s.changes.map((c, i) =>
       `<tr data-step="${c.step}" data-element="${esc(c.element)}">` +
-      `<td class="num step">${c.step}</td>` +
-      `<th scope="row">${esc(c.element)} <span class="muted">${
-        esc(c.dimension === "diameter" ? "⌀" : c.dimension)
-      }</span></th>` +
-      `<td class="num" data-field="from" data-mm="${c.from_mm}">${
-        formatLength(c.from_mm, units.length)
-      }</td>` +
-      `<td class="num" data-field="to" data-mm="${c.to_mm}"><strong>${
-        formatLength(c.to_mm, units.length)
-      } ${unitSymbol(units, "length")}</strong> <span class="muted">(${
-        formatLength(c.to_mm, other)
-      } ${other})</span></td>` +
-      `<td data-field="cutter">${esc(c.cutter)}</td>` +
-      `<td>${esc(c.mold_half)}</td>` +
-      `<td data-field="steel">${c.steel_safe ? "enlarge" : "<strong>ADD STEEL</strong>"}</td>` +
-      `<td class="num" data-field="imbalance" data-value="${c.after_step.imbalance_percent}">${
-        num(c.after_step.imbalance_percent, 3)
-      } %${c.after_step.limits_met ? "" : " *"}</td>` +
-      `<td class="tick-box" aria-label="done">☐</td></tr>`
-    ).join("");
-    return `<table class="data changes sheet-steps" id="${id}"><thead><tr>` +
-      `<th scope="col">step</th><th scope="col">element</th><th scope="col">now, ${
-        unitSymbol(units, "length")
-      }</th>` +
-      `<th scope="col">cut to</th><th scope="col">cutter</th><th scope="col">half</th>` +
-      `<th scope="col">steel</th><th scope="col">imbalance after</th><th scope="col">done</th>` +
-      `</tr></thead><tbody>${rows}</tbody></table>` +
-      `<p class="note">* limits not yet met after this step. “enlarge”: steel-safe, metal is removed; ADD STEEL: weld or insert first.</p>`;
-  }
-  const rows = changes.map((c) => {
-    const t = c.after_step;
-    return `<tr data-step="${c.step}" data-element="${esc(c.element)}">` +
-      `<td class="num step">${c.step}</td>` +
+      (i === 0 ? stepCell(s, s.changes.length) : "") +
       `<th scope="row">${esc(c.element)}</th>` +
       `<td>${esc(c.kind)}, ${esc(c.section)}</td>` +
       `<td>${esc(c.dimension)}</td>` + sizes(c) +
       `<td data-field="cutter">${esc(c.cutter)}</td>` +
-      `<td data-field="steel">${STEEL_WORDS(c)}</td>` +
+      `<td data-field="steel" data-action="${c.action}">${ACTION_WORDS[c.action].full}</td>` +
       `<td>${esc(c.mold_half)}</td>` +
-      `<td class="num" data-field="imbalance" data-value="${t.imbalance_percent}">${
-        num(t.imbalance_percent, 3)
-      } %</td>` +
-      `<td class="num" data-field="pressure" data-value="${t.feed_pressure_peak_MPa}">${
-        esc(formatPressure(t.feed_pressure_peak_MPa, units))
-      }</td>` +
-      `<td class="num" data-field="runner" data-value="${t.runner_volume_cm3}">${
-        esc(formatVolume(t.runner_volume_cm3, units))
-      }</td>` +
-      `<td>${t.limits_met ? "yes" : "no"}</td>` +
-      `</tr>`;
-  }).join("");
+      (i === 0 && (!fresh || k === 0)
+        ? figures(s.after, s.above_start, fresh ? changes.length : s.changes.length)
+        : "") +
+      `</tr>`
+    ).join("") +
+    (s.above_start
+      ? `<tr class="step-note" data-step="${s.step}" data-above-start="true"><td colspan="${columns}">▲ ${
+        esc(reasonNote(s))
+      }</td></tr>`
+      : "")
+  ).join("");
+  const zero = start
+    ? `<tr data-step="0" class="start"><td class="num step">0</td><th scope="row" colspan="8">today's tool, before any cut</th>${
+      figures(start, false, 1)
+    }</tr>`
+    : "";
   return scrollBox(
     `<table class="data changes" id="${id}">` +
-      `<caption>Changes in order of work (each step simulated with every step before it)</caption>` +
+      `<caption>${
+        fresh
+          ? "Sizes to cut (a new tool: the figures are the design with every size cut)"
+          : "Changes in order of work (each step simulated with every step before it)"
+      }</caption>` +
       `<thead><tr><th scope="col">step</th><th scope="col">element</th><th scope="col">what</th>` +
-      `<th scope="col">size</th><th scope="col">before</th><th scope="col">after</th>` +
+      `<th scope="col">size</th><th scope="col">${fresh ? "drawn" : "before"}</th><th scope="col">${
+        fresh ? "cut to" : "after"
+      }</th>` +
       `<th scope="col">cutter</th><th scope="col">steel</th><th scope="col">mold half</th>` +
       `<th scope="col">imbalance after</th><th scope="col">peak pressure after</th>` +
       `<th scope="col">runner after</th><th scope="col">limits met</th>` +
-      `</tr></thead><tbody>${rows}</tbody></table>`,
-  );
+      `</tr></thead><tbody>${zero}${rows}</tbody></table>`,
+  ) + `<p class="note">* limits not yet met.</p>`;
+}
+
+/**
+ * The predicted short shot after each step, to weigh on the press: each cavity's fill and
+ * mass at the instant the first cavity is full, one row per step (step 0: today's tool). A new
+ * tool has one row, the design with every size cut.
+ */
+export function shortShotTableHtml(
+  opt: Pick<OptimizationResult, "changes" | "changes_start">,
+  units: DisplayUnits,
+  id = "short-shot-table",
+): string {
+  const fresh = newTool(opt.changes);
+  const steps = changeSteps(opt.changes);
+  const rows: { step: number; label: string; state: StepState }[] = [];
+  if (opt.changes_start && !fresh) {
+    rows.push({ step: 0, label: "0 today", state: opt.changes_start });
+  }
+  if (fresh) {
+    rows.push({ step: steps.at(-1)!.step, label: "all cut", state: steps.at(-1)!.after });
+  } else {
+    for (const s of steps) rows.push({ step: s.step, label: String(s.step), state: s.after });
+  }
+  const cavities = rows.find((r) => r.state.short_shot.length > 0)?.state.short_shot
+    .map((s) => s.cavity) ?? [];
+  if (rows.length === 0 || cavities.length === 0) return "";
+  const body = rows.map((r) => {
+    const byCavity = new Map(r.state.short_shot.map((s) => [s.cavity, s]));
+    const lowest = Math.min(...r.state.short_shot.map((s) => s.fill_percent));
+    return `<tr data-step="${r.step}"><th scope="row">${esc(r.label)}</th><td class="num">${
+      r.state.first_full_s === null ? "not simulated" : `${num(r.state.first_full_s, 3)} s`
+    }</td>` +
+      cavities.map((cavity) => {
+        const s = byCavity.get(cavity);
+        if (!s) return "<td>–</td>";
+        const low = r.state.short_shot.length > 1 && s.fill_percent === lowest;
+        return `<td class="num${low ? " low" : ""}" ${shotAttrs(r.step, s)}>${
+          num(s.fill_percent, 3)
+        } % <span class="muted">${esc(formatMass(s.mass_g, units, 3))}</span></td>`;
+      }).join("") + `</tr>`;
+  }).join("");
+  return scrollBox(
+    `<table class="data short-shots" id="${
+      esc(id)
+    }"><caption>Short shot to weigh after each step: each cavity's fill and mass when the first cavity is full (predicted)</caption><thead><tr><th scope="col">step</th><th scope="col">first full at</th>${
+      cavities.map((c) => `<th scope="col">${esc(c)}</th>`).join("")
+    }</tr></thead><tbody>${body}</tbody></table>`,
+  ) +
+    `<p class="note">Set the shot size so that the first cavity just fills, weigh each part and compare with its row before cutting the next step.</p>`;
+}
+
+/**
+ * An existing tool's fewest-changes table: for each number of sizes allowed to change, the
+ * best plan found (which sizes, imbalance, runner mass, limits), the plan taken marked. Empty
+ * for a new tool.
+ */
+export function frontTableHtml(
+  opt: Pick<OptimizationResult, "front">,
+  units: DisplayUnits,
+): string {
+  if (opt.front.length === 0) return "";
+  const rows = opt.front.map((p) =>
+    `<tr data-max-changes="${p.max_changes}" data-chosen="${p.chosen}"${
+      p.chosen ? ' class="chosen"' : ""
+    }><th scope="row">${p.max_changes === 0 ? "none" : `up to ${p.max_changes}`}</th>` +
+    `<td data-field="changed">${p.changed.length ? esc(p.changed.join(", ")) : "none"}</td>` +
+    cell(p.imbalance_percent, `${num(p.imbalance_percent, 3)} %`, { field: "imbalance" }) +
+    cell(p.runner_mass_g, formatMass(p.runner_mass_g, units, 3), { field: "runner" }) +
+    `<td data-field="limits">${p.limits_met ? "yes" : "no"}</td>` +
+    `<td data-field="chosen">${p.chosen ? "<strong>◀ plan taken</strong>" : ""}</td></tr>`
+  ).join("");
+  const chosen = opt.front.find((p) => p.chosen);
+  return scrollBox(
+    `<table class="data front" id="front-table"><caption>Fewest changes: the best plan found for each number of sizes allowed to change (sizes as calculated, before rounding to cutters)</caption><thead><tr><th scope="col">sizes allowed to change</th><th scope="col">which sizes change</th><th scope="col">imbalance</th><th scope="col">runner per shot</th><th scope="col">limits met</th><th scope="col"></th></tr></thead><tbody>${rows}</tbody></table>`,
+  ) +
+    `<p class="note">The plan taken is the first, with the fewest changes, that meets every limit${
+      chosen && !chosen.limits_met
+        ? "; none here meets them all, so the one that comes closest was taken"
+        : ""
+    }: each size more is more work on the tool.</p>`;
 }
 
 /** The x extent (s) the fill and press charts share: up to the later switchover. */
@@ -707,7 +945,7 @@ const STATUS_MEANING: Record<string, string> = {
   cancelled: "The search was stopped before it finished; these are the best sizes it had reached.",
 };
 
-const SLOPE_WORDS: Record<string, string> = {
+const SLOPE_WORDS: Record<SlopeSource, string> = {
   tangent: "carried by each simulation (tangent)",
   finite_difference: "by finite differences (one simulation per size)",
 };
@@ -720,11 +958,7 @@ export function verdictHtml(opt: OptimizationResult): string {
   const internals = [
     `<p>${esc(opt.reason)}</p>`,
     opt.snapping ? `<p>Cutters: ${esc(opt.snapping)}</p>` : "",
-    opt.simulations !== undefined
-      ? `<p>${opt.simulations} fill simulations${
-        opt.slopes ? `; slopes ${SLOPE_WORDS[opt.slopes] ?? esc(opt.slopes)}` : ""
-      }.</p>`
-      : "",
+    `<p>${opt.simulations} fill simulations; slopes ${SLOPE_WORDS[opt.slopes]}.</p>`,
   ].join("");
   return `<div class="verdict" data-status="${esc(opt.status)}"><p><strong>${
     esc(STATUS_WORDS[opt.status] ?? opt.status)
@@ -821,8 +1055,19 @@ export function changeSheetHtml(opt: OptimizationResult, options: ChangeSheetOpt
     ).join("") +
     `</div></section></div>` +
     `<div class="sheet-side">` +
-    `<section class="sheet-steps"><h3>Steps in order of work</h3><p class="muted small">Cut one step, shoot and weigh short shots, compare with the predicted imbalance, then decide on the next. Each step was simulated with every step before it.</p>${
-      changeTableHtml(opt.changes, u, { id: "sheet-changes", sheet: true })
+    `<section class="sheet-steps"><h3>${
+      newTool(opt.changes) ? "Sizes to cut" : "Steps in order of work"
+    }</h3><p class="muted small">${
+      newTool(opt.changes)
+        ? "A new tool: cut every size as listed, then shoot and weigh short shots against the predicted short shot."
+        : "Cut one step, shoot a short shot (the first cavity just full), weigh each part against the predicted short shot, then decide on the next. Each step was simulated with every step before it."
+    }</p>${
+      changeTableHtml(opt.changes, u, {
+        id: "sheet-changes",
+        sheet: true,
+        start: opt.changes_start,
+        omitted: opt.changes_omitted,
+      })
     }</section>` +
     `<section class="sheet-effect"><h3>Predicted effect</h3><table class="data compact"><thead><tr><th></th><th scope="col">before</th><th scope="col">after all steps</th></tr></thead><tbody>` +
     row("fill-time imbalance", `${num(b.imbalance_percent)} %`, `${num(a.imbalance_percent)} %`) +

@@ -17,7 +17,8 @@
 import assert from "node:assert/strict";
 import puppeteer, { type HTTPRequest, type Page } from "puppeteer-core";
 import { Proc, startService } from "./_processes.ts";
-import type { ChangeEntry, OptimizationResult, SimulationResult } from "../../src/page/wire.ts";
+import type { OptimizationResult, SimulationResult } from "../../src/page/wire.ts";
+import { change, optimization, stepState } from "../page/_fixtures.ts";
 
 const CHROMIUM = Deno.env.get("EVENFILL_CHROMIUM") ?? "/usr/bin/chromium";
 const SERVICE = new URL("../../src/service/main.ts", import.meta.url).pathname;
@@ -45,43 +46,45 @@ const overflow = (page: Page) =>
 const pdfPages = (pdf: Uint8Array) =>
   (new TextDecoder("latin1").decode(pdf).match(/\/Type\s*\/Page(?![a-zA-Z])/g) ?? []).length;
 
-function optimization(
+function plan(
   sim: SimulationResult,
-  status: string,
+  status: OptimizationResult["status"],
   steps: number,
   elements: string[],
 ): OptimizationResult {
-  const changes: ChangeEntry[] = Array.from({ length: steps }, (_, k) => ({
-    element: elements[k % elements.length],
-    kind: "runner",
-    section: "round",
-    dimension: "diameter",
-    from_mm: 5,
-    to_mm: 5.5 + 0.5 * (k % 3),
-    from_in: 5 / 25.4,
-    to_in: (5.5 + 0.5 * (k % 3)) / 25.4,
-    cutter: `${5.5 + 0.5 * (k % 3)} mm`,
-    steel_safe: true,
-    mold_half: "both",
-    step: k + 1,
-    after_step: {
-      imbalance_percent: 10 - k * 0.5,
-      feed_pressure_peak_MPa: 100,
-      runner_volume_cm3: 6,
-      limits_met: k === steps - 1,
-    },
-  }));
-  return {
-    format: "evenfill.optimization/1",
+  // the worst case for the printed page: step 0, a short shot per cavity after every step,
+  // the last two changes cut together, one step above today's imbalance with its reason
+  const state = (k: number) =>
+    stepState(
+      10 - k * 0.5,
+      sim.cavities.map((c, i) => [c.id, i === 0 ? 100 : 100 - i * 2.5 - k * 0.1, 12.5 - i]),
+      { limits_met: k === steps - 1 },
+    );
+  const changes = Array.from({ length: steps }, (_, k) => {
+    const size = 5.5 + 0.5 * (k % 3);
+    const together = steps > 2 && k >= steps - 2;
+    return change({
+      element: elements[k % elements.length],
+      from_mm: 5,
+      to_mm: size,
+      from_in: 5 / 25.4,
+      to_in: size / 25.4,
+      cutter: `${size} mm`,
+      step: together ? steps - 1 : k + 1,
+      cut_together: together,
+      above_start: k === 1,
+      above_start_reason: k === 1
+        ? "no single change, set of like changes or pair of changes left keeps the imbalance at or below 10.00 %: the lowest next is 10.40 %"
+        : null,
+      after_step: state(together ? steps - 1 : k),
+    });
+  });
+  return optimization(sim, {
     status,
     reason: "every limit met and no step the linear model trusts lowers the runner volume further",
-    would_need: [],
-    snapping: null,
-    before: sim,
-    after: sim,
     changes,
-    iterations: [],
-  };
+    changes_start: state(0),
+  });
 }
 
 /** Answer the page's job requests with `job` (status and result) instead of the service. */
@@ -218,9 +221,10 @@ Deno.test({
 
       // --- the 12-step change sheet prints on one landscape page, A4 and Letter
       const elements = [...(scenario.runners ?? []), ...scenario.gates].map((e) => e.id);
-      await fakeJob(page, { status: "done", result: optimization(sim, "converged", 12, elements) });
+      await fakeJob(page, { status: "done", result: plan(sim, "converged", 12, elements) });
       await page.click("#tab-sheet");
-      assert.equal(await page.$$eval("#sheet-changes tbody tr", (r) => r.length), 12);
+      assert.equal(await page.$$eval("#sheet-changes tbody tr[data-element]", (r) => r.length), 12);
+      assert.equal(await page.$$eval("#sheet-changes tbody tr[data-step='0']", (r) => r.length), 1);
       assert.match(await page.$eval("#sheet-layout", (el) => el.outerHTML), /data-scale="/);
       await page.emulateMediaType("print");
       await page.setViewport({ width: 1123, height: 794 }); // A4 landscape at 96 px/in
@@ -235,7 +239,7 @@ Deno.test({
       }
       const printed = await page.evaluate(() => ({
         layout: !!document.querySelector("#sheet #sheet-layout"),
-        steps: document.querySelectorAll("#sheet-changes tbody tr").length,
+        steps: document.querySelectorAll("#sheet-changes tbody tr[data-element]").length,
         cautions: document.querySelectorAll("#sheet .cautions li").length,
         signoff: document.querySelectorAll("#sheet .signoff .sign").length,
         revision: document.querySelector("#sheet .rev-block")?.textContent ?? "",
@@ -263,13 +267,13 @@ Deno.test({
       // --- a cancelled job that wrote its best design shows it, labelled
       await fakeJob(page, {
         status: "cancelled",
-        result: optimization(sim, "iteration_limit", 3, elements),
+        result: plan(sim, "iteration_limit", 3, elements),
       });
       await page.click("#tab-results");
       const title = await page.$eval(".run-title", (el) => el.textContent ?? "");
       assert.match(title, /cancelled — best design so far/);
       assert.match(await page.$eval(".verdict", (el) => el.textContent ?? ""), /Cancelled/);
-      assert.equal(await page.$$eval("#change-table tbody tr", (r) => r.length), 3);
+      assert.equal(await page.$$eval("#change-table tbody tr[data-element]", (r) => r.length), 3);
       // the optimizer's own words stay behind the advanced fold
       const reasonOpen = await page.$eval(
         ".verdict details.advanced",

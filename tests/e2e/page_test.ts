@@ -259,7 +259,8 @@ Deno.test({
 
       const job: Job = await (await fetch(`${service.base}/api/jobs/${jobId}`)).json();
       assert.equal(job.status, "done");
-      const result = job.result!;
+      assert.ok(job.result?.format === "evenfill.optimization/1", "an optimization's result");
+      const result = job.result;
 
       // per-cavity numbers on the page equal the API's
       for (const which of ["before", "after"] as const) {
@@ -294,30 +295,40 @@ Deno.test({
         }
       }
       // the change list equals the API's, in order
-      const rows = await page.$$eval("#change-table tbody tr", (trs) =>
-        trs.map((tr) => {
-          const t = tr as HTMLElement;
-          const q = (f: string) => t.querySelector(`[data-field='${f}']`) as HTMLElement;
-          return {
-            step: Number(t.dataset.step),
-            element: t.dataset.element,
-            from_mm: Number(q("from").dataset.mm),
-            to_mm: Number(q("to").dataset.mm),
-            to_text: q("to").textContent,
-            cutter: q("cutter").textContent,
-            imbalance: Number(q("imbalance").dataset.value),
-          };
-        }));
+      const rows = await page.$$eval(
+        "#change-table tbody tr[data-element]",
+        (trs) =>
+          trs.map((tr) => {
+            const t = tr as HTMLElement;
+            const q = (f: string) => t.querySelector(`[data-field='${f}']`) as HTMLElement;
+            return {
+              step: Number(t.dataset.step),
+              element: t.dataset.element,
+              from_mm: Number(q("from").dataset.mm),
+              to_mm: Number(q("to").dataset.mm),
+              to_text: q("to").textContent,
+              cutter: q("cutter").textContent,
+              action: q("steel").dataset.action,
+            };
+          }),
+      );
       assert.deepEqual(
-        rows.map((r) => [r.step, r.element, r.from_mm, r.to_mm, r.cutter, r.imbalance]),
-        result.changes.map((c) => [
-          c.step,
-          c.element,
-          c.from_mm,
-          c.to_mm,
-          c.cutter,
-          c.after_step.imbalance_percent,
-        ]),
+        rows.map((r) => [r.step, r.element, r.from_mm, r.to_mm, r.cutter, r.action]),
+        result.changes.map((c) => [c.step, c.element, c.from_mm, c.to_mm, c.cutter, c.action]),
+      );
+      // the imbalance after each step once (a new tool's: the design with every size cut, once)
+      const imbalances = await page.$$eval(
+        "#change-table tbody tr[data-element] [data-field='imbalance']",
+        (tds) => tds.map((td) => Number((td as HTMLElement).dataset.value)),
+      );
+      const stepEnds = result.changes.filter((c, k, all) =>
+        k === all.length - 1 || all[k + 1].step !== c.step
+      );
+      assert.deepEqual(
+        imbalances,
+        result.changes.every((c) => c.action === "cut_to")
+          ? [result.changes[0].after_step.imbalance_percent]
+          : stepEnds.map((c) => c.after_step.imbalance_percent),
       );
       assert.ok(rows.length > 0, "the demo's optimization proposes changes");
       const cautions = await page.$$eval("#results-body .cautions li", (li) => li.length);
@@ -354,7 +365,7 @@ Deno.test({
         masthead: getComputedStyle(document.querySelector(".masthead")!).display,
         tabs: getComputedStyle(document.querySelector(".tabs")!).display,
         sheet: getComputedStyle(document.getElementById("sheet")!).display,
-        rows: document.querySelectorAll("#sheet-changes tbody tr").length,
+        rows: document.querySelectorAll("#sheet-changes tbody tr[data-element]").length,
         signoff: document.querySelectorAll(".signoff .sign").length,
       }));
       assert.equal(printed.masthead, "none");

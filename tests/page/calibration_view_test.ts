@@ -10,7 +10,8 @@ import {
   windowViewHtml,
 } from "../../src/page/calibration_view.ts";
 import { METRIC_UNITS } from "../../src/page/display_units.ts";
-import type { CalibrationResult, ChangeEntry, WindowJobResult } from "../../src/page/wire.ts";
+import type { CalibrationResult, WindowJobResult } from "../../src/page/wire.ts";
+import { change } from "./_fixtures.ts";
 
 const US = { ...METRIC_UNITS, length: "in" as const, temperature: "F" as const };
 const tool = {
@@ -105,9 +106,9 @@ Deno.test("after design: the change list cut into the scenario; a runner's width
     gates: [{ id: "G1", thickness_mm: 1 }],
   };
   const changes = [
-    { element: "R1", kind: "runner", dimension: "diameter", to_mm: 5 },
-    { element: "G1", kind: "gate", dimension: "thickness", to_mm: 1.2 },
-  ] as ChangeEntry[];
+    change({ element: "R1", kind: "runner", dimension: "diameter", from_mm: 4, to_mm: 5 }),
+    change({ element: "G1", kind: "gate", dimension: "thickness", from_mm: 1, to_mm: 1.2 }),
+  ];
   const after = scenarioAfterChanges(scenario, changes);
   assert.equal(after.runners[0].diameter_mm, 5);
   assertClose(after.runners[0].width_mm, 6.25, { rel: 1e-12 });
@@ -122,8 +123,8 @@ Deno.test("window view: a range bar per design, thousands separators, the bigges
     points: [],
     imbalance_range_percent: [lo, hi] as [number, number],
     gate_shear_range_1_s: [12000, 31500] as [number, number],
-    effects: [{ factor: "rate", imbalance_points: -1.5 }, {
-      factor: "melt",
+    effects: [{ factor: "rate" as const, imbalance_points: -1.5 }, {
+      factor: "melt" as const,
       imbalance_points: 0.2,
     }],
     failures: [],

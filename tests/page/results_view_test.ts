@@ -1,7 +1,6 @@
 import assert from "node:assert/strict";
 import { simulateScenario } from "../../src/network/simulate_scenario.ts";
 import { resultJson } from "../../src/report/result_json.ts";
-import type { optimizationJson } from "../../src/report/optimization_report.ts";
 import { formatNumber, METRIC_UNITS } from "../../src/page/display_units.ts";
 import {
   cavityTableHtml,
@@ -11,22 +10,20 @@ import {
   elementTableHtml,
   fillChartSvg,
   fillsAfterSwitchover,
+  frontTableHtml,
   pathPressureSvg,
   pathProfiles,
   pressChartsSvg,
+  shortShotTableHtml,
   summaryHtml,
   velocityPhase,
   verdictHtml,
   warningsHtml,
 } from "../../src/page/results_view.ts";
-import type { ChangeEntry, OptimizationResult, SimulationResult } from "../../src/page/wire.ts";
+import type { SimulationResult } from "../../src/page/wire.ts";
 import { assertClose } from "../assert_close.ts";
 import { singleLine } from "../network/_scenarios.ts";
-
-// The page's wire types must accept what the report module produces: checked when this file
-// type-checks (the result JSON by the typed assignment in `simulated` below).
-type Fits<A, B> = A extends B ? true : false;
-const _optimizationFits: Fits<ReturnType<typeof optimizationJson>, OptimizationResult> = true;
+import { change as changeOf, optimization, stepState } from "./_fixtures.ts";
 
 const scenario = JSON.parse(
   await Deno.readTextFile(new URL("../../scenarios/family_four_housing.json", import.meta.url)),
@@ -88,33 +85,17 @@ Deno.test("charts and summary render for a simulation", () => {
   assert.ok(warningsHtml(r).includes("gate_shear_over_limit"));
 });
 
-const change: ChangeEntry = {
-  element: "R4",
-  kind: "runner",
-  section: "round",
-  dimension: "diameter",
-  from_mm: 5,
-  to_mm: 7,
-  from_in: 0.19685,
-  to_in: 0.27559,
-  cutter: "7 mm",
-  steel_safe: true,
-  mold_half: "both",
-  step: 1,
-  after_step: {
-    imbalance_percent: 8.592,
-    feed_pressure_peak_MPa: 105.83,
-    runner_volume_cm3: 6.6488,
-    limits_met: false,
-  },
-};
+const change = changeOf();
 
 Deno.test("change list: mm and inch side by side, cutter, steel, effect of the step", () => {
   assert.equal(changeSizeText(change, "to", units), "7 mm (0.2756 in)");
   // from_in 0.19685 is already rounded; 5 mm = 0.196850… in rounds once to 0.1969
   assert.equal(changeSizeText(change, "from", units), "5 mm (0.1969 in)");
   assert.equal(changeSizeText(change, "to", { ...units, length: "in" }), "0.2756 in (7 mm)");
-  const html = changeTableHtml([change, { ...change, step: 2, steel_safe: false }], units);
+  const html = changeTableHtml([
+    change,
+    changeOf({ step: 2, action: "add_steel", steel_safe: false }),
+  ], units);
   assert.ok(html.includes('data-step="1" data-element="R4"'));
   assert.ok(html.includes("7 mm"));
   assert.ok(html.includes("ADD STEEL"));
@@ -123,17 +104,7 @@ Deno.test("change list: mm and inch side by side, cutter, steel, effect of the s
 
 Deno.test("change sheet: header, layout, changes, effect, cautions, sign-off", () => {
   const r = simulated();
-  const opt: OptimizationResult = {
-    format: "evenfill.optimization/1",
-    status: "converged",
-    reason: "imbalance within target",
-    would_need: [],
-    snapping: null,
-    before: r,
-    after: r,
-    changes: [change],
-    iterations: [],
-  };
+  const opt = optimization(r, { reason: "imbalance within target", changes: [change] });
   const html = changeSheetHtml(opt, {
     toolName: "Four-part housing",
     date: "2026-12-02",
@@ -149,18 +120,7 @@ Deno.test("change sheet: header, layout, changes, effect, cautions, sign-off", (
 
 Deno.test("verdict: says how many simulations the optimizer ran and where its slopes came from", () => {
   const r = simulated();
-  const opt: OptimizationResult = {
-    format: "evenfill.optimization/1",
-    status: "converged",
-    reason: "every limit met",
-    would_need: [],
-    snapping: null,
-    before: r,
-    after: r,
-    changes: [],
-    iterations: [],
-  };
-  assert.ok(!verdictHtml(opt).includes("fill simulations"), "nothing claimed when not reported");
+  const opt = optimization(r, { reason: "every limit met" });
   const html = verdictHtml({ ...opt, simulations: 42, slopes: "finite_difference" });
   assert.ok(html.includes("42 fill simulations"));
   assert.ok(html.includes("finite differences (one simulation per size)"));
@@ -246,17 +206,11 @@ Deno.test("element table: every runner and gate with drop, shear, heating, froze
 
 Deno.test("change sheet: stale marks it on screen and in print; cancelled says best design so far", () => {
   const r = simulated();
-  const opt: OptimizationResult = {
-    format: "evenfill.optimization/1",
+  const opt = optimization(r, {
     status: "cancelled",
     reason: "no step the linear model trusts",
-    would_need: [],
-    snapping: null,
-    before: r,
-    after: r,
     changes: [change],
-    iterations: [],
-  };
+  });
   const options = { toolName: "T", date: "2026-12-02", layout: "", units };
   const fresh = changeSheetHtml(opt, options);
   assert.match(fresh, /data-stale="false"/);
@@ -272,4 +226,201 @@ Deno.test("change sheet: stale marks it on screen and in print; cancelled says b
   assert.doesNotMatch(fresh, /linear model/);
   const verdict = verdictHtml(opt);
   assert.ok(verdict.indexOf("linear model") > verdict.indexOf("<details"));
+});
+
+// ---- the change list as the optimization JSON now gives it (actions, steps, short shots)
+
+/** Rows of a table body as HTML strings, `<tr …>` through `</tr>`. */
+const rowsOf = (html: string) => html.match(/<tr\b[^>]*>.*?<\/tr>/gs) ?? [];
+
+const shots = (a: number, b: number): [string, number, number][] => [
+  ["A1", 100, 12.345],
+  ["B2", a, 10.5],
+  ["C3", b, 8.25],
+];
+
+/** An existing tool's plan: step 0, R1 alone, R2+R3 cut together, G1 above today's. */
+function existingPlan(r: SimulationResult) {
+  const after = (imbalance: number, a: number, b: number) => stepState(imbalance, shots(a, b));
+  return optimization(r, {
+    changes_start: after(9.5, 93.1, 90.2),
+    changes: [
+      changeOf({ element: "R1", step: 1, after_step: after(6.25, 95.5, 92.75) }),
+      changeOf({ element: "R2", step: 2, cut_together: true, after_step: after(3.5, 97, 96.5) }),
+      changeOf({ element: "R3", step: 2, cut_together: true, after_step: after(3.5, 97, 96.5) }),
+      changeOf({
+        element: "G1",
+        kind: "gate",
+        dimension: "thickness",
+        action: "add_steel",
+        steel_safe: false,
+        step: 3,
+        above_start: true,
+        above_start_reason: "no single change left keeps the imbalance at or below 9.50 %",
+        after_step: after(10.75, 91.25, 89.5),
+      }),
+    ],
+    front: [
+      {
+        max_changes: 1,
+        changed: ["R1"],
+        imbalance_percent: 6.2,
+        runner_mass_g: 7.5,
+        limits_met: false,
+        change_cost: 1,
+        chosen: false,
+      },
+      {
+        max_changes: 2,
+        changed: ["R1", "G1"],
+        imbalance_percent: 2.9,
+        runner_mass_g: 8.125,
+        limits_met: true,
+        change_cost: 2,
+        chosen: true,
+      },
+      {
+        max_changes: 4,
+        changed: ["R1", "R2", "R3", "G1"],
+        imbalance_percent: 1.1,
+        runner_mass_g: 8.5,
+        limits_met: true,
+        change_cost: 4,
+        chosen: false,
+      },
+    ],
+  });
+}
+
+/** A new tool: three sizes cut as drawn, each carrying the final design. */
+function newToolPlan(r: SimulationResult) {
+  const final = stepState(1.5, shots(99.5, 98.75));
+  return optimization(r, {
+    changes: ["R1", "R2", "G1"].map((element, k) =>
+      changeOf({ element, step: k + 1, action: "cut_to", steel_safe: true, after_step: final })
+    ),
+  });
+}
+
+Deno.test("a new tool's change list and sheet say 'cut to', never enlarge or add steel", () => {
+  const opt = newToolPlan(simulated());
+  const options = { toolName: "T", date: "2026-12-02", layout: "", units };
+  for (
+    const html of [
+      changeTableHtml(opt.changes, units),
+      changeTableHtml(opt.changes, units, { sheet: true }),
+      changeSheetHtml(opt, options),
+    ]
+  ) {
+    assert.equal((html.match(/data-action="cut_to"/g) ?? []).length, 3);
+    assert.equal((html.match(/>cut to</g) ?? []).length >= 3, true, "'cut to' on every line");
+    assert.doesNotMatch(html, /add steel|enlarge|steel-safe/i);
+  }
+  // the final design's figures once, not once per size
+  const sheet = changeTableHtml(opt.changes, units, { sheet: true });
+  assert.equal((sheet.match(/data-field="imbalance"/g) ?? []).length, 1);
+  assert.match(sheet, /rowspan="3"[^>]*data-field="imbalance" data-value="1.5"/);
+});
+
+Deno.test("changes cut together: one step, one number, marked 'cut together'", () => {
+  const opt = existingPlan(simulated());
+  for (const sheet of [false, true]) {
+    const html = changeTableHtml(opt.changes, units, { sheet, start: opt.changes_start });
+    const numbers = [...html.matchAll(/data-step-number="(\d+)"/g)].map((m) => m[1]);
+    assert.deepEqual(numbers, ["1", "2", "3"], `sheet ${sheet}: one number per step`);
+    const step2 = rowsOf(html).filter((row) => row.includes('data-step="2"'));
+    assert.equal(step2.filter((row) => row.includes("data-element")).length, 2, "both changes");
+    assert.match(step2[0], /rowspan="2" data-step-number="2">2<br>.*cut together/);
+    assert.doesNotMatch(step2[1], /data-step-number|cut together/);
+    assert.equal((html.match(/cut together/g) ?? []).length, 1);
+    // the step's imbalance once, for both of its changes
+    assert.equal(step2.join("").match(/data-field="imbalance"/g)?.length, 1);
+  }
+});
+
+Deno.test("a step above today's imbalance is flagged with its reason; today's tool is step 0", () => {
+  const opt = existingPlan(simulated());
+  const reason = opt.changes[3].above_start_reason!;
+  for (const sheet of [false, true]) {
+    const html = changeTableHtml(opt.changes, units, { sheet, start: opt.changes_start });
+    assert.match(html, /data-field="imbalance" data-value="10.75" data-above-start="true"/);
+    assert.equal((html.match(/data-above-start="true"/g) ?? []).length, 2, "the cell and a note");
+    assert.ok(
+      html.includes(`step 3 is above today&#39;s imbalance: ${reason}`) ||
+        html.includes(`step 3 is above today's imbalance: ${reason}`),
+      `sheet ${sheet}`,
+    );
+    const zero = rowsOf(html).find((row) => row.includes('data-step="0"'))!;
+    assert.match(zero, /today's tool/);
+    assert.match(zero, /data-field="imbalance" data-value="9.5"/);
+  }
+  const steps = changeTableHtml(opt.changes, units, { start: opt.changes_start });
+  assert.doesNotMatch(steps.replace(/data-step="3"[^]*?<\/tr>/g, ""), /above today/);
+});
+
+Deno.test("short shot after each step: every cell is the JSON's fill % and mass", () => {
+  const opt = existingPlan(simulated());
+  const html = shortShotTableHtml(opt, units);
+  const cells = [...html.matchAll(
+    /data-step="(\d+)" data-cavity="([^"]+)" data-fill="([^"]+)" data-mass-g="([^"]+)">([^<]*)<span class="muted">([^<]*)</g,
+  )];
+  const states = [
+    opt.changes_start!,
+    ...opt.changes.filter((c, k, all) => k === all.length - 1 || all[k + 1].step !== c.step).map((
+      c,
+    ) => c.after_step),
+  ];
+  const expected = states.flatMap((s, k) =>
+    s.short_shot.map((c) => [String([0, 1, 2, 3][k]), c.cavity, c.fill_percent, c.mass_g])
+  );
+  assert.equal(cells.length, expected.length, "one cell per cavity and step, step 0 included");
+  cells.forEach((m, k) => {
+    const [step, cavity, fill, mass] = expected[k];
+    assert.deepEqual([m[1], m[2], Number(m[3]), Number(m[4])], [step, cavity, fill, mass]);
+    assert.equal(m[5].trim(), `${formatNumber(fill as number, 3)} %`);
+    assert.equal(m[6], `${formatNumber(mass as number, 3)} g`);
+  });
+  // US units: the mass in ounces (28.349523125 g per oz, the international avoirdupois ounce)
+  const us = shortShotTableHtml(opt, { ...units, length: "in" });
+  assert.match(
+    us,
+    /data-cavity="A1" data-fill="100" data-mass-g="12.345">100 % <span class="muted">0.435 oz</,
+  );
+  // the printed sheet: the first cavity full and the lowest, per step
+  const sheet = changeTableHtml(opt.changes, units, { sheet: true, start: opt.changes_start });
+  const step1 = rowsOf(sheet).find((row) => row.includes('data-step="1"'))!;
+  assert.match(step1, /data-cavity="A1"[^>]*>A1 full<\/span>/);
+  assert.match(step1, /data-cavity="C3" data-fill="92.75" data-mass-g="8.25">C3 92.8 % 8.25 g</);
+  // a new tool: one row, the design with every size cut
+  const fresh = shortShotTableHtml(newToolPlan(simulated()), units);
+  assert.equal(rowsOf(fresh).filter((row) => row.includes("data-step=")).length, 1);
+  assert.match(fresh, /all cut/);
+});
+
+Deno.test("fewest changes: one row per number of changes, exactly one marked as the plan taken", () => {
+  const opt = existingPlan(simulated());
+  const html = frontTableHtml(opt, units);
+  const rows = rowsOf(html).filter((row) => row.includes("data-max-changes"));
+  assert.equal(rows.length, 3);
+  const chosen = rows.filter((row) => row.includes('data-chosen="true"'));
+  assert.equal(chosen.length, 1);
+  assert.match(chosen[0], /data-max-changes="2"/);
+  assert.match(chosen[0], /R1, G1/);
+  assert.equal((html.match(/plan taken/g) ?? []).length, 2, "the mark and the sentence");
+  assert.match(html, /first, with the fewest changes, that meets every limit/);
+  assert.match(rows[1], /data-field="runner" data-value="8.125">8.13 g/);
+  assert.match(frontTableHtml(opt, { ...units, length: "in" }), /0.287 oz/);
+  assert.equal(frontTableHtml(newToolPlan(simulated()), units), "", "nothing for a new tool");
+});
+
+Deno.test("no change list: the reason in plain words", () => {
+  const opt = optimization(simulated(), {
+    status: "cancelled",
+    changes_omitted: "cancelled by request before the change plan",
+  });
+  const html = changeTableHtml(opt.changes, units, { omitted: opt.changes_omitted });
+  assert.match(html, /No change list: the run was cancelled by request before the change plan/);
+  const sheet = changeSheetHtml(opt, { toolName: "T", date: "2026-12-02", layout: "", units });
+  assert.match(sheet, /No change list: the run was cancelled by request/);
+  assert.match(changeTableHtml([], units), /No change proposed/);
 });
