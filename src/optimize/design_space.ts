@@ -238,12 +238,17 @@ export function designSpace(scenario: Scenario): DesignSpace {
       ]);
     }
     if (limits.runnerCeiling !== undefined) {
-      const rule = limits.runnerCeiling;
+      // Where the cooling ceiling falls under the wall rule's floor (thin walls: 1.5 × a part's
+      // cooling time allows a runner of about 1.7 × its wall), the floor wins: a runner that
+      // froze before its part could not pack it, which matters more than the cycle; the
+      // runner then stays at the floor, where it lengthens the cycle least.
+      const floor = rules.runner_over_wall && w !== undefined ? mmToM(runnerFloorMm(w)) : 0;
+      const rule = Math.max(limits.runnerCeiling, floor);
       upper.push([
         ceiling(rule, mmToM(d)),
         `runner cooling ≤ ${scenario.goals.max_runner_cooling_ratio} × thickest part or the sprue's rule (runner_cooling)${
-          broken(rule, mmToM(d), true)
-        }`,
+          rule > limits.runnerCeiling ? ", lifted to the wall rule's floor" : ""
+        }${broken(rule, mmToM(d), true)}`,
         "strict_rule",
       ]);
     }
