@@ -13,6 +13,7 @@ import type { ScenarioIssue } from "./wire/issue.ts";
 import type { Scenario } from "./model/scenario_schema.ts";
 import { checkScenario, LIBRARY_MATERIAL_IDS, runScenario } from "./network/simulate_scenario.ts";
 import { calibrate } from "./calibrate/calibrate.ts";
+import { calibrationJson } from "./report/calibration_json.ts";
 import type { CalibrationFactor } from "./calibrate/factors.ts";
 import { processWindow } from "./window/process_window.ts";
 import { fillHistoryCsv } from "./report/fill_csv.ts";
@@ -107,40 +108,6 @@ function parseFactors(text: string): CalibrationFactor[] | string {
     else return `--factors: "${part}" is not viscosity, melt, gate:<id> or runner:<id>`;
   }
   return factors.length > 0 ? factors : "--factors: give at least one factor";
-}
-
-function calibrationJson(fit: Extract<ReturnType<typeof calibrate>, { ok: true }>) {
-  return {
-    format: "evenfill.calibration/1",
-    stopped_because: fit.stoppedBecause,
-    iterations: fit.iterations,
-    simulations: fit.simulations,
-    cost_before: fit.costBefore,
-    cost_after: fit.costAfter,
-    factors: fit.factors.map((f) => ({
-      name: f.name,
-      value: f.value,
-      standard_error: f.standardError,
-      identified: f.identified,
-      at_bound: f.atBound,
-    })),
-    residuals: fit.residuals.map((r) => ({
-      shot: r.shot,
-      cavity: r.cavity,
-      injected_cm3: r.injectedCm3,
-      measured_fill_percent: 100 * r.measured,
-      before_fill_percent: 100 * r.before,
-      after_fill_percent: 100 * r.after,
-    })),
-    pressure: fit.pressure
-      ? {
-        measured_MPa: fit.pressure.measuredMPa,
-        before_MPa: fit.pressure.beforeMPa,
-        after_MPa: fit.pressure.afterMPa,
-      }
-      : undefined,
-    calibrated: fit.calibrated,
-  };
 }
 
 function calibrationText(
