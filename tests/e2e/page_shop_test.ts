@@ -84,6 +84,15 @@ function plan(
     reason: "every limit met and no step the linear model trusts lowers the runner volume further",
     changes,
     changes_start: state(0),
+    front: [1, 2].map((k) => ({
+      max_changes: k,
+      changed: elements.slice(0, k),
+      imbalance_percent: 8 - 3 * k,
+      runner_mass_g: 8 + k,
+      limits_met: k === 2,
+      change_cost: k,
+      chosen: k === 2,
+    })),
   });
 }
 
@@ -274,6 +283,16 @@ Deno.test({
       assert.match(title, /cancelled — best design so far/);
       assert.match(await page.$eval(".verdict", (el) => el.textContent ?? ""), /Cancelled/);
       assert.equal(await page.$$eval("#change-table tbody tr[data-element]", (r) => r.length), 3);
+      // an existing tool's fewest-changes table, the plan taken marked once
+      assert.deepEqual(
+        await page.$$eval("#front-table tbody tr", (r) => r.map((x) => x.dataset.chosen)),
+        ["false", "true"],
+      );
+      // short shots: step 0, step 1, step 2 (the last two changes, cut together)
+      assert.deepEqual(
+        await page.$$eval("#short-shot-table tbody tr", (r) => r.map((x) => x.dataset.step)),
+        ["0", "1", "2"],
+      );
       // the optimizer's own words stay behind the advanced fold
       const reasonOpen = await page.$eval(
         ".verdict details.advanced",
