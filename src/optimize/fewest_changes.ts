@@ -82,8 +82,8 @@ export interface FewestChangesFront {
 const COST_WEIGHT = 0.05;
 /** Iterations of each k's re-balance: a handful of sizes from today's design. */
 const FRONT_ITERATIONS = 15;
-/** The front ends after this many more changes in a row bought nothing. */
-const STALLED_CHANGES = 2;
+/** The front ends after this many more changes in a row moved neither the balance nor the limits. */
+const STALLED_CHANGES = 3;
 /** The program's slacks weigh this many times the step LP's penalty: limits come first. */
 const LIMITS_FIRST = 100;
 /** Default costs of `goals.change_costs` (kept in step with the schema's defaults). */
@@ -237,10 +237,14 @@ export async function fewestChangeFront(
     return { points: [none], chosen: none, neededChanges: 0, simulations: 0 };
   }
   // Nested plans: each k keeps the sizes the last one changed and adds at least one, chosen
-  // on the linear model at the best plan so far (today's model misjudges large changes).
+  // on the linear model where the last plan landed (today's model misjudges large changes).
+  // The search goes on from each plan even when it is no better than an earlier one (opening
+  // one gate can push the others' shear up until they are all opened); the front reports the
+  // best so far.
   let base = today;
   let baseSlopes = slopes;
   let explored: number[] = [];
+  let last: FrontPoint | undefined;
   const progress = new FrontProgress(options.onProgress);
   let stalled = 0;
   for (let k = 1; k <= n; k++) {
@@ -251,29 +255,27 @@ export async function fewestChangeFront(
       break;
     }
     explored = pick.chosen;
-    const previous = points.at(-1);
     progress.simulations = (options.simulationsBefore ?? 0) + simulations;
-    let point = await balanceChanges(
+    // Each re-balance starts from the last plan (the sizes it adds at today's); the first
+    // starts where the program proposes.
+    const tried = await balanceChanges(
       space,
       today,
       pick.chosen,
-      pick.proposal,
+      last?.x ?? pick.proposal,
       k,
       options,
       progress,
     );
-    if (point) simulations += point.simulations;
-    // A plan with fewer changes is a plan with at most k: the front never gets worse.
-    if (previous && (!point || !better(point, previous, epsilon, today.runnerVolume))) {
-      point = { ...previous, changes: k, simulations: 0 };
-      if (++stalled >= STALLED_CHANGES) {
-        points.push(point);
-        break;
-      }
-    } else if (point && !point.feasible) {
-      stalled = 0;
+    if (!tried) continue;
+    simulations += tried.simulations;
+    const moved = !last || tried.imbalancePercent < last.imbalancePercent - 1e-6 ||
+      better(tried, last, epsilon, today.runnerVolume);
+    stalled = moved ? 0 : stalled + 1;
+    last = tried;
+    if (!tried.feasible) {
       // The next choice is linearised where this plan landed (one simulation with its tangent).
-      const again = evaluateDesign(space, point.x, { slopes: true });
+      const again = evaluateDesign(space, tried.x, { slopes: true });
       simulations++;
       const s = again.ok ? slopesAt(space, again.evaluation, options) : undefined;
       if (s) simulations += s.simulations;
@@ -282,16 +284,21 @@ export async function fewestChangeFront(
         baseSlopes = s;
       }
     }
-    if (!point) continue;
+    // A plan with fewer changes is a plan with at most k: the front never gets worse.
+    const previous = points.at(-1);
+    const point = previous && !better(tried, previous, epsilon, today.runnerVolume)
+      ? { ...previous, changes: k, simulations: 0 }
+      : tried;
     points.push(point);
     if (point.feasible) {
       neededChanges ??= point.elements.length;
       if (!chosen && point.elements.length <= limit) chosen = point;
     }
-    // Stop one past the first k that meets every limit, or one past the bound.
+    // Stop one past the first k that meets every limit, or one past the bound, or when
+    // several more changes in a row moved neither the balance nor the limits.
     const firstFeasible = points.findIndex((p) => p.feasible);
     if (firstFeasible >= 0 && points.length - 1 > firstFeasible) break;
-    if (k > limit) break;
+    if (k > limit || stalled >= STALLED_CHANGES) break;
   }
   return { points, chosen, neededChanges, simulations };
 }

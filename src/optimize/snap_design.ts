@@ -77,8 +77,17 @@ export interface SnapDesignOptions {
 }
 
 /**
- * Whether snapped design `a` is to be kept over `b`: meeting every limit comes first, then
- * the lower `merit` (by more than 1e-9).
+ * Two designs that both meet every limit and whose cold runners differ by less than this share
+ * of their volume (a gate step is a few thousandths of it) are ranked by balance, not volume:
+ * the shop does not see 0.1 % of a runner, it does see a percentage point of imbalance. Our own
+ * judgement, no source.
+ */
+export const VOLUME_TIE_SHARE = 1e-3;
+
+/**
+ * Whether snapped design `a` is to be kept over `b`: meeting every limit comes first; between
+ * two that meet them and weigh the same to {@link VOLUME_TIE_SHARE}, the better balanced;
+ * else the lower `merit` (by more than 1e-9).
  */
 export function snappedBetter(
   a: DesignEvaluation,
@@ -86,6 +95,12 @@ export function snappedBetter(
   merit: (e: DesignEvaluation) => number,
 ): boolean {
   if (a.feasible !== b.feasible) return a.feasible;
+  const heavier = Math.max(a.runnerVolume, b.runnerVolume);
+  if (a.feasible && Math.abs(a.runnerVolume - b.runnerVolume) <= VOLUME_TIE_SHARE * heavier) {
+    if (Math.abs(a.imbalancePercent - b.imbalancePercent) > 1e-6) {
+      return a.imbalancePercent < b.imbalancePercent;
+    }
+  }
   return merit(a) < merit(b) - 1e-9;
 }
 
