@@ -2710,7 +2710,8 @@
       hash: scenarioHash(text),
       sourceLabel: sourceLabel(),
       meltTemperature_C: s.process?.melt_temperature_C ?? null,
-      switchoverPercent: s.process?.switchover_percent ?? 98
+      switchoverPercent: s.process?.switchover_percent ?? 98,
+      holdTime_s: s.process?.hold_time_s ?? null
     };
     state.stale = false;
   }
@@ -3402,8 +3403,8 @@
       id: "change-table",
       start: opt.changes_start,
       omitted: opt.changes_omitted
-    })}${shortShotTableHtml(opt, u)}</section>` + (opt.front.length ? `<section class="block" id="front-panel"><h3>Fewest changes</h3>${frontTableHtml(opt, u)}</section>` : "") : "") + `<section class="block"><h3>Runners and gates</h3><p class="hold"><label for="hold-time">Hold time on the press, s</label> <input id="hold-time" type="number" min="0" step="any" inputmode="decimal" value="${state.holdTime ?? ""}"> <span class="muted small">not in the scenario: enter it to check each gate seals within it</span></p>${elementTableHtml(r, u, ran.meltTemperature_C, {
-      holdTime_s: state.holdTime
+    })}${shortShotTableHtml(opt, u)}</section>` + (opt.front.length ? `<section class="block" id="front-panel"><h3>Fewest changes</h3>${frontTableHtml(opt, u)}</section>` : "") : "") + `<section class="block"><h3>Runners and gates</h3>${ran.holdTime_s !== null ? `<p class="hold">Hold time ${ran.holdTime_s} s (the scenario's <code>process.hold_time_s</code>): each gate is checked to seal within it.</p>` : `<p class="hold"><label for="hold-time">Hold time on the press, s</label> <input id="hold-time" type="number" min="0" step="any" inputmode="decimal" value="${state.holdTime ?? ""}"> <span class="muted small">not in the scenario (process.hold_time_s): enter it to check each gate seals within it</span></p>`}${elementTableHtml(r, u, ran.meltTemperature_C, {
+      holdTime_s: ran.holdTime_s ?? state.holdTime
     })}</section><section class="block"><h3>Pressure along each flow path</h3>${seriesKeyHtml(ids)}<div class="charts">${pathPressureSvg(shown, ctx)}</div></section><section class="block"><h3>Against the press</h3><div class="charts">${pressChartsSvg(shown, ctx)}</div><p class="muted">Filling only, to switchover: the peaks are the figures above. Estimates: the press maker's limits and local safety practice come first.</p></section><section class="block two"><div><h3>Warnings</h3>${warningsHtml(r)}</div><div><h3>Cautions</h3>${cautionsHtml(r)}</div></section>`;
     sheet.innerHTML = opt ? changeSheetHtml(opt, {
       toolName: scenario.name,

@@ -121,6 +121,8 @@ interface RunRecord {
   sourceLabel: string;
   meltTemperature_C: number | null;
   switchoverPercent: number;
+  /** The scenario's own hold time (`process.hold_time_s`), s, when it gives one. */
+  holdTime_s: number | null;
 }
 
 function loadHoldTime(): number | null {
@@ -131,7 +133,7 @@ function loadHoldTime(): number | null {
 /** Remember which scenario (text, source) a result shown from now on belongs to. */
 function rememberRun(scenario: unknown, text: string) {
   const s = scenario as {
-    process?: { melt_temperature_C?: number; switchover_percent?: number };
+    process?: { melt_temperature_C?: number; switchover_percent?: number; hold_time_s?: number };
   };
   state.ranScenario = scenario as ScenarioForViews;
   state.ran = {
@@ -139,6 +141,7 @@ function rememberRun(scenario: unknown, text: string) {
     sourceLabel: sourceLabel(),
     meltTemperature_C: s.process?.melt_temperature_C ?? null,
     switchoverPercent: s.process?.switchover_percent ?? 98,
+    holdTime_s: s.process?.hold_time_s ?? null,
   };
   state.stale = false;
 }
@@ -911,10 +914,16 @@ function renderResults() {
           }</section>`
           : "")
       : "") +
-    `<section class="block"><h3>Runners and gates</h3><p class="hold"><label for="hold-time">Hold time on the press, s</label> <input id="hold-time" type="number" min="0" step="any" inputmode="decimal" value="${
-      state.holdTime ?? ""
-    }"> <span class="muted small">not in the scenario: enter it to check each gate seals within it</span></p>${
-      elementTableHtml(r, u, ran.meltTemperature_C, { holdTime_s: state.holdTime })
+    `<section class="block"><h3>Runners and gates</h3>${
+      ran.holdTime_s !== null
+        ? `<p class="hold">Hold time ${ran.holdTime_s} s (the scenario's <code>process.hold_time_s</code>): each gate is checked to seal within it.</p>`
+        : `<p class="hold"><label for="hold-time">Hold time on the press, s</label> <input id="hold-time" type="number" min="0" step="any" inputmode="decimal" value="${
+          state.holdTime ?? ""
+        }"> <span class="muted small">not in the scenario (process.hold_time_s): enter it to check each gate seals within it</span></p>`
+    }${
+      elementTableHtml(r, u, ran.meltTemperature_C, {
+        holdTime_s: ran.holdTime_s ?? state.holdTime,
+      })
     }</section>` +
     `<section class="block"><h3>Pressure along each flow path</h3>${
       seriesKeyHtml(ids)
