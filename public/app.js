@@ -2085,13 +2085,26 @@
     tangent: "carried by each simulation (tangent)",
     finite_difference: "by finite differences (one simulation per size)"
   };
+  function statusVerdict(opt) {
+    if (opt.status === "converged" && !opt.after_limits_met) {
+      return {
+        words: "Goals not met in cutter sizes",
+        meaning: `The exact sizes would meet every goal, but the nearest cutter sizes miss: ${opt.after_violations.join("; ")}. These are the closest cutter sizes found.`
+      };
+    }
+    return {
+      words: STATUS_WORDS[opt.status] ?? opt.status,
+      meaning: STATUS_MEANING[opt.status] ?? ""
+    };
+  }
   function verdictHtml(opt) {
     const internals = [
       `<p>${escapeXml(opt.reason)}</p>`,
       opt.snapping ? `<p>Cutters: ${escapeXml(opt.snapping)}</p>` : "",
       `<p>${opt.simulations} fill simulations; slopes ${SLOPE_WORDS[opt.slopes]}.</p>`
     ].join("");
-    return `<div class="verdict" data-status="${escapeXml(opt.status)}"><p><strong>${escapeXml(STATUS_WORDS[opt.status] ?? opt.status)}</strong> \u2014 ${escapeXml(STATUS_MEANING[opt.status] ?? "")}</p>` + (opt.would_need.length ? `<p>What would make it reachable (a first estimate; simulate to confirm):</p><ul>${opt.would_need.map((w) => `<li>${escapeXml(w)}</li>`).join("")}</ul>` : "") + `<details class="advanced"><summary>Advanced: the optimizer's own account</summary>${internals}</details></div>`;
+    const { words, meaning } = statusVerdict(opt);
+    return `<div class="verdict" data-status="${escapeXml(opt.status)}" data-limits-met="${opt.after_limits_met}"><p><strong>${escapeXml(words)}</strong> \u2014 ${escapeXml(meaning)}</p>` + (opt.would_need.length ? `<p>What would make it reachable (a first estimate; simulate to confirm):</p><ul>${opt.would_need.map((w) => `<li>${escapeXml(w)}</li>`).join("")}</ul>` : "") + `<details class="advanced"><summary>Advanced: the optimizer's own account</summary>${internals}</details></div>`;
   }
   function seriesKeyHtml(ids) {
     return `<ul class="series-key">${ids.map((id, k) => {
@@ -2108,7 +2121,7 @@
     const row = (label, x, y) => `<tr><th scope="row">${escapeXml(label)}</th><td class="num">${escapeXml(x)}</td><td class="num">${escapeXml(y)}</td></tr>`;
     const fill = (label, value = "") => `<tr><th scope="row">${escapeXml(label)}</th><td${value ? "" : ' class="fill-in"'}>${escapeXml(value)}</td></tr>`;
     const at = options.switchoverPercent ? ` (at switchover, ${options.switchoverPercent} %)` : "";
-    return `<article class="sheet${options.stale ? " stale" : ""}" id="sheet" data-stale="${options.stale ? "true" : "false"}">` + (options.stale ? staleBannerHtml("change sheet") : "") + `<header class="sheet-head"><div class="sheet-title"><p class="kicker">evenfill \xB7 change sheet</p><h2>${escapeXml(options.toolName)}</h2>${options.scenarioLabel ? `<p class="muted">${escapeXml(options.scenarioLabel)}</p>` : ""}<p class="sheet-status"><strong>${escapeXml(STATUS_WORDS[opt.status] ?? opt.status)}</strong> \u2014 ${escapeXml(STATUS_MEANING[opt.status] ?? "")}</p></div><table class="rev-block" aria-label="Tool, press, resin lot and revision">` + fill("Tool no.") + fill("Press") + fill("Resin lot") + fill("Revision") + fill("Date", options.date).replace("<td>", '<td id="sheet-date">') + (options.scenarioCode ? fill("Scenario check", options.scenarioCode) : "") + fill("Units", `${u.length === "mm" ? "mm (inch beside)" : "inch (mm beside)"}, ${unitSymbol(u, "pressure")}`) + `</table></header><div class="sheet-grid"><div class="sheet-left"><section class="sheet-layout"><h3>Layout after the changes</h3>${options.layout}</section><section class="sheet-cautions"><h3>Cautions</h3>${cautionsHtml(a)}</section><section class="signoff"><h3>Sign-off</h3><div class="sign-lines">` + [
+    return `<article class="sheet${options.stale ? " stale" : ""}" id="sheet" data-stale="${options.stale ? "true" : "false"}">` + (options.stale ? staleBannerHtml("change sheet") : "") + `<header class="sheet-head"><div class="sheet-title"><p class="kicker">evenfill \xB7 change sheet</p><h2>${escapeXml(options.toolName)}</h2>${options.scenarioLabel ? `<p class="muted">${escapeXml(options.scenarioLabel)}</p>` : ""}<p class="sheet-status"><strong>${escapeXml(statusVerdict(opt).words)}</strong> \u2014 ${escapeXml(statusVerdict(opt).meaning)}</p></div><table class="rev-block" aria-label="Tool, press, resin lot and revision">` + fill("Tool no.") + fill("Press") + fill("Resin lot") + fill("Revision") + fill("Date", options.date).replace("<td>", '<td id="sheet-date">') + (options.scenarioCode ? fill("Scenario check", options.scenarioCode) : "") + fill("Units", `${u.length === "mm" ? "mm (inch beside)" : "inch (mm beside)"}, ${unitSymbol(u, "pressure")}`) + `</table></header><div class="sheet-grid"><div class="sheet-left"><section class="sheet-layout"><h3>Layout after the changes</h3>${options.layout}</section><section class="sheet-cautions"><h3>Cautions</h3>${cautionsHtml(a)}</section><section class="signoff"><h3>Sign-off</h3><div class="sign-lines">` + [
       "Designed by",
       "Checked by",
       "Toolmaker",
@@ -3257,7 +3270,7 @@
         rememberRun(scenario, text);
         checkStale();
         renderResults();
-        const words = STATUS_WORDS[result.status] ?? result.status;
+        const words = statusVerdict(result).words;
         $("run-state").textContent = `Optimization done: ${words}.`;
         say(`Optimization done: ${words}.`, "ok");
         showTab("results");

@@ -34,7 +34,7 @@ import {
   shortShotTableHtml,
   type Shown,
   staleBannerHtml,
-  STATUS_WORDS,
+  statusVerdict,
   summaryHtml,
   verdictHtml,
   warningsHtml,
@@ -751,7 +751,7 @@ async function optimize() {
       rememberRun(scenario, text);
       checkStale();
       renderResults();
-      const words = STATUS_WORDS[result.status] ?? result.status;
+      const words = statusVerdict(result).words;
       $("run-state").textContent = `Optimization done: ${words}.`;
       say(`Optimization done: ${words}.`, "ok");
       showTab("results");

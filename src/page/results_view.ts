@@ -951,6 +951,27 @@ const SLOPE_WORDS: Record<SlopeSource, string> = {
 };
 
 /**
+ * What the sizes on the sheet do, in a headline and a sentence. "Converged" is the search's
+ * word: the cutter sizes can still miss a goal the exact sizes meet, and then the page says so.
+ */
+export function statusVerdict(
+  opt: Pick<OptimizationResult, "status" | "after_limits_met" | "after_violations">,
+): { words: string; meaning: string } {
+  if (opt.status === "converged" && !opt.after_limits_met) {
+    return {
+      words: "Goals not met in cutter sizes",
+      meaning: `The exact sizes would meet every goal, but the nearest cutter sizes miss: ${
+        opt.after_violations.join("; ")
+      }. These are the closest cutter sizes found.`,
+    };
+  }
+  return {
+    words: STATUS_WORDS[opt.status] ?? opt.status,
+    meaning: STATUS_MEANING[opt.status] ?? "",
+  };
+}
+
+/**
  * The optimizer's verdict in plain words; its own account (why it stopped, cutter snapping,
  * how many simulations, where its slopes came from) sits behind an "advanced" fold.
  */
@@ -960,9 +981,12 @@ export function verdictHtml(opt: OptimizationResult): string {
     opt.snapping ? `<p>Cutters: ${esc(opt.snapping)}</p>` : "",
     `<p>${opt.simulations} fill simulations; slopes ${SLOPE_WORDS[opt.slopes]}.</p>`,
   ].join("");
-  return `<div class="verdict" data-status="${esc(opt.status)}"><p><strong>${
-    esc(STATUS_WORDS[opt.status] ?? opt.status)
-  }</strong> — ${esc(STATUS_MEANING[opt.status] ?? "")}</p>` +
+  const { words, meaning } = statusVerdict(opt);
+  return `<div class="verdict" data-status="${
+    esc(opt.status)
+  }" data-limits-met="${opt.after_limits_met}"><p><strong>${esc(words)}</strong> — ${
+    esc(meaning)
+  }</p>` +
     (opt.would_need.length
       ? `<p>What would make it reachable (a first estimate; simulate to confirm):</p><ul>${
         opt.would_need.map((w) => `<li>${esc(w)}</li>`).join("")
@@ -1032,8 +1056,8 @@ export function changeSheetHtml(opt: OptimizationResult, options: ChangeSheetOpt
       esc(options.toolName)
     }</h2>${
       options.scenarioLabel ? `<p class="muted">${esc(options.scenarioLabel)}</p>` : ""
-    }<p class="sheet-status"><strong>${esc(STATUS_WORDS[opt.status] ?? opt.status)}</strong> — ${
-      esc(STATUS_MEANING[opt.status] ?? "")
+    }<p class="sheet-status"><strong>${esc(statusVerdict(opt).words)}</strong> — ${
+      esc(statusVerdict(opt).meaning)
     }</p></div>` +
     `<table class="rev-block" aria-label="Tool, press, resin lot and revision">` +
     fill("Tool no.") + fill("Press") + fill("Resin lot") + fill("Revision") +

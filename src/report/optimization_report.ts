@@ -75,6 +75,8 @@ export function optimizationJson(
       ...iterationJson(i),
       trust_radius: i.trustRadius,
     })),
+    after_limits_met: outcome.after.feasible,
+    after_violations: outcome.after.violations.map((v) => v.message),
     changes_omitted: outcome.changesOmitted ?? null,
     front: frontJson(outcome),
   };

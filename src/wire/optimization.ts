@@ -130,6 +130,10 @@ export const OptimizationSchema = z.object({
     "step 0 of the change list: today's tool (null: a new tool, or no change plan)",
   ),
   iterations: z.array(IterationSchema.extend({ trust_radius: z.number() })),
+  after_limits_met: z.boolean().describe(
+    "the final design (in cutter sizes) meets every limit: imbalance, gate shear, pressure, feed order",
+  ),
+  after_violations: z.array(z.string()).describe("the limits the final design breaks, in words"),
   changes_omitted: z.string().nullable().describe(
     "why there is no change list (stopped before it, or not asked for); null when it is there",
   ),

@@ -82,6 +82,8 @@ export function optimization(
     changes: [],
     changes_start: null,
     iterations: [],
+    after_limits_met: true,
+    after_violations: [],
     changes_omitted: null,
     front: [],
     ...overrides,

@@ -127,6 +127,26 @@ Deno.test("verdict: says how many simulations the optimizer ran and where its sl
   assert.ok(verdictHtml({ ...opt, simulations: 7, slopes: "tangent" }).includes("(tangent)"));
 });
 
+Deno.test("verdict and sheet: a search that converged but whose cutter sizes miss a goal never says 'Goals met'", () => {
+  const r = simulated();
+  const missed = optimization(r, {
+    status: "converged",
+    after_limits_met: false,
+    after_violations: ["imbalance 6.55 % > 2 %", "gate G3 shear 53076 1/s > 50000 1/s"],
+  });
+  const sheet = changeSheetHtml(missed, { toolName: "T", date: "2026-12-03", layout: "", units });
+  for (const html of [verdictHtml(missed), sheet]) {
+    assert.ok(!html.includes("Goals met"), "no 'Goals met' over a design that misses");
+    assert.ok(html.includes("Goals not met in cutter sizes"));
+    assert.ok(
+      html.includes("imbalance 6.55 % &gt; 2 %") || html.includes("imbalance 6.55 % > 2 %"),
+    );
+  }
+  // Met in cutter sizes: the plain word.
+  const met = optimization(r, { status: "converged", after_limits_met: true });
+  assert.ok(verdictHtml(met).includes("Goals met"));
+});
+
 Deno.test("path distances come with the result: a radial cavity adds its gate-to-rim radius", () => {
   // A centre-gated disk of volume V and wall H holding r_g² + V/(πH) = R² (disk geometry):
   // 20 cm³ at 2 mm with a 1 mm gate radius reaches R = √(1 + 20000/(2π)) mm = 56.43 mm.
