@@ -157,7 +157,13 @@ export function optimizationText(
   out.push(
     `evenfill — balancing: ${outcome.space.scenario.name} (mode ${outcome.space.scenario.goals.mode})`,
   );
-  out.push(`Status: ${outcome.status} — ${outcome.reason}`);
+  // The search's word, and what the sizes printed below do when the two differ.
+  const missed = outcome.status === "converged" && !outcome.after.feasible;
+  out.push(
+    `Status: ${outcome.status}${
+      missed ? " (goals not met in cutter sizes)" : ""
+    } — ${outcome.reason}`,
+  );
   out.push("");
   out.push(line("before", b));
   // The continuous optimum as simulated, when the after design differs from it (cutter sizes).
