@@ -3237,6 +3237,7 @@
     renderProgress();
     $("run-state").textContent = "Optimization queued\u2026";
     $("run-panel").dataset.job = "queued";
+    delete $("run-panel").dataset.settled;
     try {
       const slopes = $("run-slopes").value;
       const started = await api.startJob(scenario, {
@@ -3302,6 +3303,7 @@
     } finally {
       state.jobId = null;
       setBusy(false);
+      $("run-panel").dataset.settled = $("run-panel").dataset.job ?? "unknown";
     }
   }
   function renderProgress() {

@@ -723,6 +723,8 @@ async function optimize() {
   renderProgress();
   $("run-state").textContent = "Optimization queued…";
   $("run-panel").dataset.job = "queued";
+  // Set once the job's final state and result have been handled (data-job follows the stream).
+  delete $("run-panel").dataset.settled;
   try {
     const slopes = $<HTMLSelectElement>("run-slopes").value;
     const started = await api.startJob(scenario, { slopes });
@@ -780,6 +782,7 @@ async function optimize() {
   } finally {
     state.jobId = null;
     setBusy(false);
+    $("run-panel").dataset.settled = $("run-panel").dataset.job ?? "unknown";
   }
 }
 

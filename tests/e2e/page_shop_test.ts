@@ -127,8 +127,10 @@ async function fakeJob(page: Page, job: { status: string; result: OptimizationRe
   page.on("request", handler);
   await page.click("#tab-run");
   await page.click("#optimize");
+  // data-settled, not data-job: data-job follows the event stream, which says "cancelled"
+  // before the page has fetched the job's result (still to be answered by this handler).
   await page.waitForFunction(
-    (s) => document.getElementById("run-panel")?.dataset.job === s,
+    (s) => document.getElementById("run-panel")?.dataset.settled === s,
     { timeout: 15_000 },
     job.status,
   );
