@@ -146,13 +146,18 @@ export function runScenario(scenario: Scenario, options: RunScenarioOptions = {}
   try {
     return runValidated(scenario, options);
   } catch (error) {
-    if (!(error instanceof RangeError)) throw error;
-    return {
-      ok: false,
-      code: "simulation_failed",
-      message: `The simulation cannot go on with these values: ${error.message}`,
-    };
+    return outOfDomain(error);
   }
+}
+
+/** A RangeError from the physics as `simulation_failed`; anything else is rethrown (a bug). */
+function outOfDomain(error: unknown): { ok: false; code: "simulation_failed"; message: string } {
+  if (!(error instanceof RangeError)) throw error;
+  return {
+    ok: false,
+    code: "simulation_failed",
+    message: `The simulation cannot go on with these values: ${error.message}`,
+  };
 }
 
 function runValidated(scenario: Scenario, options: RunScenarioOptions): RunOutcome {
@@ -205,12 +210,7 @@ export function fillOfNetwork(
       sampleVolumes: options.sampleVolumes,
     });
   } catch (error) {
-    if (!(error instanceof RangeError)) throw error;
-    return {
-      ok: false,
-      code: "simulation_failed",
-      message: `The simulation cannot go on with these values: ${error.message}`,
-    };
+    return outOfDomain(error);
   }
   const stop = fill.diagnostics.stoppedBecause;
   if (stop === "solver_failure") {

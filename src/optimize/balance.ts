@@ -127,10 +127,10 @@ export async function optimizeBalance(
   }
   let changes: ChangePlan | undefined;
   let changesOmitted: string | undefined;
+  const stoppedBefore = stopReason(stop);
   if (options.withoutChanges) changesOmitted = "not asked for";
-  else if (stopReason(stop)) {
-    changesOmitted = `${stopText(stopReason(stop)!)} before the change plan`;
-  } else {
+  else if (stoppedBefore) changesOmitted = `${stopText(stoppedBefore)} before the change plan`;
+  else {
     options.onStep?.("changes", simulations);
     const plan = await planChanges(space, before, after, snap, stop);
     simulations += plan.simulations;
@@ -163,17 +163,20 @@ export async function optimizeBalance(
 }
 
 /** A design the driver reports: continuous and snapped, with how it was reached. */
-interface ReachedDesign {
+interface ReachedDesign extends
+  Pick<
+    BalanceOutcome,
+    | "status"
+    | "reason"
+    | "before"
+    | "continuous"
+    | "after"
+    | "snap"
+    | "iterations"
+    | "simulations"
+    | "wouldNeed"
+  > {
   ok: true;
-  status: BalanceStatus;
-  reason: string;
-  before: DesignEvaluation;
-  continuous: DesignEvaluation;
-  after: DesignEvaluation;
-  snap?: SnapReport;
-  iterations: BalanceIteration[];
-  simulations: number;
-  wouldNeed: string[];
 }
 
 /** Steps 1 and 2 over every adjustable size: the lightest runner that meets every limit. */
@@ -241,9 +244,9 @@ async function allSizesDesign(
  */
 function roomNotes(space: DesignSpace, optimum: DesignEvaluation): string[] {
   const at = (a: number, b: number) => Math.abs(a - b) <= 1e-6 * b;
+  const rule = (kind: string) => kind === "rule" || kind === "strict_rule";
   return space.variables.flatMap((v, j) => {
     const x = optimum.x[j];
-    const rule = (kind: string) => kind === "rule" || kind === "strict_rule";
     if (rule(v.upperKind) && at(x, v.upper)) {
       return [
         `${v.element} sits at its ${v.upperReason} (${mToMm(v.upper).toFixed(2)} mm): ` +

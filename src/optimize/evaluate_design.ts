@@ -9,6 +9,7 @@ import {
 } from "../network/simulate_scenario.ts";
 import { applyDesign, type DesignSpace } from "./design_space.ts";
 import { sizedNetwork } from "./sized_network.ts";
+import type { StopOptions, StopReason } from "./stop.ts";
 
 /**
  * One design judged on the full simulation: the responses the optimizer
@@ -102,7 +103,7 @@ export type EvaluationOutcome =
     ok: false;
     message: string;
     /** Set when the simulation was stopped from outside (a signal or deadline), not failed. */
-    stopped?: "cancelled" | "deadline";
+    stopped?: StopReason;
   };
 
 /** Cold feed-system volume of design `x`, m³, from geometry alone (no simulation). */
@@ -121,19 +122,11 @@ function setupOf(space: DesignSpace): RunSetup {
   return setup;
 }
 
-/** Options of a design's simulation that stop it early. */
-export interface EvaluateStopOptions {
-  /** Once aborted, the fill stops after its current step and the evaluation fails. */
-  signal?: AbortSignal;
-  /** Wall-clock instant (ms since the epoch) past which the fill stops. */
-  deadline?: number;
-}
-
 /** Simulate design `x` and judge it against the scenario's goals. */
 export function evaluateDesign(
   space: DesignSpace,
   x: Float64Array,
-  options: EvaluateOptions & EvaluateStopOptions = {},
+  options: EvaluateOptions & StopOptions = {},
 ): EvaluationOutcome {
   const sized = sizedNetwork(space);
   if (!sized.ok) return { ok: false, message: sized.message };

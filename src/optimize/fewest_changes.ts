@@ -100,11 +100,19 @@ export function changeCost(
   j: number,
   from: number,
   to: number,
-  costs: ChangeCosts = space.scenario.goals.change_costs ?? DEFAULT_CHANGE_COSTS,
+  costs: ChangeCosts = costsOf(space),
 ): number {
   if (Math.abs(to - from) <= 1e-9 * from) return 0;
-  const kind = space.variables[j].kind;
-  const up = to > from;
+  return kindCost(costs, space.variables[j].kind, to > from);
+}
+
+/** The scenario's change costs, or the defaults. */
+function costsOf(space: DesignSpace): ChangeCosts {
+  return space.scenario.goals.change_costs ?? DEFAULT_CHANGE_COSTS;
+}
+
+/** The cost of enlarging (`up`) or reducing one gate or runner. */
+function kindCost(costs: ChangeCosts, kind: "runner" | "gate", up: boolean): number {
   return kind === "gate"
     ? (up ? costs.enlarge_gate : costs.reduce_gate)
     : (up ? costs.enlarge_runner : costs.reduce_runner);
@@ -142,41 +150,34 @@ export async function chooseChanges(
   );
   const rows = [...program.lp.rows];
   const count: [number, number][] = [];
+  const costs = costsOf(space);
   space.variables.forEach((v, j) => {
     if (free.has(j)) return;
     const u = variables[j];
-    const x = today.x[j];
-    // u_j = ln(x_j'/x_j): on only when its binary is, up to the bound it may reach.
-    const sides: [number, number, string][] = [];
-    if (u.upper > 0) sides.push([u.upper, changeCost(space, j, x, x * 2), "up"]);
-    if (u.lower < 0) sides.push([u.lower, changeCost(space, j, x, x / 2), "down"]);
-    const terms: [number, number][] = [[j, 1]];
-    for (const [reach, cost, side] of sides) {
+    // u_j = ln(x_j'/x_j) leaves 0 only in a direction whose binary is on:
+    // lower·down_j ≤ u_j ≤ upper·up_j.
+    const binary = (side: "up" | "down") => {
       variables.push({
         name: `${v.element} ${side}`,
         lower: 0,
         upper: 1,
-        cost: COST_WEIGHT * cost,
+        cost: COST_WEIGHT * kindCost(costs, v.kind, side === "up"),
         integer: true,
       });
-      const b = variables.length - 1;
-      count.push([b, 1]);
-      terms.push([b, -reach]);
-    }
-    // lower·down ≤ u ≤ upper·up, as two rows.
-    const up = sides.find((s) => s[2] === "up");
-    const down = sides.find((s) => s[2] === "down");
-    const upIndex = up ? variables.findIndex((w) => w.name === `${v.element} up`) : -1;
-    const downIndex = down ? variables.findIndex((w) => w.name === `${v.element} down`) : -1;
+      count.push([variables.length - 1, 1]);
+      return variables.length - 1;
+    };
+    const up = u.upper > 0 ? binary("up") : -1;
+    const down = u.lower < 0 ? binary("down") : -1;
     rows.push({
       name: `${v.element} grows only if chosen`,
-      terms: upIndex >= 0 ? [[j, 1], [upIndex, -up![0]]] : [[j, 1]],
+      terms: up >= 0 ? [[j, 1], [up, -u.upper]] : [[j, 1]],
       lower: -Infinity,
       upper: 0,
     });
     rows.push({
       name: `${v.element} shrinks only if chosen`,
-      terms: downIndex >= 0 ? [[j, 1], [downIndex, -down![0]]] : [[j, 1]],
+      terms: down >= 0 ? [[j, 1], [down, -u.lower]] : [[j, 1]],
       lower: 0,
       upper: Infinity,
     });
