@@ -8,38 +8,18 @@
  * fails with a message, it never skips silently.
  */
 import assert from "node:assert/strict";
-import puppeteer from "puppeteer-core";
+import { launchChromium, requireChromium, setEditor } from "./_browser.ts";
 import { startService } from "./_processes.ts";
-
-const CHROMIUM = Deno.env.get("EVENFILL_CHROMIUM") ?? "/usr/bin/chromium";
 
 Deno.test({
   name: "page in Chromium under its CSP: demo, simulate, optimize with live progress, no violation",
   sanitizeOps: false,
   sanitizeResources: false,
   async fn() {
-    try {
-      await Deno.stat(CHROMIUM);
-    } catch {
-      throw new Error(`Chromium not found at ${CHROMIUM}: apt-get install -y chromium`);
-    }
+    await requireChromium();
     const dir = await Deno.makeTempDir({ prefix: "evenfill-csp-" });
     const service = await startService(`${dir}/e2e.db`, ["--workers", "1"]);
-    const userDir = await Deno.makeTempDir({ prefix: "evenfill-chromium-" });
-    const browser = await puppeteer.launch({
-      executablePath: CHROMIUM,
-      userDataDir: userDir,
-      args: [
-        "--headless",
-        "--no-sandbox",
-        "--disable-gpu",
-        "--disable-quic",
-        "--no-first-run",
-        "--disable-background-networking",
-        "--disable-component-update",
-        "--disable-sync",
-      ],
-    });
+    const { browser, dir: userDir } = await launchChromium();
     try {
       const page = await browser.newPage();
       const violations: string[] = [];
@@ -66,18 +46,12 @@ Deno.test({
       await page.click("#open");
       await page.waitForSelector("#editor-state[data-kind='ok']", { timeout: 15_000 });
       // A problem in the editor: its note is placed at its line with an inline style.
-      const setEditor = (text: string) =>
-        page.$eval("#scenario-text", (el, value) => {
-          const ta = el as HTMLTextAreaElement;
-          ta.value = value as string;
-          ta.dispatchEvent(new Event("input", { bubbles: true }));
-        }, text);
       const good = await page.$eval("#scenario-text", (el) => (el as HTMLTextAreaElement).value);
-      await setEditor(good.replace(/,\s*"cavities"/, ' "cavities"'));
+      await setEditor(page, good.replace(/,\s*"cavities"/, ' "cavities"'));
       await page.waitForSelector(".editor-note", { timeout: 10_000 });
       const top = await page.$eval(".editor-note", (el) => (el as HTMLElement).style.top);
       assert.match(top, /px$/, "the note is positioned");
-      await setEditor(good);
+      await setEditor(page, good);
       await page.waitForSelector("#editor-state[data-kind='ok']", { timeout: 10_000 });
       await page.click("#tab-run");
       await page.click("#simulate");

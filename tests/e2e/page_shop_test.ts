@@ -15,12 +15,12 @@
  * message, it never skips silently.
  */
 import assert from "node:assert/strict";
-import puppeteer, { type HTTPRequest, type Page } from "puppeteer-core";
+import type { HTTPRequest, Page } from "puppeteer-core";
+import { launchChromium, requireChromium, setEditor } from "./_browser.ts";
 import { Proc, startService } from "./_processes.ts";
 import type { OptimizationResult, SimulationResult } from "../../src/page/wire.ts";
 import { change, optimization, stepState } from "../page/_fixtures.ts";
 
-const CHROMIUM = Deno.env.get("EVENFILL_CHROMIUM") ?? "/usr/bin/chromium";
 const SERVICE = new URL("../../src/service/main.ts", import.meta.url).pathname;
 const artifacts = new URL("../../test-artifacts/page/", import.meta.url);
 
@@ -29,14 +29,6 @@ async function ready(page: Page, base: string, width: number) {
   await page.goto(`${base}/`, { waitUntil: "load" });
   await page.waitForSelector("body[data-ready='true']", { timeout: 30_000 });
   await page.waitForSelector("#editor-state[data-kind='ok']", { timeout: 15_000 });
-}
-
-async function setEditor(page: Page, text: string) {
-  await page.$eval("#scenario-text", (el, value) => {
-    const ta = el as HTMLTextAreaElement;
-    ta.value = value as string;
-    ta.dispatchEvent(new Event("input", { bubbles: true }));
-  }, text);
 }
 
 const overflow = (page: Page) =>
@@ -144,22 +136,13 @@ Deno.test({
   sanitizeOps: false,
   sanitizeResources: false,
   async fn() {
-    try {
-      await Deno.stat(CHROMIUM);
-    } catch {
-      throw new Error(`Chromium not found at ${CHROMIUM}: apt-get install -y chromium`);
-    }
+    await requireChromium();
     await Deno.mkdir(artifacts, { recursive: true });
     const dir = await Deno.makeTempDir({ prefix: "evenfill-shop-" });
     const db = `${dir}/e2e.db`;
     let service = await startService(db, ["--workers", "1"]);
     let restarted: Proc | undefined;
-    const userDir = await Deno.makeTempDir({ prefix: "evenfill-chromium-" });
-    const browser = await puppeteer.launch({
-      executablePath: CHROMIUM,
-      userDataDir: userDir,
-      args: ["--headless", "--no-sandbox", "--disable-gpu", "--no-first-run"],
-    });
+    const { browser, dir: userDir } = await launchChromium();
     try {
       const page = await browser.newPage();
       const errors: string[] = [];

@@ -9,11 +9,11 @@
  * Without it this test fails with a message: it never skips silently.
  */
 import assert from "node:assert/strict";
-import puppeteer, { type Browser, type HTTPRequest, type Page } from "puppeteer-core";
+import type { Browser, HTTPRequest, Page } from "puppeteer-core";
+import { launchChromium, setEditor } from "./_browser.ts";
 import { formatMass, formatNumber, METRIC_UNITS } from "../../src/page/display_units.ts";
 import type { Job } from "../../src/page/wire.ts";
 
-const CHROMIUM = Deno.env.get("EVENFILL_CHROMIUM") ?? "/usr/bin/chromium";
 const root = new URL("../../", import.meta.url);
 const artifacts = new URL("test-artifacts/page/", root);
 
@@ -81,44 +81,9 @@ async function stopService(service: Service) {
   await Deno.remove(service.dir, { recursive: true }).catch(() => {});
 }
 
-async function launch(): Promise<{ browser: Browser; dir: string }> {
-  try {
-    await Deno.stat(CHROMIUM);
-  } catch {
-    throw new Error(
-      `Chromium not found at ${CHROMIUM}: install the Debian package (apt-get install -y chromium; .ci/run does this) or set EVENFILL_CHROMIUM.`,
-    );
-  }
-  const dir = await Deno.makeTempDir({ prefix: "evenfill-chromium-" });
-  const browser = await puppeteer.launch({
-    executablePath: CHROMIUM,
-    userDataDir: dir,
-    args: [
-      "--headless",
-      "--no-sandbox",
-      "--disable-gpu",
-      "--disable-quic",
-      "--no-first-run",
-      "--disable-background-networking",
-      "--disable-component-update",
-      "--disable-sync",
-    ],
-  });
-  return { browser, dir };
-}
-
 async function shot(page: Page, name: string, fullPage = true) {
   await Deno.mkdir(artifacts, { recursive: true });
   await page.screenshot({ path: new URL(`${name}.png`, artifacts).pathname, fullPage });
-}
-
-/** Replace the editor's text as a user would (input event), and let the page react. */
-async function setEditor(page: Page, text: string) {
-  await page.$eval("#scenario-text", (el, value) => {
-    const ta = el as HTMLTextAreaElement;
-    ta.value = value as string;
-    ta.dispatchEvent(new Event("input", { bubbles: true }));
-  }, text);
 }
 
 function lineOf(text: string, offset: number): number {
@@ -134,7 +99,7 @@ Deno.test({
     let browser: Browser | undefined;
     let userDir: string | undefined;
     try {
-      ({ browser, dir: userDir } = await launch());
+      ({ browser, dir: userDir } = await launchChromium());
       const page = await browser.newPage();
       await page.setViewport({ width: 1400, height: 1000 });
       const consoleErrors: string[] = [];

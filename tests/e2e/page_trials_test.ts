@@ -6,21 +6,13 @@
  * overflow at 390 px. Fails, never skips, without Chromium.
  */
 import assert from "node:assert/strict";
-import puppeteer, { type Page } from "puppeteer-core";
+import type { Page } from "puppeteer-core";
+import { launchChromium, requireChromium, setEditor } from "./_browser.ts";
 import { startService } from "./_processes.ts";
 import { unequalBranches } from "../network/_scenarios.ts";
 import { syntheticShots } from "../support/synthetic_shots.ts";
 
-const CHROMIUM = Deno.env.get("EVENFILL_CHROMIUM") ?? "/usr/bin/chromium";
 const artifacts = new URL("../../test-artifacts/page/", import.meta.url);
-
-async function setEditor(page: Page, text: string) {
-  await page.$eval("#scenario-text", (el, value) => {
-    const ta = el as HTMLTextAreaElement;
-    ta.value = value as string;
-    ta.dispatchEvent(new Event("input", { bubbles: true }));
-  }, text);
-}
 
 /** Type into an input as a user would (input event). */
 async function type(page: Page, selector: string, value: string) {
@@ -40,20 +32,11 @@ Deno.test({
   sanitizeOps: false,
   sanitizeResources: false,
   async fn() {
-    try {
-      await Deno.stat(CHROMIUM);
-    } catch {
-      throw new Error(`Chromium not found at ${CHROMIUM}: apt-get install -y chromium`);
-    }
+    await requireChromium();
     await Deno.mkdir(artifacts, { recursive: true });
     const dir = await Deno.makeTempDir({ prefix: "evenfill-trials-" });
     const service = await startService(`${dir}/e2e.db`, ["--workers", "1"]);
-    const userDir = await Deno.makeTempDir({ prefix: "evenfill-chromium-" });
-    const browser = await puppeteer.launch({
-      executablePath: CHROMIUM,
-      userDataDir: userDir,
-      args: ["--headless", "--no-sandbox", "--disable-gpu", "--no-first-run"],
-    });
+    const { browser, dir: userDir } = await launchChromium();
     try {
       const page = await browser.newPage();
       const errors: string[] = [];
