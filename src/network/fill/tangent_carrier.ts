@@ -145,12 +145,17 @@ export class TangentCarrier {
     const flows = new Float64Array(m * P);
     const inletChange = new Float64Array(m);
     for (let j = 0; j < m; j++) {
-      rhs.fill(0);
+      let source = byDirection[j].length > 0;
       for (let q = 0; q < P; q++) {
         const k = partials[q];
         const br = branches[k];
         sigma[q] = slopeV[q] * dv[j][2 * br.element + br.side];
+        if (sigma[q] !== 0) source = true;
       }
+      // A direction whose size is still dry moves nothing yet: its δQ and δp stay the
+      // zeros a solve with a zero right-hand side would give.
+      if (!source) continue;
+      rhs.fill(0);
       for (const { k, drop } of byDirection[j]) {
         const q = partialOf[k];
         if (q >= 0) sigma[q] += drop;
