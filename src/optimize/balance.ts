@@ -10,7 +10,12 @@ import {
 } from "./continuous_slp.ts";
 import { snapToCutters } from "./cutter_strategy.ts";
 import { currentDesign, type DesignSpace, designSpace } from "./design_space.ts";
-import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
+import {
+  type DesignEvaluation,
+  evaluateDesign,
+  simulationsOf,
+  withReusedSimulations,
+} from "./evaluate_design.ts";
 import { fewestChangeFront, type FewestChangesFront, slopesAt } from "./fewest_changes.ts";
 import { remap } from "./snap_runners.ts";
 import { createHighsSolver } from "./highs_solver.ts";
@@ -101,10 +106,20 @@ export type BalanceResult =
     message: string;
   };
 
-/** Balance a validated scenario: continuous sizes, cutter sizes, the change plan. */
-export async function optimizeBalance(
+/**
+ * Balance a validated scenario: continuous sizes, cutter sizes, the change plan. A design the
+ * run reaches more than once is simulated once (`withReusedSimulations`).
+ */
+export function optimizeBalance(
   scenario: Scenario,
   options: OptimizeBalanceOptions = {},
+): Promise<BalanceResult> {
+  return withReusedSimulations(() => balanceRun(scenario, options));
+}
+
+async function balanceRun(
+  scenario: Scenario,
+  options: OptimizeBalanceOptions,
 ): Promise<BalanceResult> {
   const space = designSpace(scenario);
   const solver = options.solver ?? await createHighsSolver();
@@ -283,17 +298,18 @@ async function fewestChangePlan(
     return { ok: false, code: "simulation_failed", message: todayOutcome.message };
   }
   const today = todayOutcome.evaluation;
+  const todaySimulations = simulationsOf(todayOutcome);
   const slopes = slopesAt(space, today, { ...stop, slopes: options.slopes });
-  if (!slopes) return { ok: true, plan: { front: emptyFront(), simulations: 1 } };
+  if (!slopes) return { ok: true, plan: { front: emptyFront(), simulations: todaySimulations } };
   const front = await fewestChangeFront(space, today, slopes, {
     solver,
     continuous: solveContinuous,
     slopes: options.slopes,
     onProgress: options.onProgress,
-    simulationsBefore: 1 + slopes.simulations,
+    simulationsBefore: todaySimulations + slopes.simulations,
     ...stop,
   });
-  let simulations = 1 + slopes.simulations + front.simulations;
+  let simulations = todaySimulations + slopes.simulations + front.simulations;
   const limit = space.scenario.goals.max_changes;
   const goal = space.scenario.goals.max_imbalance_percent;
   // The first plan (fewest changes) that still meets every limit in cutter sizes.

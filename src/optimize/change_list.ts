@@ -2,7 +2,7 @@ import type { Scenario } from "../model/scenario_schema.ts";
 import { M_PER_INCH, mToMm } from "../model/units.ts";
 import { runSetup } from "../network/simulate_scenario.ts";
 import type { DesignSpace } from "./design_space.ts";
-import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
+import { type DesignEvaluation, evaluateDesign, simulationsOf } from "./evaluate_design.ts";
 import type { SnapReport } from "./snap_design.ts";
 import { nextTurn, type StopOptions, type StopReason, stopReason } from "./stop.ts";
 
@@ -279,8 +279,8 @@ async function orderExisting(
     await nextTurn();
     stopped ??= stopReason(stop);
     if (stopped) return undefined;
-    simulations++;
     const e = evaluateDesign(space, design, { ...stop, slopes });
+    simulations += simulationsOf(e);
     if (!e.ok) {
       stopped ??= e.stopped;
       return null;

@@ -1,7 +1,7 @@
 import { mmToM, mToMm } from "../model/units.ts";
 import type { SlopeSource } from "../wire/enums.ts";
 import type { DesignSpace } from "./design_space.ts";
-import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
+import { type DesignEvaluation, evaluateDesign, simulationsOf } from "./evaluate_design.ts";
 import type { LpSolver } from "./lp_solver.ts";
 import {
   broydenSensitivities,
@@ -201,8 +201,9 @@ export async function solveContinuous(
   const useTangent = (options.slopes ?? "tangent") === "tangent";
   // Trial designs stop with the run; today's and the start design are always simulated whole.
   const evaluate = (x: Float64Array, stoppable = true) => {
-    simulations++;
-    return evaluateDesign(space, x, { slopes: useTangent, ...(stoppable ? stop : {}) });
+    const outcome = evaluateDesign(space, x, { slopes: useTangent, ...(stoppable ? stop : {}) });
+    simulations += simulationsOf(outcome);
+    return outcome;
   };
 
   const start = Float64Array.from(

@@ -3,7 +3,7 @@ import type { SlopeSource } from "../wire/enums.ts";
 import type { ContinuousOutcome, ContinuousSolver } from "./continuous_slp.ts";
 import { cutterCatalogue } from "./cutters.ts";
 import { applyDesign, type DesignSpace, designSpace } from "./design_space.ts";
-import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
+import { type DesignEvaluation, evaluateDesign, simulationsOf } from "./evaluate_design.ts";
 import type { LpSolver } from "./lp_solver.ts";
 import { type Sensitivities, tangentSensitivities } from "./sensitivities.ts";
 import {
@@ -189,7 +189,7 @@ async function runnerCutterRounds(
     }
     if (after.feasible || round + 1 >= CUTTER_ROUNDS) break;
     const again = evaluateDesign(space, refined.x, { slopes: true });
-    simulations++;
+    simulations += simulationsOf(again);
     if (!again.ok) break;
     base = again.evaluation;
     slopes = tangentSensitivities(space, base);

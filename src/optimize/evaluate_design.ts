@@ -1,3 +1,4 @@
+import { AsyncLocalStorage } from "node:async_hooks";
 import type { FeedNetwork, NetworkElement } from "../network/feed_network.ts";
 import type { FillResult, FillSample } from "../network/fill_result.ts";
 import {
@@ -7,9 +8,11 @@ import {
   runSetup,
   type ScenarioRun,
 } from "../network/simulate_scenario.ts";
-import { applyDesign, type DesignSpace } from "./design_space.ts";
-import { recordSimulation } from "./run_meter.ts";
-import { sizedNetwork } from "./sized_network.ts";
+import type { FillProcess } from "../network/simulate_fill.ts";
+import { applyDesign, type DesignSpace, type DesignVariable } from "./design_space.ts";
+import { recordReuse, recordSimulation } from "./run_meter.ts";
+import { scenarioFingerprint, SimulationCache, simulationKey } from "./simulation_cache.ts";
+import { type SizedNetwork, sizedNetwork } from "./sized_network.ts";
 import type { StopOptions, StopReason } from "./stop.ts";
 
 /**
@@ -99,13 +102,23 @@ export const TANGENT_RELATIVE_STEP = 1e-4;
 
 /** Failure to simulate a design (a value, never a throw). */
 export type EvaluationOutcome =
-  | { ok: true; evaluation: DesignEvaluation }
+  | {
+    ok: true;
+    evaluation: DesignEvaluation;
+    /** 1 when the design was simulated now, 0 when an identical design's simulation was reused. */
+    simulations: 0 | 1;
+  }
   | {
     ok: false;
     message: string;
     /** Set when the simulation was stopped from outside (a signal or deadline), not failed. */
     stopped?: StopReason;
   };
+
+/** The simulations an evaluation cost: 0 when it reused one, else 1 (failed or stopped ones too). */
+export function simulationsOf(outcome: EvaluationOutcome): number {
+  return outcome.ok ? outcome.simulations : 1;
+}
 
 /** Cold feed-system volume of design `x`, m³, from geometry alone (no simulation). */
 export function runnerVolumeOf(space: DesignSpace, x: ArrayLike<number>): number {
@@ -123,34 +136,114 @@ function setupOf(space: DesignSpace): RunSetup {
   return setup;
 }
 
-/** Simulate design `x` and judge it against the scenario's goals. */
+/**
+ * Designs a run keeps simulated (least recently used forgotten first): an optimization comes
+ * back to a design within a few dozen simulations (a re-balance's today and start, the cutter
+ * choice's re-linearisation); each entry holds one fill without its tangent.
+ */
+export const EVALUATION_CACHE_SIZE = 64;
+
+/** One simulated design, whatever space asked for it: the physics half of an evaluation. */
+interface Simulated {
+  /** The fill, without its tangent (read into `columns` once). */
+  fill: FillResult;
+  process: FillProcess;
+  split: SplitFigures;
+  /** The tangent's slopes by size (`kind:element`), when a run carried one that reached the split. */
+  columns?: Map<string, SlopeColumn>;
+}
+
+/** One size's slopes of the split fill times, the reference pressure and the runner volume. */
+interface SlopeColumn {
+  fillTime: number[];
+  pressure: number;
+  runnerVolume: number;
+}
+
+/** The simulations of the run in progress (`withReusedSimulations`), if any. */
+const runSimulations = new AsyncLocalStorage<SimulationCache<Simulated>>();
+
+/**
+ * Run `work` (one optimization) so that every design it evaluates more than once is simulated
+ * once (`simulation_cache.ts`); a call inside another shares the outer run's simulations.
+ * Outside such a run every evaluation simulates.
+ */
+export function withReusedSimulations<T>(work: () => Promise<T>): Promise<T> {
+  if (runSimulations.getStore()) return work();
+  return runSimulations.run(new SimulationCache<Simulated>(EVALUATION_CACHE_SIZE), work);
+}
+
+const fingerprints = new WeakMap<DesignSpace, string>();
+
+function fingerprintOf(space: DesignSpace): string {
+  let fingerprint = fingerprints.get(space);
+  if (fingerprint === undefined) {
+    fingerprints.set(space, fingerprint = scenarioFingerprint(space.scenario));
+  }
+  return fingerprint;
+}
+
+const columnKey = (v: DesignVariable) => `${v.kind}:${v.element}`;
+
+/**
+ * Simulate design `x` and judge it against the scenario's goals. Within a run
+ * ({@link withReusedSimulations}), a design whose network and scenario equal one simulated
+ * before (in this space or another of the same scenario: the gates alone, the sizes a plan
+ * changes) is judged on that simulation, its slopes read from that simulation's tangent when
+ * it carried every size asked for (`simulations: 0`).
+ */
 export function evaluateDesign(
   space: DesignSpace,
   x: Float64Array,
   options: EvaluateOptions & StopOptions = {},
 ): EvaluationOutcome {
+  const sized = sizedNetwork(space);
+  if (!sized.ok) return { ok: false, message: sized.message };
+  const network = sized.sized.at(x);
+  const simulated = runSimulations.getStore();
+  const key = simulated ? simulationKey(fingerprintOf(space), network) : "";
+  const known = simulated?.get(key);
+  if (
+    known && (!options.slopes || space.variables.every((v) => known.columns?.has(columnKey(v))))
+  ) {
+    recordReuse();
+    return {
+      ok: true,
+      evaluation: judged(space, x, network, known, options.slopes),
+      simulations: 0,
+    };
+  }
   const start = performance.now();
   try {
-    return simulateAndJudge(space, x, options);
+    const outcome = simulate(space, x, network, sized.sized, options);
+    if (!outcome.ok) return outcome;
+    const columns = known?.columns && outcome.simulated.columns
+      ? new Map([...known.columns, ...outcome.simulated.columns])
+      : outcome.simulated.columns ?? known?.columns;
+    const entry = { ...outcome.simulated, columns };
+    simulated?.set(key, entry);
+    return {
+      ok: true,
+      evaluation: judged(space, x, network, entry, options.slopes),
+      simulations: 1,
+    };
   } finally {
     recordSimulation((performance.now() - start) / 1000);
   }
 }
 
-function simulateAndJudge(
+/** Run the fill of `network` (design `x` of `space`), with the tangent along every size if asked. */
+function simulate(
   space: DesignSpace,
   x: Float64Array,
+  network: FeedNetwork,
+  sized: SizedNetwork,
   options: EvaluateOptions & StopOptions,
-): EvaluationOutcome {
-  const sized = sizedNetwork(space);
-  if (!sized.ok) return { ok: false, message: sized.message };
-  const network = sized.sized.at(x);
+): { ok: true; simulated: Simulated } | Extract<EvaluationOutcome, { ok: false }> {
   const directions = options.slopes
-    ? space.variables.map((_, j) => sized.sized.elementsAt(j, x[j] * (1 + TANGENT_RELATIVE_STEP)))
+    ? space.variables.map((_, j) => sized.elementsAt(j, x[j] * (1 + TANGENT_RELATIVE_STEP)))
     : undefined;
-  const setup = setupOf(space);
-  const scenario = space.scenario;
-  const outcome = fillOfNetwork(scenario, network, setup, {
+  const outcome = fillOfNetwork(space.scenario, network, setupOf(space), {
     tangent: directions ? { directions } : undefined,
     signal: options.signal,
     deadline: options.deadline,
@@ -160,10 +253,34 @@ function simulateAndJudge(
       ? { ok: false, message: outcome.message, stopped: outcome.reason }
       : { ok: false, message: outcome.message };
   }
-  const { fill, process } = outcome;
+  const { process } = outcome;
+  const split = splitFigures(network, outcome.fill);
+  const slopes = directions ? slopesOf(network, outcome.fill, split, x, directions) : undefined;
+  const columns = slopes
+    ? new Map(space.variables.map((v, j) => [columnKey(v), {
+      fillTime: slopes.fillTime.map((row) => row[j]),
+      pressure: slopes.pressure[j],
+      runnerVolume: slopes.runnerVolume[j],
+    }]))
+    : undefined;
+  // The tangent is read once, here: kept, it would hold a sample per step and size.
+  const fill: FillResult = { ...outcome.fill, tangent: undefined };
+  return { ok: true, simulated: { fill, process, split, columns } };
+}
+
+/** The evaluation of design `x` of `space` from its simulation. */
+function judged(
+  space: DesignSpace,
+  x: Float64Array,
+  network: FeedNetwork,
+  simulation: Simulated,
+  withSlopes: boolean | undefined,
+): DesignEvaluation {
+  const { fill, process, split } = simulation;
+  const setup = setupOf(space);
+  const scenario = space.scenario;
   const goals = scenario.goals;
   const fillTimes = fill.cavities.map((c) => c.fillTime);
-  const split = splitFigures(network, fill);
   const splitFillTimes = split.times;
   const gateShear = fill.cavities.map((c) => c.gateShearRatePeak);
   const gateShearBalanced = fill.cavities.map((c) => c.gateShearRatePeakBeforeFirstFull);
@@ -217,29 +334,36 @@ function simulateAndJudge(
   }
   const design = Float64Array.from(x);
   let run: ScenarioRun | undefined;
+  const columns = withSlopes
+    ? space.variables.map((v) => simulation.columns?.get(columnKey(v)))
+    : [];
+  const slopes: DesignSlopes | undefined = withSlopes && columns.every((c) => c !== undefined)
+    ? {
+      fillTime: fill.cavities.map((_, i) => columns.map((c) => c!.fillTime[i])),
+      pressure: columns.map((c) => c!.pressure),
+      runnerVolume: columns.map((c) => c!.runnerVolume),
+    }
+    : undefined;
   return {
-    ok: true,
-    evaluation: {
-      x: design,
-      network,
-      fill,
-      get run() {
-        return run ??= completeRun(applyDesign(space, design), network, setup, process, fill);
-      },
-      fillTimes,
-      splitFillTimes,
-      feedPressureReference: split.pressure,
-      imbalancePercent: imbalance,
-      gateShear,
-      gateShearBalanced,
-      gateShearLimit,
-      feedPressurePeak: fill.feedPressurePeak,
-      pressureLimit,
-      runnerVolume: network.coldRunnerVolume,
-      violations,
-      feasible: violations.length === 0,
-      slopes: directions ? slopesOf(network, fill, split, x, directions) : undefined,
+    x: design,
+    network,
+    fill,
+    get run() {
+      return run ??= completeRun(applyDesign(space, design), network, setup, process, fill);
     },
+    fillTimes,
+    splitFillTimes,
+    feedPressureReference: split.pressure,
+    imbalancePercent: imbalance,
+    gateShear,
+    gateShearBalanced,
+    gateShearLimit,
+    feedPressurePeak: fill.feedPressurePeak,
+    pressureLimit,
+    runnerVolume: network.coldRunnerVolume,
+    violations,
+    feasible: violations.length === 0,
+    slopes,
   };
 }
 

@@ -2,7 +2,7 @@ import type { ChangeCosts, Scenario } from "../model/scenario_schema.ts";
 import type { SlopeSource } from "../wire/enums.ts";
 import type { BalanceIteration, ContinuousOutcome, ContinuousSolver } from "./continuous_slp.ts";
 import { type DesignSpace, designSpace } from "./design_space.ts";
-import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
+import { type DesignEvaluation, evaluateDesign, simulationsOf } from "./evaluate_design.ts";
 import type { LpSolver, LpVariable } from "./lp_solver.ts";
 import {
   finiteDifferenceSensitivities,
@@ -277,7 +277,7 @@ export async function fewestChangeFront(
     if (!tried.feasible) {
       // The next choice is linearised where this plan landed (one simulation with its tangent).
       const again = evaluateDesign(space, tried.x, { slopes: true });
-      simulations++;
+      simulations += simulationsOf(again);
       const s = again.ok ? slopesAt(space, again.evaluation, options) : undefined;
       if (s) simulations += s.simulations;
       if (again.ok && s) {

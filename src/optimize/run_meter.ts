@@ -29,6 +29,8 @@ export interface PhaseTally {
   simulations: number;
   /** Wall time of those simulations, s. */
   simulationSeconds: number;
+  /** Evaluations that reused an identical design's simulation (`evaluateDesign`). */
+  reused: number;
   lpSolves: number;
   /** Wall time of those LP solves, s. */
   lpSeconds: number;
@@ -43,7 +45,14 @@ function tallyOf(phase: MeterPhase): PhaseTally {
   if (!tally) {
     tallies.set(
       phase,
-      tally = { seconds: 0, simulations: 0, simulationSeconds: 0, lpSolves: 0, lpSeconds: 0 },
+      tally = {
+        seconds: 0,
+        simulations: 0,
+        simulationSeconds: 0,
+        reused: 0,
+        lpSolves: 0,
+        lpSeconds: 0,
+      },
     );
   }
   return tally;
@@ -73,6 +82,11 @@ export function recordSimulation(seconds: number): void {
   const tally = tallyOf(current);
   tally.simulations++;
   tally.simulationSeconds += seconds;
+}
+
+/** Count one evaluation that reused a simulation, in the current phase. */
+export function recordReuse(): void {
+  tallyOf(current).reused++;
 }
 
 /** The tally so far, per phase that saw any time or work. */

@@ -1,5 +1,10 @@
 import type { DesignSpace } from "./design_space.ts";
-import { type DesignEvaluation, evaluateDesign, runnerVolumeOf } from "./evaluate_design.ts";
+import {
+  type DesignEvaluation,
+  evaluateDesign,
+  runnerVolumeOf,
+  simulationsOf,
+} from "./evaluate_design.ts";
 import { type StopOptions, type StopReason, stopReason, stopText } from "./stop.ts";
 
 /**
@@ -66,7 +71,7 @@ export function finiteDifferenceSensitivities(
     const stop = stopReason(options);
     if (stop) return { failure: stopText(stop), stopped: stop };
     const outcome = evaluateDesign(space, x, options);
-    simulations++;
+    simulations += simulationsOf(outcome);
     if (!outcome.ok) return { failure: outcome.message, stopped: outcome.stopped };
     const e = outcome.evaluation;
     for (let i = 0; i < cavities; i++) {

@@ -6,7 +6,7 @@ import {
   neighbouringSizes,
 } from "./cutters.ts";
 import type { DesignSpace } from "./design_space.ts";
-import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
+import { type DesignEvaluation, evaluateDesign, simulationsOf } from "./evaluate_design.ts";
 import type { Sensitivities } from "./sensitivities.ts";
 import { modelResponses } from "./slp_step.ts";
 
@@ -193,8 +193,8 @@ export function snapDesign(
   const design = (p: readonly number[]) => Float64Array.from(p, (k, j) => candidates[j][k].size);
   let simulations = 0;
   const evaluate = (p: readonly number[]) => {
-    simulations++;
     const outcome = evaluateDesign(space, design(p));
+    simulations += simulationsOf(outcome);
     return outcome.ok ? outcome.evaluation : undefined;
   };
   // Plain rounding (every size, gates too, to its nearest permitted cutter; in steel-safe mode

@@ -7,7 +7,7 @@ import {
   neighbouringSizes,
 } from "./cutters.ts";
 import { applyDesign, type DesignSpace, designSpace, type DesignVariable } from "./design_space.ts";
-import { type DesignEvaluation, evaluateDesign } from "./evaluate_design.ts";
+import { type DesignEvaluation, evaluateDesign, simulationsOf } from "./evaluate_design.ts";
 import type { LpSolver } from "./lp_solver.ts";
 import { type Sensitivities, tangentSensitivities } from "./sensitivities.ts";
 import { snapDesign, snapMethod, type SnapReport, snapVerdict } from "./snap_design.ts";
@@ -336,9 +336,9 @@ export async function relaxAndFixRunners(
     tangentSensitivities(gateOnly.space, gateOnly.evaluation),
     { merit: judgeOf },
   );
-  simulations += gateOnly.simulations + gateSnap.simulations + 1;
   // Judged again in the full space, where the feed-order rules between runners apply.
   const full = evaluateDesign(space, remap(space, gateOnly.space, gateSnap.evaluation).x);
+  simulations += gateOnly.simulations + gateSnap.simulations + simulationsOf(full);
   if (!full.ok) return undefined;
   const evaluation = full.evaluation;
   const choices = [
@@ -375,5 +375,7 @@ function gateSpaceAt(
     (v) => Math.min(v.upper, Math.max(v.lower, sizes.get(v.element) ?? v.current)),
   );
   const outcome = evaluateDesign(space, x, { slopes: true });
-  return outcome.ok ? { space, evaluation: outcome.evaluation, simulations: 1 } : undefined;
+  return outcome.ok
+    ? { space, evaluation: outcome.evaluation, simulations: outcome.simulations }
+    : undefined;
 }

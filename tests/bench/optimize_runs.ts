@@ -1,6 +1,7 @@
 /**
  * Whole optimize runs, phase by phase: the three demos (`scenarios/*.json`) and generated
- * families (`tests/support/family_layout.ts`, 6, 8 and 16 cavities, seeds 1–3), each run
+ * families (`tests/support/family_layout.ts`: 6, 8 and 16 cavities with tunnel gates, seeds
+ * 1–3; 8 cavities with edge gates, seeds 1–3, and 16 with edge gates, seed 1), each run
  * through `optimizeBalance` as the command line does, with the simulations and wall time of
  * every phase (`src/optimize/run_meter.ts`), where the time goes (simulation, LP/MIP, the
  * rest), and what the run found. Not a test: timings never go into tests. Each phase counts
@@ -75,9 +76,9 @@ function demo(name: string): () => Scenario {
   };
 }
 
-function family(cavities: number, seed: number): () => Scenario {
+function family(cavities: number, seed: number, gate?: "edge"): () => Scenario {
   return () => {
-    const parsed = parseScenario(familyLayout(cavities, { seed }), {
+    const parsed = parseScenario(familyLayout(cavities, { seed, gate }), {
       materialIds: LIBRARY_MATERIAL_IDS,
     });
     if (!parsed.ok) throw new Error(parsed.issues.map((i) => i.message).join("; "));
@@ -92,6 +93,12 @@ const CASES: [string, () => Scenario][] = [
   ...[6, 8, 16].flatMap((n) =>
     [1, 2, 3].map((seed): [string, () => Scenario] => [`gen${n} s${seed}`, family(n, seed)])
   ),
+  // Edge gates: continuous optima that meet every limit, whose cutter sizes are the hard part.
+  ...[1, 2, 3].map((seed): [string, () => Scenario] => [
+    `gen8e s${seed}`,
+    family(8, seed, "edge"),
+  ]),
+  ["gen16e s1", family(16, 1, "edge")],
 ];
 
 const solver = meteredSolver(await createHighsSolver());
