@@ -20,7 +20,7 @@ import {
   STRESS,
 } from "./_local_gradient.ts";
 import { gaussLegendre } from "./_quadrature.ts";
-import { type IntegralCursor, newCursor } from "./_wall_shear.ts";
+import { type IntegralCursor, newCursor, stressPotential } from "./_wall_shear.ts";
 
 /** Options of {@link taperedChannelFlow}. */
 export interface TaperedChannelFlowOptions {
@@ -87,7 +87,21 @@ export interface TaperedChannelGeometry {
   /** Quadrature weights (m) and each node's section data, toward the narrow end. */
   readonly weights: Float64Array;
   readonly nodes: readonly SectionFlowData[];
+  /**
+   * For a cone of similar sections (circle, half-round: a, b constant, A ∝ Dh²) that
+   * widens or narrows enough, 4·ℓ/(3·(Dh(ℓ) − Dh(0))) in m/m = 1: the pressure drop is
+   * this times the difference of the ends' stress potentials ({@link taperedGeometryLaw}).
+   * NaN otherwise.
+   */
+  readonly potentialFactor: number;
 }
+
+/**
+ * Smallest |ln(Dh(ℓ)/Dh(0))| for the cone closed form: below it the difference of the two
+ * ends' potentials loses digits to cancellation (their interpolation error, ~1e-10 of each,
+ * over a difference ∝ the log ratio), and the quadrature, one panel there, is used instead.
+ */
+const MIN_CONE_LOG_RATIO = 0.05;
 
 /**
  * The geometry half of {@link taperedChannelLaw}: quadrature nodes and weights of the filled
@@ -115,8 +129,15 @@ export function taperedChannelGeometry(
     last: lastData,
     weights: new Float64Array(0),
     nodes: [] as SectionFlowData[],
+    potentialFactor: NaN,
   };
   if (filled === 0) return prepared;
+  const similar = entry.kind === "circle" || entry.kind === "half_round";
+  const dhRatio = lastData.hydraulicDiameter / firstData.hydraulicDiameter;
+  if (similar && Math.abs(Math.log(dhRatio)) >= MIN_CONE_LOG_RATIO) {
+    prepared.potentialFactor = (4 * filled) /
+      (3 * (lastData.hydraulicDiameter - firstData.hydraulicDiameter));
+  }
 
   // Substitution x = filled·expm1(u − u0)/expm1(u1 − u0), u = ln Dh at a linear Dh: the
   // integrand becomes nearly a pure exponential in u (a power law gives exactly one), so
@@ -225,6 +246,39 @@ export function taperedGeometryLaw(
       ends[2] = local[STRESS];
     }
   };
+  // A cone of similar sections: with Dh linear in x and Γ ∝ Dh⁻³, dx/Dh = −ℓ/(3·ΔDh)·d ln Γ,
+  // so ΔP = ∫ 4τw/Dh dx = potentialFactor·(H(Γ₀) − H(Γ_ℓ)) with H = ∫ τw d ln Γ (the
+  // lubrication integral of Tadmor & Gogos §12.1 in closed form), and dΔP/dQ follows from
+  // dH/dQ = τw/Q. The ends give the wall shear as well (Γ is monotone along a cone).
+  const factor = geometry.potentialFactor;
+  const cone = Number.isFinite(factor) &&
+    (curve.powerLaw !== undefined || curve.cross !== undefined);
+  /** The sums and the ends at q > 0 by the closed form; false when a potential is unknown. */
+  const coneSums = (q: number): boolean => {
+    if (!cone || !(q > 0)) return false;
+    localGradientInto(q, firstData, curve, undefined, local);
+    const first = stressPotential(curve, firstData, local[SHEAR_RATE], local[STRESS]);
+    const firstShear = local[SHEAR_RATE];
+    const firstApparent = local[APPARENT];
+    const firstStress = local[STRESS];
+    localGradientInto(q, lastData, curve, undefined, local);
+    const last = stressPotential(curve, lastData, local[SHEAR_RATE], local[STRESS]);
+    if (!Number.isFinite(first) || !Number.isFinite(last)) return false;
+    pressure = factor * (first - last);
+    slope = (factor * (firstStress - local[STRESS])) / q;
+    if (firstShear >= local[SHEAR_RATE]) {
+      ends[0] = firstShear;
+      ends[1] = firstApparent;
+      ends[2] = firstStress;
+    } else {
+      ends[0] = local[SHEAR_RATE];
+      ends[1] = local[APPARENT];
+      ends[2] = local[STRESS];
+    }
+    peakShear = -Infinity;
+    sumsAt = NaN;
+    return true;
+  };
   // A fresh cursor, ends first, then the nodes: the order of taperedChannelFlow. The nodes'
   // values depend on the cursor only when one of them needs the exact integral (a curve
   // without closed form or master curve); otherwise they may be summed alone.
@@ -237,7 +291,9 @@ export function taperedGeometryLaw(
   const full = (flowRate: number): ChannelFlow => {
     checkFlowArgs("tapered channel flow", flowRate, length);
     const q = Math.abs(flowRate);
-    if (q === sumsAt) {
+    if (coneSums(q)) {
+      // the ends hold the wall
+    } else if (q === sumsAt) {
       cursor.curve = null;
       atEnds(q);
     } else inOrder(q);
@@ -253,6 +309,9 @@ export function taperedGeometryLaw(
   const resistance = (flowRate: number): ChannelResistance => {
     checkFlowArgs("tapered channel flow", flowRate, length);
     const q = Math.abs(flowRate);
+    if (coneSums(q)) {
+      return { pressureDrop: Math.sign(flowRate) * pressure, dPressureDropDFlow: slope };
+    }
     cursor.curve = null;
     if (integrate(q)) inOrder(q);
     return { pressureDrop: Math.sign(flowRate) * pressure, dPressureDropDFlow: slope };
