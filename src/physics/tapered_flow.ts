@@ -84,9 +84,8 @@ export interface TaperedChannelGeometry {
   /** Section data at the entry and at the end of the filled part. */
   readonly first: SectionFlowData;
   readonly last: SectionFlowData;
-  /** Quadrature weights (m) and each node's section data, toward the narrow end. */
-  readonly weights: Float64Array;
-  readonly nodes: readonly SectionFlowData[];
+  /** The quadrature of the filled part, built on first use (a cone's closed form needs none). */
+  quadrature(): TaperQuadrature;
   /**
    * For a cone of similar sections (circle, half-round: a, b constant, A ∝ Dh²) that
    * widens or narrows enough, 4·ℓ/(3·(Dh(ℓ) − Dh(0))) in m/m = 1: the pressure drop is
@@ -94,6 +93,12 @@ export interface TaperedChannelGeometry {
    * NaN otherwise.
    */
   readonly potentialFactor: number;
+}
+
+/** Quadrature weights (m) and each node's section data, toward the narrow end. */
+export interface TaperQuadrature {
+  readonly weights: Float64Array;
+  readonly nodes: readonly SectionFlowData[];
 }
 
 /**
@@ -122,29 +127,34 @@ export function taperedChannelGeometry(
   const dataAt = (x: number) => sectionFlowData(interpolateSection(entry, exit, x / length));
   const firstData = dataAt(0);
   const lastData = filled > 0 ? dataAt(filled) : firstData;
-  const prepared = {
+  let quadrature: TaperQuadrature | undefined;
+  const similar = entry.kind === "circle" || entry.kind === "half_round";
+  const span = filled > 0 ? Math.log(lastData.hydraulicDiameter / firstData.hydraulicDiameter) : 0;
+  return {
     length,
     filledLength: filled,
     first: firstData,
     last: lastData,
-    weights: new Float64Array(0),
-    nodes: [] as SectionFlowData[],
-    potentialFactor: NaN,
+    quadrature: () => quadrature ??= taperQuadrature(dataAt, filled, span),
+    potentialFactor: similar && Math.abs(span) >= MIN_CONE_LOG_RATIO
+      ? (4 * filled) / (3 * (lastData.hydraulicDiameter - firstData.hydraulicDiameter))
+      : NaN,
   };
-  if (filled === 0) return prepared;
-  const similar = entry.kind === "circle" || entry.kind === "half_round";
-  const dhRatio = lastData.hydraulicDiameter / firstData.hydraulicDiameter;
-  if (similar && Math.abs(Math.log(dhRatio)) >= MIN_CONE_LOG_RATIO) {
-    prepared.potentialFactor = (4 * filled) /
-      (3 * (lastData.hydraulicDiameter - firstData.hydraulicDiameter));
-  }
+}
 
-  // Substitution x = filled·expm1(u − u0)/expm1(u1 − u0), u = ln Dh at a linear Dh: the
-  // integrand becomes nearly a pure exponential in u (a power law gives exactly one), so
-  // Gauss–Legendre converges fast. Panels no wider than ln(PANEL_RATIO) in u.
-  const d0 = firstData.hydraulicDiameter;
-  const d1 = lastData.hydraulicDiameter;
-  const span = Math.log(d1 / d0);
+/**
+ * Gauss–Legendre nodes over the filled length `filled` of a taper whose Dh changes by
+ * e^span along it, with `dataAt(x)` the section data at x. Substitution
+ * x = filled·expm1(u − u0)/expm1(u1 − u0), u = ln Dh at a linear Dh: the integrand becomes
+ * nearly a pure exponential in u (a power law gives exactly one), so Gauss–Legendre
+ * converges fast. Panels no wider than ln(PANEL_RATIO) in u.
+ */
+function taperQuadrature(
+  dataAt: (x: number) => SectionFlowData,
+  filled: number,
+  span: number,
+): TaperQuadrature {
+  if (filled === 0) return { weights: new Float64Array(0), nodes: [] };
   const panels = Math.max(1, Math.ceil(Math.abs(span) / Math.log(PANEL_RATIO) - 1e-9));
   const scale = span === 0 ? 0 : filled / Math.expm1(span);
   const rule = RULE;
@@ -152,7 +162,7 @@ export function taperedChannelGeometry(
   const weights = new Float64Array(count);
   const nodes = new Array<SectionFlowData>(count);
   // Walk toward the narrow end so the shared quadrature cursor only moves up in shear.
-  const reverse = d1 > d0;
+  const reverse = span > 0;
   let k = 0;
   for (let p = 0; p < panels; p++) {
     const mid = (p + 0.5) / panels;
@@ -169,9 +179,7 @@ export function taperedChannelGeometry(
       }
     }
   }
-  prepared.weights = weights;
-  prepared.nodes = nodes;
-  return prepared;
+  return { weights, nodes };
 }
 
 /** Scratch of the taper laws (no law calls another while it evaluates). */
@@ -199,7 +207,6 @@ export function taperedGeometryLaw(
     };
     return Object.assign(empty, { resistance: empty });
   }
-  const { weights, nodes: nodeData } = geometry;
   const local = LOCAL;
   const cursor = CURSOR;
   // The quadrature sums and the node of highest wall shear (first of the largest) at `sumsAt`.
@@ -212,6 +219,7 @@ export function taperedGeometryLaw(
   /** The sums at q, the cursor as left by whatever ran before; true if a node needed the integral. */
   const integrate = (q: number): boolean => {
     let integral = false;
+    const { weights, nodes: nodeData } = geometry.quadrature();
     pressure = 0;
     slope = 0;
     peakShear = -Infinity;
@@ -253,8 +261,12 @@ export function taperedGeometryLaw(
   const factor = geometry.potentialFactor;
   const cone = Number.isFinite(factor) &&
     (curve.powerLaw !== undefined || curve.cross !== undefined);
-  /** The sums and the ends at q > 0 by the closed form; false when a potential is unknown. */
+  /** The closed form at `coneAt`: pressure drop, its slope, and the wall of higher shear. */
+  let coneAt = NaN;
+  const coneWall = new Float64Array(5);
+  /** The closed form at q > 0 into coneWall (kept for the next call); false when a potential is unknown. */
   const coneSums = (q: number): boolean => {
+    if (q === coneAt) return true;
     if (!cone || !(q > 0)) return false;
     localGradientInto(q, firstData, curve, undefined, local);
     const first = stressPotential(curve, firstData, local[SHEAR_RATE], local[STRESS]);
@@ -264,19 +276,13 @@ export function taperedGeometryLaw(
     localGradientInto(q, lastData, curve, undefined, local);
     const last = stressPotential(curve, lastData, local[SHEAR_RATE], local[STRESS]);
     if (!Number.isFinite(first) || !Number.isFinite(last)) return false;
-    pressure = factor * (first - last);
-    slope = (factor * (firstStress - local[STRESS])) / q;
-    if (firstShear >= local[SHEAR_RATE]) {
-      ends[0] = firstShear;
-      ends[1] = firstApparent;
-      ends[2] = firstStress;
-    } else {
-      ends[0] = local[SHEAR_RATE];
-      ends[1] = local[APPARENT];
-      ends[2] = local[STRESS];
-    }
-    peakShear = -Infinity;
-    sumsAt = NaN;
+    coneWall[0] = factor * (first - last);
+    coneWall[1] = (factor * (firstStress - local[STRESS])) / q;
+    const entryHigher = firstShear >= local[SHEAR_RATE];
+    coneWall[2] = entryHigher ? firstShear : local[SHEAR_RATE];
+    coneWall[3] = entryHigher ? firstApparent : local[APPARENT];
+    coneWall[4] = entryHigher ? firstStress : local[STRESS];
+    coneAt = q;
     return true;
   };
   // A fresh cursor, ends first, then the nodes: the order of taperedChannelFlow. The nodes'
@@ -292,8 +298,15 @@ export function taperedGeometryLaw(
     checkFlowArgs("tapered channel flow", flowRate, length);
     const q = Math.abs(flowRate);
     if (coneSums(q)) {
-      // the ends hold the wall
-    } else if (q === sumsAt) {
+      return {
+        pressureDrop: Math.sign(flowRate) * coneWall[0],
+        wallShearRate: coneWall[2],
+        apparentWallShearRate: coneWall[3],
+        wallShearStress: coneWall[4],
+        dPressureDropDFlow: coneWall[1],
+      };
+    }
+    if (q === sumsAt) {
       cursor.curve = null;
       atEnds(q);
     } else inOrder(q);
@@ -310,7 +323,7 @@ export function taperedGeometryLaw(
     checkFlowArgs("tapered channel flow", flowRate, length);
     const q = Math.abs(flowRate);
     if (coneSums(q)) {
-      return { pressureDrop: Math.sign(flowRate) * pressure, dPressureDropDFlow: slope };
+      return { pressureDrop: Math.sign(flowRate) * coneWall[0], dPressureDropDFlow: coneWall[1] };
     }
     cursor.curve = null;
     if (integrate(q)) inOrder(q);
