@@ -129,6 +129,74 @@ interface Topology {
   /** element → its off-diagonal entry in the pattern, or −1 unless both ends are free. */
   slot: Int32Array;
   symbolic: SymbolicCholesky;
+  /** Scratch of a solve of this topology, made on the first one (see {@link workspaceOf}). */
+  workspace: Workspace | undefined;
+}
+
+/**
+ * The working arrays of one solve, kept with its topology: a fill solves the same topology
+ * many times, and fresh arrays per solve were most of its garbage. Every array is written
+ * before it is read (or cleared where it accumulates), so a reused one holds nothing over.
+ */
+interface Workspace {
+  busy: boolean;
+  inflow: Float64Array;
+  drop: Float64Array;
+  slope: Float64Array;
+  trialPressure: Float64Array;
+  trialFlow: Float64Array;
+  trialDrop: Float64Array;
+  trialSlope: Float64Array;
+  conductance: Float64Array;
+  offset: Float64Array;
+  newFlow: Float64Array;
+  diagonal: Float64Array;
+  offDiagonal: Float64Array;
+  rhs: Float64Array;
+  solved: Float64Array;
+  newPressure: Float64Array;
+  balance: Float64Array;
+}
+
+function newWorkspace(topology: Topology): Workspace {
+  const n = topology.nodeCount;
+  const m = topology.from.length;
+  const freeCount = topology.freeNodes.length;
+  return {
+    busy: false,
+    inflow: new Float64Array(n),
+    drop: new Float64Array(m),
+    slope: new Float64Array(m),
+    trialPressure: new Float64Array(n),
+    trialFlow: new Float64Array(m),
+    trialDrop: new Float64Array(m),
+    trialSlope: new Float64Array(m),
+    conductance: new Float64Array(m),
+    offset: new Float64Array(m),
+    newFlow: new Float64Array(m),
+    diagonal: new Float64Array(freeCount),
+    offDiagonal: new Float64Array(countSlots(topology.slot)),
+    rhs: new Float64Array(freeCount),
+    solved: new Float64Array(freeCount),
+    newPressure: new Float64Array(n),
+    balance: new Float64Array(n),
+  };
+}
+
+/**
+ * The topology's workspace, marked busy until `release`; a fresh one when it is already in
+ * use (a law that itself solved a network of the same topology).
+ */
+function workspaceOf(topology: Topology): Workspace {
+  const kept = topology.workspace;
+  if (kept && !kept.busy) {
+    kept.busy = true;
+    return kept;
+  }
+  const fresh = newWorkspace(topology);
+  fresh.busy = true;
+  if (!kept) topology.workspace = fresh;
+  return fresh;
 }
 
 /** A checked topology with its symbolic factorisation, reusable by every problem that has it. */
@@ -278,6 +346,7 @@ function topologyOf(
     freeNodes: Int32Array.from(free),
     slot,
     symbolic: analyse({ size: free.length, rows, cols }),
+    workspace: undefined,
   };
   topologyCache.unshift(topology);
   if (topologyCache.length > TOPOLOGY_CACHE_SIZE) topologyCache.pop();
@@ -357,17 +426,47 @@ export function solveHydraulics(
     if (!checked.ok) return checked;
     topology = topologyOf(problem.nodeCount, checked.from, checked.to, checked.fixed);
   }
-  const { flowTolerance, massTolerance, maxIterations, initial } = checkOptions(
-    options,
-    problem.elements.length,
-  );
+  const settings = checkOptions(options, problem.elements.length);
+  const workspace = workspaceOf(topology);
+  try {
+    return solveOn(problem, topology, { settings, workspace });
+  } finally {
+    workspace.busy = false;
+  }
+}
+
+/** {@link solveHydraulics} on a checked topology with checked options, in `workspace`. */
+function solveOn(
+  problem: HydraulicProblem,
+  topology: Topology,
+  at: { settings: ReturnType<typeof checkOptions>; workspace: Workspace },
+): HydraulicSolution {
+  const { flowTolerance, massTolerance, maxIterations, initial } = at.settings;
   const n = problem.nodeCount;
   const elements = problem.elements;
   const m = elements.length;
   const { from, to, freeIndex, freeNodes, slot, symbolic } = topology;
   const freeCount = freeNodes.length;
+  const {
+    inflow,
+    drop,
+    slope,
+    trialPressure,
+    trialFlow,
+    trialDrop,
+    trialSlope,
+    conductance,
+    offset,
+    newFlow,
+    diagonal,
+    offDiagonal,
+    rhs,
+    solved,
+    newPressure,
+    balance,
+  } = at.workspace;
 
-  const inflow = new Float64Array(n);
+  inflow.fill(0);
   for (const [node, q] of problem.inflow) inflow[node] += q;
   let totalInflow = 0;
   for (let i = 0; i < n; i++) if (inflow[i] > 0) totalInflow += inflow[i];
@@ -378,18 +477,8 @@ export function solveHydraulics(
   const pressure = new Float64Array(n);
   for (const [node, p] of problem.fixedPressure) pressure[node] = p;
   const flow = new Float64Array(m);
-  const drop = new Float64Array(m), slope = new Float64Array(m);
-  const trialPressure = pressure.slice();
-  const trialFlow = new Float64Array(m);
-  const trialDrop = new Float64Array(m), trialSlope = new Float64Array(m);
-  const conductance = new Float64Array(m), offset = new Float64Array(m);
-  const newFlow = new Float64Array(m);
-  const diagonal = new Float64Array(freeCount);
-  const offDiagonal = new Float64Array(countSlots(slot));
-  const rhs = new Float64Array(freeCount);
-  const solved = new Float64Array(freeCount);
-  const newPressure = pressure.slice();
-  const balance = new Float64Array(n);
+  trialPressure.set(pressure);
+  newPressure.set(pressure);
 
   let lawFailure: Failure | undefined;
   const floorSecant = (e: number) => elements[e].law(flowFloor).pressureDrop / flowFloor;

@@ -16,6 +16,7 @@ import { remap } from "./snap_runners.ts";
 import { createHighsSolver } from "./highs_solver.ts";
 import type { LpSolver } from "./lp_solver.ts";
 import type { SnapReport } from "./snap_design.ts";
+import { inPhase } from "./run_meter.ts";
 import { type StopOptions, stopReason, stopText } from "./stop.ts";
 
 export type { BalanceIteration };
@@ -111,7 +112,9 @@ export async function optimizeBalance(
   // An existing tool is changed as little as it can be (`fewest_changes.ts`).
   const existing = scenario.goals.mode !== "new_tool" && !options.continuousOnly &&
     space.variables.length > 0 && space.conflicts.length === 0;
-  const fewest = existing ? await fewestChangePlan(space, solver, options, stop) : undefined;
+  const fewest = existing
+    ? await inPhase("fewest_changes", () => fewestChangePlan(space, solver, options, stop))
+    : undefined;
   if (fewest && !fewest.ok) return fewest;
   const planned = fewest?.ok ? fewest.plan : undefined;
   const design = planned?.design ?? await allSizesDesign(space, solver, options, stop);
@@ -132,7 +135,7 @@ export async function optimizeBalance(
   else if (stoppedBefore) changesOmitted = `${stopText(stoppedBefore)} before the change plan`;
   else {
     options.onStep?.("changes", simulations);
-    const plan = await planChanges(space, before, after, snap, stop);
+    const plan = await inPhase("changes", () => planChanges(space, before, after, snap, stop));
     simulations += plan.simulations;
     if (plan.complete) changes = plan;
     else {
@@ -187,14 +190,15 @@ async function allSizesDesign(
   stop: StopOptions,
 ): Promise<ReachedDesign | Extract<BalanceResult, { ok: false }>> {
   options.onStep?.("continuous", 0);
-  const solved = await solveContinuous(space, {
-    solver,
-    maxIterations: options.maxIterations ?? DEFAULT_MAX_ITERATIONS,
-    onProgress: options.onProgress,
-    start: options.start,
-    slopes: options.slopes,
-    ...stop,
-  });
+  const solved = await inPhase("continuous", () =>
+    solveContinuous(space, {
+      solver,
+      maxIterations: options.maxIterations ?? DEFAULT_MAX_ITERATIONS,
+      onProgress: options.onProgress,
+      start: options.start,
+      slopes: options.slopes,
+      ...stop,
+    }));
   if (!solved.ok) return solved;
   const continuous = solved.outcome;
   let simulations = continuous.simulations;

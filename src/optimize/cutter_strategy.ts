@@ -20,6 +20,7 @@ import {
   relaxAndFixRunners,
   remap,
 } from "./snap_runners.ts";
+import { inPhase } from "./run_meter.ts";
 import { type StopOptions, stopReason } from "./stop.ts";
 
 /**
@@ -70,8 +71,11 @@ export async function snapToCutters(
   continuous: ContinuousOutcome,
   options: CutterStrategyOptions,
 ): Promise<CutterOutcome> {
-  const nearest = nearestSnap(space, continuous);
-  const together = await runnerCutterRounds(space, continuous, nearest, options);
+  const nearest = await inPhase("cutter_nearest", () => nearestSnap(space, continuous));
+  const together = await inPhase(
+    "cutter_rounds",
+    () => runnerCutterRounds(space, continuous, nearest, options),
+  );
   return await relaxIfInfeasible(space, continuous, together, options);
 }
 
@@ -208,7 +212,10 @@ async function relaxIfInfeasible(
   if (best.after.feasible || runnerCount > RELAX_AND_FIX_MAX_RUNNERS || stopReason(options)) {
     return best;
   }
-  const fixed = await relaxAndFixRunners(space, continuous.optimum, options);
+  const fixed = await inPhase(
+    "relax_and_fix",
+    () => relaxAndFixRunners(space, continuous.optimum, options),
+  );
   if (!fixed) return best;
   const simulations = best.simulations + fixed.simulations;
   if (!snappedBetter(fixed.evaluation, best.after, judgeOf(space, continuous))) {

@@ -8,6 +8,7 @@ import {
   type ScenarioRun,
 } from "../network/simulate_scenario.ts";
 import { applyDesign, type DesignSpace } from "./design_space.ts";
+import { recordSimulation } from "./run_meter.ts";
 import { sizedNetwork } from "./sized_network.ts";
 import type { StopOptions, StopReason } from "./stop.ts";
 
@@ -127,6 +128,19 @@ export function evaluateDesign(
   space: DesignSpace,
   x: Float64Array,
   options: EvaluateOptions & StopOptions = {},
+): EvaluationOutcome {
+  const start = performance.now();
+  try {
+    return simulateAndJudge(space, x, options);
+  } finally {
+    recordSimulation((performance.now() - start) / 1000);
+  }
+}
+
+function simulateAndJudge(
+  space: DesignSpace,
+  x: Float64Array,
+  options: EvaluateOptions & StopOptions,
 ): EvaluationOutcome {
   const sized = sizedNetwork(space);
   if (!sized.ok) return { ok: false, message: sized.message };

@@ -1,8 +1,6 @@
 import type { FlowCurve } from "../../materials/flow_curve.ts";
 import {
-  type ChannelFlow,
   type ChannelLaw,
-  type ChannelResistance,
   radialDiskFlow,
   type Section,
   shrinkSection,
@@ -81,65 +79,15 @@ interface KeptLaw {
  * The last law built for each branch of one fill (element × side), with its inputs. A branch
  * law is a pure function of its element, its frozen layer and filled volume (its geometry)
  * and of the melt temperature and pressure its flow curve is taken at; when all are the same
- * as last time the same law (with its memory of recent flows, {@link recentFlows}) serves
- * again, and when only the melt changed the prepared geometry does.
+ * as last time the same law serves again, and when only the melt changed the prepared
+ * geometry does. (A memory of each law's recent flows was tried and dropped: its look-ups
+ * cost more than the few evaluations they saved.)
  */
 export type BranchLawCache = (KeptLaw | undefined)[];
 
 /** An empty cache for a network of `elementCount` elements. */
 export function branchLawCache(elementCount: number): BranchLawCache {
   return new Array<KeptLaw | undefined>(3 * elementCount).fill(undefined);
-}
-
-/** How many recent (flow, result) pairs a cached law remembers. */
-const RECENT = 4;
-
-/** A ring of the last {@link RECENT} (flow, result) pairs. */
-class Recent<T> {
-  private readonly flows: number[] = [];
-  private readonly results: T[] = [];
-  private next = 0;
-
-  /** The result kept for this flow (the same float, the same sign of zero), or undefined. */
-  find(flow: number): T | undefined {
-    const flows = this.flows;
-    for (let i = 0; i < flows.length; i++) {
-      const f = flows[i];
-      if (f === flow && (f !== 0 || 1 / f === 1 / flow)) return this.results[i];
-    }
-    return undefined;
-  }
-
-  keep(flow: number, result: T): T {
-    this.flows[this.next] = flow;
-    this.results[this.next] = result;
-    this.next = (this.next + 1) % RECENT;
-    return result;
-  }
-}
-
-/**
- * `law` remembering its last {@link RECENT} results and resistances: a flow it has seen gets
- * the same result object back (a full result also serves as the resistance). Same numbers as
- * `law`; callers never mutate a ChannelFlow.
- */
-export function recentFlows(law: ChannelLaw): ChannelLaw {
-  const results = new Recent<ChannelFlow>();
-  const resistances = new Recent<ChannelResistance>();
-  const full = (flow: number): ChannelFlow => {
-    const known = results.find(flow);
-    if (known) return known;
-    const result = law(flow);
-    resistances.keep(flow, result);
-    return results.keep(flow, result);
-  };
-  const resistance = (flow: number): ChannelResistance => {
-    const known = resistances.find(flow) ?? results.find(flow);
-    if (known) return known;
-    if (law.resistance === law) return full(flow);
-    return resistances.keep(flow, law.resistance(flow));
-  };
-  return Object.assign(full, { resistance });
 }
 
 function curveFor(ctx: FillContext, state: FillState, e: NetworkElement): FlowCurve {
@@ -184,7 +132,7 @@ export function cachedBranchLaw(
   const geometry = sameGeometry
     ? kept.geometry
     : branchGeometry(e, { side: branch.side, delta, volume });
-  const law = recentFlows(geometryLaw(geometry, curve));
+  const law = geometryLaw(geometry, curve);
   cache[slot] = { delta, volume, geometry, temperature, pressure, law };
   return law;
 }

@@ -1,4 +1,4 @@
-import type { ChannelFlow } from "../../physics/mod.ts";
+import type { ChannelFlow, ChannelLaw } from "../../physics/mod.ts";
 import { type HydraulicElement, hydraulicTopology, solveHydraulics } from "../hydraulic_solve.ts";
 import type { Assembly } from "./assemble.ts";
 import { type BranchLawCache, branchLawCache, cachedBranchLaw } from "./channel_laws.ts";
@@ -12,8 +12,28 @@ export interface Solved {
   flows: Float64Array;
   /** Pressure per graph node, Pa (NaN where dry). */
   pressure: Float64Array;
-  /** Each branch's law at its flow. */
-  channel: ChannelFlow[];
+  /** Each branch's law at its flow (full results: wall shear as well as the pressure drop). */
+  readonly channel: readonly ChannelFlow[];
+}
+
+/**
+ * A solved instant whose full channel results are evaluated on first use: most solves are
+ * trials of a step, whose flows are all that is read. The laws are pure functions of the
+ * flow, so when they are evaluated does not change a number.
+ */
+class SolvedInstant implements Solved {
+  #channel: ChannelFlow[] | undefined;
+
+  constructor(
+    readonly assembly: Assembly,
+    readonly flows: Float64Array,
+    readonly pressure: Float64Array,
+    private readonly laws: readonly ChannelLaw[],
+  ) {}
+
+  get channel(): readonly ChannelFlow[] {
+    return this.#channel ??= this.laws.map((law, k) => law(this.flows[k]));
+  }
 }
 
 /** How the hydraulic solves of one fill went, accumulated. */
@@ -97,7 +117,7 @@ export function solveInstant(
     // Frozen shut at the feed: nothing flows, every wet node keeps its last pressure.
     const pressure = new Float64Array(nodeCount).fill(NaN);
     fillDeadEnds(ctx, state, pressure);
-    return { assembly, flows: new Float64Array(0), pressure, channel: [] };
+    return new SolvedInstant(assembly, new Float64Array(0), pressure, []);
   }
   let cache = lawCaches.get(ctx);
   if (!cache) lawCaches.set(ctx, cache = branchLawCache(ctx.elements.length));
@@ -133,8 +153,7 @@ export function solveInstant(
     if (assembly.local[n] >= 0) pressure[n] = solution.pressures[assembly.local[n]];
   }
   fillDeadEnds(ctx, state, pressure);
-  const channel = laws.map((law, k) => law(solution.flows[k]));
-  return { assembly, flows: solution.flows, pressure, channel };
+  return new SolvedInstant(assembly, solution.flows, pressure, laws);
 }
 
 /**

@@ -1,52 +1,12 @@
 import assert from "node:assert/strict";
-import type { ChannelFlow, ChannelLaw } from "../../../src/physics/mod.ts";
 import { assemble } from "../../../src/network/fill/assemble.ts";
 import {
   branchLaw,
   branchLawCache,
   cachedBranchLaw,
-  recentFlows,
 } from "../../../src/network/fill/channel_laws.ts";
 import { unequalBranches } from "../_scenarios.ts";
 import { fixture, markFull } from "./_fixture.ts";
-
-/** A law that counts its evaluations: ΔP = 2·Q (a linear resistance, no source needed). */
-function counted(): { law: ChannelLaw; calls: () => number } {
-  let calls = 0;
-  const law = (q: number): ChannelFlow => {
-    calls++;
-    return {
-      pressureDrop: 2 * q,
-      dPressureDropDFlow: 2,
-      wallShearRate: Math.abs(q),
-      apparentWallShearRate: Math.abs(q),
-      wallShearStress: Math.abs(q),
-    };
-  };
-  return { law: Object.assign(law, { resistance: law }), calls: () => calls };
-}
-
-Deno.test("recentFlows: a flow seen among the last four returns the same result object, uncomputed", () => {
-  const { law, calls } = counted();
-  const memo = recentFlows(law);
-  const a = memo(1e-6);
-  assert.equal(memo(1e-6), a);
-  assert.equal(memo.resistance(1e-6), a, "a full result serves as the resistance");
-  assert.equal(calls(), 1);
-  for (const q of [2e-6, 3e-6, 4e-6]) memo.resistance(q);
-  assert.equal(calls(), 4);
-  assert.equal(memo(1e-6), a, "still among the last four");
-  memo(5e-6); // pushes 1e-6 out
-  assert.notEqual(memo(1e-6), a);
-  assert.equal(memo(1e-6).pressureDrop, a.pressureDrop);
-});
-
-Deno.test("recentFlows: +0 and −0 are different flows (the sign of a zero drop is kept)", () => {
-  const { law } = counted();
-  const memo = recentFlows(law);
-  assert.ok(Object.is(memo(0).pressureDrop, 0));
-  assert.ok(Object.is(memo(-0).pressureDrop, -0));
-});
 
 // Exact comparisons (assert.equal/deepEqual) on purpose: the cache must not change a bit.
 Deno.test("cachedBranchLaw: the same numbers as branchLaw, one law while the inputs hold, a new one when the melt changes", () => {
