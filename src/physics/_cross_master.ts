@@ -25,6 +25,11 @@
  * φ' is evaluated from the interpolated R by the exact formula above (relative error
  * ≈ (n·c + 1)× that of R), not by differentiating the interpolant.
  *
+ * The wall solve (ln g given, s wanted) reads s off an inverse table of the same grid step
+ * in ln g, each node solved once by Newton on R, interpolated by Hermite with the slopes
+ * ds/d ln g = 1/φ': for a circle, slit or Chebyshev node that is the answer; for other c
+ * the inverses, interpolated in c, start Newton on the interpolated R.
+ *
  * The stress potential K(s) = ∫ F·φ' ds (so that τ*·ΔK = ∫ τw d ln Γ, what a linear
  * taper's pressure drop needs: `tapered_flow.ts`) is tabulated on the same grid, on first use.
  *
@@ -316,6 +321,20 @@ export function crossMasterSolve(n: number, c: number, g: number, out: Float64Ar
   if (!tables) return false;
   const m = 1 - n;
   const target = Math.log(g);
+  if (!Array.isArray(tables) && inverseInto(inverseOf(tables, n, c), target, INVERSE)) {
+    // One table: its inverse's cubic is the root to the tables' own accuracy (the master
+    // curve tests agree with the exact integral to 3e-10 either way), so no Newton step is
+    // needed; φ' by the exact formula from R there.
+    const s = INVERSE[0];
+    const x = Math.exp(s);
+    const xm = Math.exp(m * s);
+    out[0] = x;
+    out[1] = x / (1 + xm);
+    const nu = (1 + n * xm) / (1 + xm);
+    out[2] = nu;
+    out[3] = nu * (Math.exp(-evalR(tables, s)) - c);
+    return true;
+  }
   let s = startOf(master, c, tables, target);
   for (let iter = 0; iter < 40; iter++) {
     if (s < S_MIN || s > S_MAX) {
@@ -373,6 +392,25 @@ function startOf(
     sum += LW[j] * inverseAt(inverseOf(tables[j], master.n, C_NODES[j]), target, C_NODES[j]);
   }
   return sum;
+}
+
+/** Scratch of {@link inverseInto}. */
+const INVERSE = new Float64Array(1);
+
+/**
+ * s(ln g) from the inverse table's Hermite cubic into `out[0]`, or false outside the table
+ * (or where a node of the cell was clamped to the edge of the R grid).
+ */
+function inverseInto(inverse: InverseTable, target: number, out: Float64Array): boolean {
+  const pos = (target - inverse.lo) / STEP;
+  const last = inverse.s.length - 1;
+  if (!(pos >= 0 && pos <= last)) return false;
+  let cell = Math.floor(pos);
+  if (cell >= last) cell = last - 1;
+  const { s, ds } = inverse;
+  if (s[cell] <= S_MIN || s[cell + 1] >= S_MAX) return false;
+  out[0] = hermiteOf(s, ds, cell, pos - cell);
+  return true;
 }
 
 function inverseAt(inverse: InverseTable, target: number, c: number): number {
