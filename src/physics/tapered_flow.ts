@@ -192,7 +192,7 @@ export function taperedGeometryLaw(
   geometry: TaperedChannelGeometry,
   curve: FlowCurve,
 ): ChannelLaw {
-  const { length, filledLength: filled, first: firstData, last: lastData } = geometry;
+  const { length, filledLength: filled, first: firstData } = geometry;
   if (filled === 0) {
     const empty = (flowRate: number): ChannelFlow => {
       checkFlowArgs("tapered channel flow", flowRate, length);
@@ -207,6 +207,73 @@ export function taperedGeometryLaw(
     };
     return Object.assign(empty, { resistance: empty });
   }
+  const cone = Number.isFinite(geometry.potentialFactor) &&
+    (curve.powerLaw !== undefined || curve.cross !== undefined);
+  return cone ? coneLaw(geometry, curve) : quadratureLaw(geometry, curve);
+}
+
+/**
+ * A cone of similar sections: with Dh linear in x and Γ ∝ Dh⁻³, dx/Dh = −ℓ/(3·ΔDh)·d ln Γ,
+ * so ΔP = ∫ 4τw/Dh dx = potentialFactor·(H(Γ₀) − H(Γ_ℓ)) with H = ∫ τw d ln Γ (the
+ * lubrication integral of Tadmor & Gogos §12.1 in closed form: `stressPotential`), and
+ * dΔP/dQ follows from dH/dQ = τw/Q. The ends give the wall shear as well (Γ is monotone
+ * along a cone). At zero flow, or where a potential is unknown (a Cross curve outside its
+ * tables), the quadrature law answers instead.
+ */
+function coneLaw(geometry: TaperedChannelGeometry, curve: FlowCurve): ChannelLaw {
+  const { length, first: firstData, last: lastData, potentialFactor: factor } = geometry;
+  const local = LOCAL;
+  let fallback: ChannelLaw | undefined;
+  const quadrature = () => fallback ??= quadratureLaw(geometry, curve);
+  // The closed form at |Q| = `at`, kept for the next call (the full law after a resistance).
+  let at = NaN;
+  let pressure = 0;
+  let slope = 0;
+  let shear = 0;
+  let apparent = 0;
+  let stress = 0;
+  const solve = (q: number): boolean => {
+    if (q === at) return true;
+    if (!(q > 0)) return false;
+    localGradientInto(q, firstData, curve, undefined, local);
+    const first = stressPotential(curve, firstData, local[SHEAR_RATE], local[STRESS]);
+    const firstShear = local[SHEAR_RATE];
+    const firstApparent = local[APPARENT];
+    const firstStress = local[STRESS];
+    localGradientInto(q, lastData, curve, undefined, local);
+    const last = stressPotential(curve, lastData, local[SHEAR_RATE], local[STRESS]);
+    if (!Number.isFinite(first) || !Number.isFinite(last)) return false;
+    pressure = factor * (first - last);
+    slope = (factor * (firstStress - local[STRESS])) / q;
+    const entryHigher = firstShear >= local[SHEAR_RATE];
+    shear = entryHigher ? firstShear : local[SHEAR_RATE];
+    apparent = entryHigher ? firstApparent : local[APPARENT];
+    stress = entryHigher ? firstStress : local[STRESS];
+    at = q;
+    return true;
+  };
+  const full = (flowRate: number): ChannelFlow => {
+    checkFlowArgs("tapered channel flow", flowRate, length);
+    if (!solve(Math.abs(flowRate))) return quadrature()(flowRate);
+    return {
+      pressureDrop: Math.sign(flowRate) * pressure,
+      wallShearRate: shear,
+      apparentWallShearRate: apparent,
+      wallShearStress: stress,
+      dPressureDropDFlow: slope,
+    };
+  };
+  const resistance = (flowRate: number): ChannelResistance => {
+    checkFlowArgs("tapered channel flow", flowRate, length);
+    if (!solve(Math.abs(flowRate))) return quadrature().resistance(flowRate);
+    return { pressureDrop: Math.sign(flowRate) * pressure, dPressureDropDFlow: slope };
+  };
+  return Object.assign(full, { resistance });
+}
+
+/** The law of a partly or wholly filled taper by Gauss–Legendre quadrature of the local law. */
+function quadratureLaw(geometry: TaperedChannelGeometry, curve: FlowCurve): ChannelLaw {
+  const { length, first: firstData, last: lastData } = geometry;
   const local = LOCAL;
   const cursor = CURSOR;
   // The quadrature sums and the node of highest wall shear (first of the largest) at `sumsAt`.
@@ -254,37 +321,6 @@ export function taperedGeometryLaw(
       ends[2] = local[STRESS];
     }
   };
-  // A cone of similar sections: with Dh linear in x and Γ ∝ Dh⁻³, dx/Dh = −ℓ/(3·ΔDh)·d ln Γ,
-  // so ΔP = ∫ 4τw/Dh dx = potentialFactor·(H(Γ₀) − H(Γ_ℓ)) with H = ∫ τw d ln Γ (the
-  // lubrication integral of Tadmor & Gogos §12.1 in closed form), and dΔP/dQ follows from
-  // dH/dQ = τw/Q. The ends give the wall shear as well (Γ is monotone along a cone).
-  const factor = geometry.potentialFactor;
-  const cone = Number.isFinite(factor) &&
-    (curve.powerLaw !== undefined || curve.cross !== undefined);
-  /** The closed form at `coneAt`: pressure drop, its slope, and the wall of higher shear. */
-  let coneAt = NaN;
-  const coneWall = new Float64Array(5);
-  /** The closed form at q > 0 into coneWall (kept for the next call); false when a potential is unknown. */
-  const coneSums = (q: number): boolean => {
-    if (q === coneAt) return true;
-    if (!cone || !(q > 0)) return false;
-    localGradientInto(q, firstData, curve, undefined, local);
-    const first = stressPotential(curve, firstData, local[SHEAR_RATE], local[STRESS]);
-    const firstShear = local[SHEAR_RATE];
-    const firstApparent = local[APPARENT];
-    const firstStress = local[STRESS];
-    localGradientInto(q, lastData, curve, undefined, local);
-    const last = stressPotential(curve, lastData, local[SHEAR_RATE], local[STRESS]);
-    if (!Number.isFinite(first) || !Number.isFinite(last)) return false;
-    coneWall[0] = factor * (first - last);
-    coneWall[1] = (factor * (firstStress - local[STRESS])) / q;
-    const entryHigher = firstShear >= local[SHEAR_RATE];
-    coneWall[2] = entryHigher ? firstShear : local[SHEAR_RATE];
-    coneWall[3] = entryHigher ? firstApparent : local[APPARENT];
-    coneWall[4] = entryHigher ? firstStress : local[STRESS];
-    coneAt = q;
-    return true;
-  };
   // A fresh cursor, ends first, then the nodes: the order of taperedChannelFlow. The nodes'
   // values depend on the cursor only when one of them needs the exact integral (a curve
   // without closed form or master curve); otherwise they may be summed alone.
@@ -297,15 +333,6 @@ export function taperedGeometryLaw(
   const full = (flowRate: number): ChannelFlow => {
     checkFlowArgs("tapered channel flow", flowRate, length);
     const q = Math.abs(flowRate);
-    if (coneSums(q)) {
-      return {
-        pressureDrop: Math.sign(flowRate) * coneWall[0],
-        wallShearRate: coneWall[2],
-        apparentWallShearRate: coneWall[3],
-        wallShearStress: coneWall[4],
-        dPressureDropDFlow: coneWall[1],
-      };
-    }
     if (q === sumsAt) {
       cursor.curve = null;
       atEnds(q);
@@ -322,9 +349,6 @@ export function taperedGeometryLaw(
   const resistance = (flowRate: number): ChannelResistance => {
     checkFlowArgs("tapered channel flow", flowRate, length);
     const q = Math.abs(flowRate);
-    if (coneSums(q)) {
-      return { pressureDrop: Math.sign(flowRate) * coneWall[0], dPressureDropDFlow: coneWall[1] };
-    }
     cursor.curve = null;
     if (integrate(q)) inOrder(q);
     return { pressureDrop: Math.sign(flowRate) * pressure, dPressureDropDFlow: slope };
