@@ -97,6 +97,17 @@ export function eventStep(
   let aimedAtEvent = !onLanding && step === hEvent;
   let rejected = 0;
 
+  // The last trial's length and end flows: later trials start Newton from the flows
+  // interpolated linearly in the length between s0 and it (mass-balanced like both).
+  let lastLength = 0;
+  let lastFlows = s0.flows;
+  const warmAt = (length: number): Float64Array => {
+    if (lastLength === 0) return s0.flows;
+    const w = length / lastLength;
+    const warm = new Float64Array(s0.flows.length);
+    for (let k = 0; k < warm.length; k++) warm[k] = s0.flows[k] + w * (lastFlows[k] - s0.flows[k]);
+    return warm;
+  };
   // One Heun step of length `length` from the current state.
   const trial = (
     length: number,
@@ -107,9 +118,11 @@ export function eventStep(
       t: t + length,
       volumes: predicted,
       assembly: s0.assembly,
-      warm: s0.flows,
+      warm: warmAt(length),
     });
     if ("failure" in s1) return s1;
+    lastLength = length;
+    lastFlows = s1.flows;
     let change = 0;
     const next = fill.slice();
     for (const { br, k } of partial) {
