@@ -57,6 +57,8 @@ export interface RunScenarioOptions {
   deadline?: number;
   /** Sample every cavity's fill exactly at these injected volumes, m³ (`FillResult.samples`). */
   sampleVolumes?: readonly number[];
+  /** The fill's step control (`SimulateFillOptions.flowChangeTolerance`); default 0.02. */
+  flowChangeTolerance?: number;
 }
 
 /** The library's material ids, as the scenario parser wants them. */
@@ -204,6 +206,7 @@ export function fillOfNetwork(
       melt: setup.melt,
       process,
       onProgress: options.onProgress,
+      flowChangeTolerance: options.flowChangeTolerance,
       tangent: options.tangent,
       signal: options.signal,
       deadline: options.deadline,

@@ -25,6 +25,14 @@
  * φ' is evaluated from the interpolated R by the exact formula above (relative error
  * ≈ (n·c + 1)× that of R), not by differentiating the interpolant.
  *
+ * The wall solve (ln g given, s wanted) reads s off an inverse table of the same grid step
+ * in ln g, each node solved once by Newton on R, interpolated by Hermite with the slopes
+ * ds/d ln g = 1/φ': for a circle, slit or Chebyshev node that is the answer; for other c
+ * the inverses, interpolated in c, start Newton on the interpolated R.
+ *
+ * The stress potential K(s) = ∫ F·φ' ds (so that τ*·ΔK = ∫ τw d ln Γ, what a linear
+ * taper's pressure drop needs: `tapered_flow.ts`) is tabulated on the same grid, on first use.
+ *
  * Tables are built once per n (a few ms) and kept in a module-level Map; the c-family for
  * general sections is built on first use. Outside the grid, outside n ∈ [0.05, 0.98] or
  * c ∈ [2, 3.25] the caller falls back to the exact integral.
@@ -63,6 +71,18 @@ const C_WEIGHTS = C_NODES.map((_, j) =>
 interface MasterTable {
   readonly r: Float64Array;
   readonly dr: Float64Array;
+  /** ln K(s) − s of the stress potential and its slope at the same nodes, built on first use ({@link crossMasterPotential}). */
+  k?: Float64Array;
+  dk?: Float64Array;
+  /** s as a function of ln g, the start of the wall solve, built on first use ({@link inverseOf}). */
+  inverse?: InverseTable;
+}
+
+/** s at the nodes ln g = lo + k·STEP, k = 0…s.length − 1, and ds/d ln g = 1/φ' there. */
+interface InverseTable {
+  readonly lo: number;
+  readonly s: Float64Array;
+  readonly ds: Float64Array;
 }
 
 /** The master curves of one n. */
@@ -138,11 +158,56 @@ function masterOf(n: number): CrossMaster {
 
 /** Hermite basis at fractional position t in a cell of width STEP. */
 function hermite(table: MasterTable, cell: number, t: number): number {
+  return hermiteOf(table.r, table.dr, cell, t);
+}
+
+/** Cubic Hermite interpolant of nodal values `f` and slopes `df` (per unit s) at t in `cell`. */
+function hermiteOf(f: Float64Array, df: Float64Array, cell: number, t: number): number {
   const t2 = t * t;
   const u = 1 - t;
   const u2 = u * u;
-  return (1 + 2 * t) * u2 * table.r[cell] + t * u2 * STEP * table.dr[cell] +
-    t2 * (3 - 2 * t) * table.r[cell + 1] - t2 * u * STEP * table.dr[cell + 1];
+  return (1 + 2 * t) * u2 * f[cell] + t * u2 * STEP * df[cell] +
+    t2 * (3 - 2 * t) * f[cell + 1] - t2 * u * STEP * df[cell + 1];
+}
+
+/**
+ * K'(s) = F·φ' = x·F'·(e^−R − c) at s = ln x with R = R(s): the slope of the stress
+ * potential (x·F' = F·ν = x(1 + n·x^m)/(1 + x^m)²).
+ */
+function potentialSlope(s: number, r: number, n: number, c: number): number {
+  const x = Math.exp(s);
+  const xm = Math.exp((1 - n) * s);
+  const xdF = (x * (1 + n * xm)) / ((1 + xm) * (1 + xm));
+  return xdF * (Math.exp(-r) - c);
+}
+
+/**
+ * The stress potential of one table, kept as L(s) = ln K(s) − s (bounded and smooth:
+ * 0 at the Newtonian end, linear at the power-law end) with exact node slopes
+ * L' = K'/K − 1. K starts at e^S_MIN, the Newtonian potential below the grid (any constant
+ * would do: only differences of K have meaning), and is accumulated by 4-point
+ * Gauss–Legendre per cell on the Hermite R (error h⁴/384·|R⁗|).
+ */
+function buildPotential(table: MasterTable, n: number, c: number): void {
+  const k = new Float64Array(CELLS + 1);
+  const dk = new Float64Array(CELLS + 1);
+  let sum = Math.exp(S_MIN);
+  const record = (i: number) => {
+    const s = S_MIN + i * STEP;
+    k[i] = Math.log(sum) - s;
+    dk[i] = potentialSlope(s, table.r[i], n, c) / sum - 1;
+  };
+  record(0);
+  for (let cell = 0; cell < CELLS; cell++) {
+    for (let i = 0; i < CELL_RULE.nodes.length; i++) {
+      const t = 0.5 + 0.5 * CELL_RULE.nodes[i];
+      const s = S_MIN + (cell + t) * STEP;
+      sum += 0.5 * STEP * CELL_RULE.weights[i] * potentialSlope(s, hermite(table, cell, t), n, c);
+    }
+    record(cell + 1);
+  }
+  table.k = k;
+  table.dk = dk;
 }
 
 /** Barycentric weights for the current c (scratch, reused between calls). */
@@ -179,6 +244,44 @@ function evalR(tables: MasterTable | MasterTable[], s: number): number {
   return sum;
 }
 
+/** K(s) (s inside the grid) from one table or from the family weighted by LW. */
+function evalK(
+  master: CrossMaster,
+  c: number,
+  tables: MasterTable | MasterTable[],
+  s: number,
+): number {
+  const pos = (s - S_MIN) / STEP;
+  let cell = Math.floor(pos);
+  if (cell >= CELLS) cell = CELLS - 1;
+  const t = pos - cell;
+  if (!Array.isArray(tables)) {
+    if (!tables.k) buildPotential(tables, master.n, c);
+    return Math.exp(hermiteOf(tables.k!, tables.dk!, cell, t) + s);
+  }
+  let sum = 0;
+  for (let j = 0; j < C_COUNT; j++) {
+    const table = tables[j];
+    if (!table.k) buildPotential(table, master.n, C_NODES[j]);
+    sum += LW[j] * Math.exp(hermiteOf(table.k!, table.dk!, cell, t) + s);
+  }
+  return sum;
+}
+
+/**
+ * The dimensionless stress potential K(s_w) = ∫ F(x_w) d ln g from s = S_MIN, so that
+ * τ*·(K(s₁) − K(s₀)) = ∫ τw d ln Γ between two wall states of one curve and one c
+ * (g ∝ Γ; d ln g = φ'·ds). K is tabulated like R, with exact node slopes K' = F·φ', and
+ * interpolated in c as R is (analytic in c). NaN outside the tabulated domain.
+ */
+export function crossMasterPotential(n: number, c: number, s: number): number {
+  if (!(n >= N_LO && n <= N_HI) || !(s >= S_MIN && s <= S_MAX)) return NaN;
+  const master = masterOf(n);
+  const tables = tablesFor(master, c);
+  if (!tables) return NaN;
+  return evalK(master, c, tables, s);
+}
+
 /** Dimensionless wall state: x_w, F(x_w), ν(x_w) and φ' = d ln Γ/d ln γ̇w. */
 export interface MasterWall {
   /** x_w = η0·γ̇w/τ*. */
@@ -213,12 +316,26 @@ const SCRATCH = new Float64Array(4);
  */
 export function crossMasterSolve(n: number, c: number, g: number, out: Float64Array): boolean {
   if (!(n >= N_LO && n <= N_HI) || !(g > 0) || !Number.isFinite(g)) return false;
-  const tables = tablesFor(masterOf(n), c);
+  const master = masterOf(n);
+  const tables = tablesFor(master, c);
   if (!tables) return false;
   const m = 1 - n;
   const target = Math.log(g);
-  // Newtonian start (R = −ln(c + 1)); φ ≈ s − const with slope ≈ 1, so Newton is fast.
-  let s = target + Math.log(c + 1);
+  if (!Array.isArray(tables) && inverseInto(inverseOf(tables, n, c), target, INVERSE)) {
+    // One table: its inverse's cubic is the root to the tables' own accuracy (the master
+    // curve tests agree with the exact integral to 3e-10 either way), so no Newton step is
+    // needed; φ' by the exact formula from R there.
+    const s = INVERSE[0];
+    const x = Math.exp(s);
+    const xm = Math.exp(m * s);
+    out[0] = x;
+    out[1] = x / (1 + xm);
+    const nu = (1 + n * xm) / (1 + xm);
+    out[2] = nu;
+    out[3] = nu * (Math.exp(-evalR(tables, s)) - c);
+    return true;
+  }
+  let s = startOf(master, c, tables, target);
   for (let iter = 0; iter < 40; iter++) {
     if (s < S_MIN || s > S_MAX) {
       // Try once from the clamped end; a root outside the grid falls back.
@@ -233,17 +350,104 @@ export function crossMasterSolve(n: number, c: number, g: number, out: Float64Ar
     const slope = nu * (Math.exp(-r) - c);
     const step = (target - r - s) / slope;
     s += step;
-    if (Math.abs(step) < 1e-12) {
+    if (Math.abs(step) < NEWTON_DONE) {
       if (s < S_MIN || s > S_MAX) return false;
+      // R at the new s to first order (R' = φ' − 1; the rest is ≲ step² as well).
+      const rFinal = r + (slope - 1) * step;
       const x = Math.exp(s);
       const xmFinal = Math.exp(m * s);
       const nuFinal = (1 + n * xmFinal) / (1 + xmFinal);
       out[0] = x;
       out[1] = x / (1 + xmFinal);
       out[2] = nuFinal;
-      out[3] = nuFinal * (Math.exp(-evalR(tables, s)) - c);
+      out[3] = nuFinal * (Math.exp(-rFinal) - c);
       return true;
     }
   }
   return false;
+}
+
+/**
+ * A Newton step this small ends the wall solve: convergence is quadratic with
+ * |φ''/(2φ')| ≲ 1 (φ' → 1 at both ends of the curve), so the root is then within ~1e-12
+ * in s, below the tables' own interpolation error.
+ */
+const NEWTON_DONE = 1e-6;
+
+/**
+ * Start of the wall solve for ln g = `target`: the inverse tables' Hermite value (for the
+ * c-family interpolated in c like R, s being analytic in c too), within ~1e-9 of the root,
+ * so one Newton step usually ends it; outside the inverse grid the Newtonian start
+ * R = −ln(c + 1).
+ */
+function startOf(
+  master: CrossMaster,
+  c: number,
+  tables: MasterTable | MasterTable[],
+  target: number,
+): number {
+  if (!Array.isArray(tables)) return inverseAt(inverseOf(tables, master.n, c), target, c);
+  let sum = 0;
+  for (let j = 0; j < C_COUNT; j++) {
+    sum += LW[j] * inverseAt(inverseOf(tables[j], master.n, C_NODES[j]), target, C_NODES[j]);
+  }
+  return sum;
+}
+
+/** Scratch of {@link inverseInto}. */
+const INVERSE = new Float64Array(1);
+
+/**
+ * s(ln g) from the inverse table's Hermite cubic into `out[0]`, or false outside the table
+ * (or where a node of the cell was clamped to the edge of the R grid).
+ */
+function inverseInto(inverse: InverseTable, target: number, out: Float64Array): boolean {
+  const pos = (target - inverse.lo) / STEP;
+  const last = inverse.s.length - 1;
+  if (!(pos >= 0 && pos <= last)) return false;
+  let cell = Math.floor(pos);
+  if (cell >= last) cell = last - 1;
+  const { s, ds } = inverse;
+  if (s[cell] <= S_MIN || s[cell + 1] >= S_MAX) return false;
+  out[0] = hermiteOf(s, ds, cell, pos - cell);
+  return true;
+}
+
+function inverseAt(inverse: InverseTable, target: number, c: number): number {
+  const pos = (target - inverse.lo) / STEP;
+  const last = inverse.s.length - 1;
+  if (!(pos >= 0 && pos <= last)) return target + Math.log(c + 1);
+  let cell = Math.floor(pos);
+  if (cell >= last) cell = last - 1;
+  return hermiteOf(inverse.s, inverse.ds, cell, pos - cell);
+}
+
+/**
+ * The inverse of ln g = R(s) + s on a uniform grid in ln g from its value at S_MIN, each
+ * node solved by Newton on the table from the node before, with slope 1/φ'.
+ */
+function inverseOf(table: MasterTable, n: number, c: number): InverseTable {
+  if (table.inverse) return table.inverse;
+  const lo = table.r[0] + S_MIN;
+  const hi = table.r[CELLS] + S_MAX;
+  const count = Math.floor((hi - lo) / STEP) + 1;
+  const s = new Float64Array(count);
+  const ds = new Float64Array(count);
+  const m = 1 - n;
+  let root = S_MIN;
+  for (let k = 0; k < count; k++) {
+    const target = lo + k * STEP;
+    let slope = 1;
+    for (let iter = 0; iter < 40; iter++) {
+      const r = evalR(table, Math.min(S_MAX, Math.max(S_MIN, root)));
+      const xm = Math.exp(m * root);
+      slope = ((1 + n * xm) / (1 + xm)) * (Math.exp(-r) - c);
+      const step = (target - r - root) / slope;
+      root = Math.min(S_MAX, Math.max(S_MIN, root + step));
+      if (Math.abs(step) < 1e-13) break;
+    }
+    s[k] = root;
+    ds[k] = 1 / slope;
+  }
+  return table.inverse = { lo, s, ds };
 }

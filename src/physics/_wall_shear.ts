@@ -28,7 +28,7 @@
  */
 import type { FlowCurve } from "../materials/flow_curve.ts";
 import { compositeRule, gaussLegendre } from "./_quadrature.ts";
-import { crossMasterSolve } from "./_cross_master.ts";
+import { crossMasterPotential, crossMasterSolve } from "./_cross_master.ts";
 
 /** Kozicki constants of a section: a, b (dimensionless, a > 0, b > 0). */
 export interface KozickiConstants {
@@ -149,6 +149,27 @@ export function wallResponse(
   const out = new Float64Array(3);
   wallResponseInto(curve, apparent, constants, cursor, out);
   return { shearRate: out[0], stress: out[1], dStressDApparent: out[2] };
+}
+
+/**
+ * The stress potential H(Γ) = ∫ τw d ln Γ of a section (Pa), at the wall state (γ̇w, τw)
+ * solved for Γ; defined up to a constant of the curve and c, so only differences between two
+ * wall states of one curve and one section shape have meaning. NaN when there is no closed
+ * form: a power law has H = τw/n (τw ∝ Γⁿ, Kozicki et al. 1966 eq. 26), a Cross curve the
+ * tabulated master potential τ*·K(ln(η0·γ̇w/τ*)) of `_cross_master.ts` inside its domain.
+ */
+export function stressPotential(
+  curve: FlowCurve,
+  constants: KozickiConstants,
+  shearRate: number,
+  stress: number,
+): number {
+  const law = curve.powerLaw;
+  if (law) return stress / law.index;
+  const cross = curve.cross;
+  if (!cross || !(shearRate > 0)) return NaN;
+  const s = Math.log((cross.zeroShearViscosity * shearRate) / cross.tauStar);
+  return cross.tauStar * crossMasterPotential(cross.index, constants.b / constants.a, s);
 }
 
 const MASTER = new Float64Array(4);

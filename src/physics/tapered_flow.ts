@@ -20,7 +20,7 @@ import {
   STRESS,
 } from "./_local_gradient.ts";
 import { gaussLegendre } from "./_quadrature.ts";
-import { type IntegralCursor, newCursor } from "./_wall_shear.ts";
+import { type IntegralCursor, newCursor, stressPotential } from "./_wall_shear.ts";
 
 /** Options of {@link taperedChannelFlow}. */
 export interface TaperedChannelFlowOptions {
@@ -84,10 +84,29 @@ export interface TaperedChannelGeometry {
   /** Section data at the entry and at the end of the filled part. */
   readonly first: SectionFlowData;
   readonly last: SectionFlowData;
-  /** Quadrature weights (m) and each node's section data, toward the narrow end. */
+  /** The quadrature of the filled part, built on first use (a cone's closed form needs none). */
+  quadrature(): TaperQuadrature;
+  /**
+   * For a cone of similar sections (circle, half-round: a, b constant, A ∝ Dh²) that
+   * widens or narrows enough, 4·ℓ/(3·(Dh(ℓ) − Dh(0))) in m/m = 1: the pressure drop is
+   * this times the difference of the ends' stress potentials ({@link taperedGeometryLaw}).
+   * NaN otherwise.
+   */
+  readonly potentialFactor: number;
+}
+
+/** Quadrature weights (m) and each node's section data, toward the narrow end. */
+export interface TaperQuadrature {
   readonly weights: Float64Array;
   readonly nodes: readonly SectionFlowData[];
 }
+
+/**
+ * Smallest |ln(Dh(ℓ)/Dh(0))| for the cone closed form: below it the difference of the two
+ * ends' potentials loses digits to cancellation (their interpolation error, ~1e-10 of each,
+ * over a difference ∝ the log ratio), and the quadrature, one panel there, is used instead.
+ */
+const MIN_CONE_LOG_RATIO = 0.05;
 
 /**
  * The geometry half of {@link taperedChannelLaw}: quadrature nodes and weights of the filled
@@ -108,22 +127,34 @@ export function taperedChannelGeometry(
   const dataAt = (x: number) => sectionFlowData(interpolateSection(entry, exit, x / length));
   const firstData = dataAt(0);
   const lastData = filled > 0 ? dataAt(filled) : firstData;
-  const prepared = {
+  let quadrature: TaperQuadrature | undefined;
+  const similar = entry.kind === "circle" || entry.kind === "half_round";
+  const span = filled > 0 ? Math.log(lastData.hydraulicDiameter / firstData.hydraulicDiameter) : 0;
+  return {
     length,
     filledLength: filled,
     first: firstData,
     last: lastData,
-    weights: new Float64Array(0),
-    nodes: [] as SectionFlowData[],
+    quadrature: () => quadrature ??= taperQuadrature(dataAt, filled, span),
+    potentialFactor: similar && Math.abs(span) >= MIN_CONE_LOG_RATIO
+      ? (4 * filled) / (3 * (lastData.hydraulicDiameter - firstData.hydraulicDiameter))
+      : NaN,
   };
-  if (filled === 0) return prepared;
+}
 
-  // Substitution x = filled·expm1(u − u0)/expm1(u1 − u0), u = ln Dh at a linear Dh: the
-  // integrand becomes nearly a pure exponential in u (a power law gives exactly one), so
-  // Gauss–Legendre converges fast. Panels no wider than ln(PANEL_RATIO) in u.
-  const d0 = firstData.hydraulicDiameter;
-  const d1 = lastData.hydraulicDiameter;
-  const span = Math.log(d1 / d0);
+/**
+ * Gauss–Legendre nodes over the filled length `filled` of a taper whose Dh changes by
+ * e^span along it, with `dataAt(x)` the section data at x. Substitution
+ * x = filled·expm1(u − u0)/expm1(u1 − u0), u = ln Dh at a linear Dh: the integrand becomes
+ * nearly a pure exponential in u (a power law gives exactly one), so Gauss–Legendre
+ * converges fast. Panels no wider than ln(PANEL_RATIO) in u.
+ */
+function taperQuadrature(
+  dataAt: (x: number) => SectionFlowData,
+  filled: number,
+  span: number,
+): TaperQuadrature {
+  if (filled === 0) return { weights: new Float64Array(0), nodes: [] };
   const panels = Math.max(1, Math.ceil(Math.abs(span) / Math.log(PANEL_RATIO) - 1e-9));
   const scale = span === 0 ? 0 : filled / Math.expm1(span);
   const rule = RULE;
@@ -131,7 +162,7 @@ export function taperedChannelGeometry(
   const weights = new Float64Array(count);
   const nodes = new Array<SectionFlowData>(count);
   // Walk toward the narrow end so the shared quadrature cursor only moves up in shear.
-  const reverse = d1 > d0;
+  const reverse = span > 0;
   let k = 0;
   for (let p = 0; p < panels; p++) {
     const mid = (p + 0.5) / panels;
@@ -148,9 +179,7 @@ export function taperedChannelGeometry(
       }
     }
   }
-  prepared.weights = weights;
-  prepared.nodes = nodes;
-  return prepared;
+  return { weights, nodes };
 }
 
 /** Scratch of the taper laws (no law calls another while it evaluates). */
@@ -163,7 +192,7 @@ export function taperedGeometryLaw(
   geometry: TaperedChannelGeometry,
   curve: FlowCurve,
 ): ChannelLaw {
-  const { length, filledLength: filled, first: firstData, last: lastData } = geometry;
+  const { length, filledLength: filled, first: firstData } = geometry;
   if (filled === 0) {
     const empty = (flowRate: number): ChannelFlow => {
       checkFlowArgs("tapered channel flow", flowRate, length);
@@ -178,7 +207,73 @@ export function taperedGeometryLaw(
     };
     return Object.assign(empty, { resistance: empty });
   }
-  const { weights, nodes: nodeData } = geometry;
+  const cone = Number.isFinite(geometry.potentialFactor) &&
+    (curve.powerLaw !== undefined || curve.cross !== undefined);
+  return cone ? coneLaw(geometry, curve) : quadratureLaw(geometry, curve);
+}
+
+/**
+ * A cone of similar sections: with Dh linear in x and Γ ∝ Dh⁻³, dx/Dh = −ℓ/(3·ΔDh)·d ln Γ,
+ * so ΔP = ∫ 4τw/Dh dx = potentialFactor·(H(Γ₀) − H(Γ_ℓ)) with H = ∫ τw d ln Γ (the
+ * lubrication integral of Tadmor & Gogos §12.1 in closed form: `stressPotential`), and
+ * dΔP/dQ follows from dH/dQ = τw/Q. The ends give the wall shear as well (Γ is monotone
+ * along a cone). At zero flow, or where a potential is unknown (a Cross curve outside its
+ * tables), the quadrature law answers instead.
+ */
+function coneLaw(geometry: TaperedChannelGeometry, curve: FlowCurve): ChannelLaw {
+  const { length, first: firstData, last: lastData, potentialFactor: factor } = geometry;
+  const local = LOCAL;
+  let fallback: ChannelLaw | undefined;
+  const quadrature = () => fallback ??= quadratureLaw(geometry, curve);
+  // The closed form at |Q| = `at`, kept for the next call (the full law after a resistance).
+  let at = NaN;
+  let pressure = 0;
+  let slope = 0;
+  let shear = 0;
+  let apparent = 0;
+  let stress = 0;
+  const solve = (q: number): boolean => {
+    if (q === at) return true;
+    if (!(q > 0)) return false;
+    localGradientInto(q, firstData, curve, undefined, local);
+    const first = stressPotential(curve, firstData, local[SHEAR_RATE], local[STRESS]);
+    const firstShear = local[SHEAR_RATE];
+    const firstApparent = local[APPARENT];
+    const firstStress = local[STRESS];
+    localGradientInto(q, lastData, curve, undefined, local);
+    const last = stressPotential(curve, lastData, local[SHEAR_RATE], local[STRESS]);
+    if (!Number.isFinite(first) || !Number.isFinite(last)) return false;
+    pressure = factor * (first - last);
+    slope = (factor * (firstStress - local[STRESS])) / q;
+    const entryHigher = firstShear >= local[SHEAR_RATE];
+    shear = entryHigher ? firstShear : local[SHEAR_RATE];
+    apparent = entryHigher ? firstApparent : local[APPARENT];
+    stress = entryHigher ? firstStress : local[STRESS];
+    at = q;
+    return true;
+  };
+  const full = (flowRate: number): ChannelFlow => {
+    checkFlowArgs("tapered channel flow", flowRate, length);
+    if (!solve(Math.abs(flowRate))) return quadrature()(flowRate);
+    return {
+      pressureDrop: Math.sign(flowRate) * pressure,
+      wallShearRate: shear,
+      apparentWallShearRate: apparent,
+      wallShearStress: stress,
+      dPressureDropDFlow: slope,
+    };
+  };
+  const resistance = (flowRate: number): ChannelResistance => {
+    checkFlowArgs("tapered channel flow", flowRate, length);
+    if (!solve(Math.abs(flowRate))) return quadrature().resistance(flowRate);
+    return { pressureDrop: Math.sign(flowRate) * pressure, dPressureDropDFlow: slope };
+  };
+  return Object.assign(full, { resistance });
+}
+
+/** The law of a partly or wholly filled taper by Gauss–Legendre quadrature of the local law. */
+function quadratureLaw(geometry: TaperedChannelGeometry, curve: FlowCurve): ChannelLaw {
+  const { length, first: firstData, last: lastData } = geometry;
   const local = LOCAL;
   const cursor = CURSOR;
   // The quadrature sums and the node of highest wall shear (first of the largest) at `sumsAt`.
@@ -191,6 +286,7 @@ export function taperedGeometryLaw(
   /** The sums at q, the cursor as left by whatever ran before; true if a node needed the integral. */
   const integrate = (q: number): boolean => {
     let integral = false;
+    const { weights, nodes: nodeData } = geometry.quadrature();
     pressure = 0;
     slope = 0;
     peakShear = -Infinity;

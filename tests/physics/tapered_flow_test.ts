@@ -101,6 +101,72 @@ Deno.test("taper with equal ends equals the uniform channel; zero filled length 
   );
 });
 
+Deno.test("cone closed form, power law: the tagged curve takes H = τw/n and matches the cone formula", () => {
+  // Oracle: coneClosedForm above (Tadmor & Gogos §12.1). The tagged power law takes the
+  // closed-form path (ΔP = 4ℓ/(3ΔDh)·(H₀ − H_ℓ)), the untagged tests above the quadrature.
+  for (const n of [0.3, 0.6, 1]) {
+    for (const [r0, r1] of [[0.0005, 0.0015], [0.003, 0.001]]) {
+      const Q = 2e-6;
+      const options = {
+        entry: { kind: "circle", radius: r0 } as const,
+        exit: { kind: "circle", radius: r1 } as const,
+        length: L,
+        curve: powerLawCurve(K, n),
+      };
+      const whole = taperedChannelFlow(Q, options);
+      close(whole.pressureDrop, coneClosedForm(n, Q, r0, r1, L), 1e-12, `closed cone n=${n}`);
+      close(whole.dPressureDropDFlow, (n * whole.pressureDrop) / Q, 1e-12, "closed cone slope");
+      const part = taperedChannelFlow(-Q, { ...options, filledLength: 0.3 * L });
+      close(-part.pressureDrop, coneClosedForm(n, Q, r0, r1, 0.3 * L), 1e-12, "closed part cone");
+    }
+  }
+});
+
+Deno.test("cone closed form, Cross melt: tube and half-round cones against Simpson's rule of the uniform law", () => {
+  // Oracle: the lubrication integral ΔP = ∫ (dP/dx)(R(x)) dx (Tadmor & Gogos §12.1) by
+  // composite Simpson in the test (2 000 slices, error ~1e-12), each slice the uniform
+  // channel law of its own section on the exact Kozicki integral (untagged curve: the
+  // Weissenberg–Rabinowitsch–Mooney equation, Bird, Armstrong & Hassager §5.3); the taper
+  // takes the tabulated master potential. dΔP/dQ against a central difference of ΔP.
+  for (const n of [0.2, 0.45, 0.9]) {
+    const fast = crossCurve(2500, { tauStar: 6e4, index: n });
+    const exact = untagged(fast);
+    for (const kind of ["circle", "half_round"] as const) {
+      for (const [r0, r1] of [[0.0006, 0.0016], [0.004, 0.0025]]) {
+        for (const Q of [1e-8, 5e-6, 2e-4]) {
+          const slices = 2000;
+          let sum = 0;
+          for (let i = 0; i <= slices; i++) {
+            const radius = r0 + ((r1 - r0) * i) / slices;
+            const g = uniformChannelFlow(Q, { section: { kind, radius }, length: 1, curve: exact });
+            sum += (i === 0 || i === slices ? 1 : i % 2 === 1 ? 4 : 2) * g.pressureDrop;
+          }
+          sum *= L / (3 * slices);
+          const options = {
+            entry: { kind, radius: r0 },
+            exit: { kind, radius: r1 },
+            length: L,
+            curve: fast,
+          };
+          const cone = taperedChannelFlow(Q, options);
+          close(cone.pressureDrop, sum, 1e-7, `Cross cone n=${n} ${kind} Q=${Q}`);
+          const h = 1e-5 * Q;
+          const difference = (taperedChannelFlow(Q + h, options).pressureDrop -
+            taperedChannelFlow(Q - h, options).pressureDrop) / (2 * h);
+          close(cone.dPressureDropDFlow, difference, 1e-6, `Cross cone slope n=${n}`);
+          // The narrow end's wall, as the uniform law gives it there.
+          const narrow = uniformChannelFlow(Q, {
+            section: { kind, radius: Math.min(r0, r1) },
+            length: L,
+            curve: exact,
+          });
+          close(cone.wallShearRate, narrow.wallShearRate, 1e-7, "Cross cone wall shear");
+        }
+      }
+    }
+  }
+});
+
 // The worst deviation per check, printed on request (EVENFILL_REPORT=1); not a check.
 if (Deno.env.get("EVENFILL_REPORT")) {
   Deno.test("tapered report", () => {

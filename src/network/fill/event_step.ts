@@ -3,8 +3,14 @@ import type { FillContext } from "./context.ts";
 import type { FillState } from "./fill_state.ts";
 import { type Solved, solveInstant, type SolveStats } from "./solve_instant.ts";
 
-/** Relative tolerance for landing a step on an element's or cavity's full volume. */
+/**
+ * Relative tolerance for landing a step on an element's or cavity's full volume: ten times
+ * the hydraulic solve's own tolerance (1e-10), whose noise in the flows a tighter landing
+ * would chase.
+ */
 export const EVENT_TOLERANCE = 1e-10;
+/** Branches this close to capacity (relative) at the end of a step are full with it. */
+const SNAP_WINDOW = 1e-7;
 
 /** Where one step may go. */
 export interface EventStepOptions {
@@ -88,9 +94,20 @@ export function eventStep(
     step = landAt - t;
     onLanding = true;
   }
-  const aimedAtEvent = !onLanding && step === hEvent;
+  let aimedAtEvent = !onLanding && step === hEvent;
   let rejected = 0;
 
+  // The last trial's length and end flows: later trials start Newton from the flows
+  // interpolated linearly in the length between s0 and it (mass-balanced like both).
+  let lastLength = 0;
+  let lastFlows = s0.flows;
+  const warmAt = (length: number): Float64Array => {
+    if (lastLength === 0) return s0.flows;
+    const w = length / lastLength;
+    const warm = new Float64Array(s0.flows.length);
+    for (let k = 0; k < warm.length; k++) warm[k] = s0.flows[k] + w * (lastFlows[k] - s0.flows[k]);
+    return warm;
+  };
   // One Heun step of length `length` from the current state.
   const trial = (
     length: number,
@@ -101,9 +118,11 @@ export function eventStep(
       t: t + length,
       volumes: predicted,
       assembly: s0.assembly,
-      warm: s0.flows,
+      warm: warmAt(length),
     });
     if ("failure" in s1) return s1;
+    lastLength = length;
+    lastFlows = s1.flows;
     let change = 0;
     const next = fill.slice();
     for (const { br, k } of partial) {
@@ -130,32 +149,57 @@ export function eventStep(
     return (next[2 * br.element + br.side] - cap) / cap;
   };
 
+  /**
+   * The step at which branch k reaches capacity if its flow changes linearly over the step,
+   * q(τ) = q0 + a·τ with a from the trial of length `length` (flow `q1` there): the Heun
+   * volume q0·h + a·h²/2 then equals what is left, a quadratic whose root is exact to the
+   * flows' curvature (h³), where a secant on the miss is exact only to their slope (h²).
+   * NaN when the model has no positive root.
+   */
+  const quadraticLanding = (k: number, length: number, q1: number): number => {
+    const br = s0.assembly.branches[k];
+    const left = capacity(br) - fill[2 * br.element + br.side];
+    const q0 = s0.flows[k];
+    const a = (q1 - q0) / length;
+    const discriminant = q0 * q0 + 2 * a * left;
+    if (!(discriminant >= 0) || !(left > 0)) return NaN;
+    const denominator = q0 + Math.sqrt(discriminant);
+    return denominator > 0 ? (2 * left) / denominator : NaN;
+  };
+
   let result = trial(step);
   if ("failure" in result) return { kind: "failure", failure: result.failure };
-  // Flow-change control (not on a step aimed at an event: those are short by nature).
-  while (
-    result.change > 2 * options.flowChangeTolerance && !aimedAtEvent &&
-    step > nominalFillTime * 1e-9
-  ) {
+  // Flow-change control, on a step aimed at an event too: a front entering the narrow end
+  // of a tunnel gate slows sharply within such a step, and one Heun step across it would
+  // decide which gate fills first by the step's length rather than by the flows.
+  while (result.change > 2 * options.flowChangeTolerance && step > nominalFillTime * 1e-9) {
     step /= 2;
     onLanding = false;
+    aimedAtEvent = false;
     rejected++;
     result = trial(step);
     if ("failure" in result) return { kind: "failure", failure: result.failure };
   }
   let landing = crossing(result.next).k;
+  // The longest trial known to fall short of the target, to bracket from (not from 0).
+  let short = { step: 0, miss: NaN };
   if (landing < 0 && aimedAtEvent && missOf(result.next, target) < -EVENT_TOLERANCE) {
-    // Fell short of the predicted event: extend by secant until it is bracketed.
+    // Fell short of the predicted event: extend to the root of the linear-flow model (a
+    // secant 2 % long of it where the model has none) until it lands or is bracketed.
     for (let extend = 0; extend < 6 && landing < 0; extend++) {
       const miss = missOf(result.next, target);
       if (miss >= -EVENT_TOLERANCE) break;
       const br = s0.assembly.branches[target];
       const v0 = fill[2 * br.element + br.side];
       const gained = result.next[2 * br.element + br.side] - v0;
-      const longer = step * Math.min(4, ((capacity(br) - v0) / Math.max(gained, 1e-300)) * 1.02);
+      const modelled = quadraticLanding(target, step, result.s1.flows[target]);
+      const longer = modelled > step
+        ? Math.min(4 * step, modelled)
+        : step * Math.min(4, ((capacity(br) - v0) / Math.max(gained, 1e-300)) * 1.02);
       if (t + longer >= landAt) break;
       const attempt = trial(longer);
       if ("failure" in attempt) return { kind: "failure", failure: attempt.failure };
+      short = { step, miss };
       step = longer;
       result = attempt;
       landing = crossing(result.next).k;
@@ -169,8 +213,9 @@ export function eventStep(
       const cap = capacity(br);
       return (fill[2 * br.element + br.side] - cap) / cap;
     };
-    let lo = 0;
-    let gLo = gZero();
+    const fromShort = landing === target && short.step > 0 && short.step < step;
+    let lo = fromShort ? short.step : 0;
+    let gLo = fromShort ? short.miss : gZero();
     let hi = step;
     let gHi = missOf(result.next, landing);
     let side = 0;
@@ -213,7 +258,7 @@ export function eventStep(
   for (const { br } of partial) {
     const index = 2 * br.element + br.side;
     const cap = capacity(br);
-    if (fill[index] >= cap * (1 - 1e3 * EVENT_TOLERANCE)) {
+    if (fill[index] >= cap * (1 - SNAP_WINDOW)) {
       surplus += fill[index] - cap;
       fill[index] = cap;
       if (!newlyFull.includes(br.element)) newlyFull.push(br.element);

@@ -101,13 +101,15 @@ export function clampForce(ctx: FillContext, state: FillState, s: Solved): numbe
       force += e.projectedArea * f * pa * meanPressureShare(e, f, s.channel[k], s.flows[k]);
     }
   }
+  // A cavity or element still a branch of this assembly (the state just before it filled:
+  // the end of a phase is solved on the network it started from) is counted above already.
+  const inAssembly = new Uint8Array(elements.length);
+  for (const br of s.assembly.branches) inAssembly[br.element] = 1;
   for (const c of network.cavities) {
-    if (!isFull(state, c.element)) continue;
+    if (!isFull(state, c.element) || inAssembly[c.element]) continue;
     const p = s.pressure[elements[c.element].from];
     if (Number.isFinite(p)) force += c.projectedArea * p;
   }
-  const inAssembly = new Uint8Array(elements.length);
-  for (const br of s.assembly.branches) inAssembly[br.element] = 1;
   for (const e of elements) {
     if (e.kind === "cavity" || e.projectedArea === 0 || !isFull(state, e.index)) continue;
     if (inAssembly[e.index]) continue;

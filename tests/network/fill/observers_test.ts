@@ -23,6 +23,27 @@ Deno.test("clampForce: pressure × projected area, element by element, by hand",
   assertClose(clampForce(f.ctx, f.state, s), expected, { rel: 1e-12, what: "clamp force" });
 });
 
+Deno.test("clampForce at the end of filling: the last cavity, full now but solved as the branch it filled as, counts once", () => {
+  // The end of the fill is solved on the network the last step started from (the cavity a
+  // front at 0 Pa), then the cavity is marked full. By hand as above, the cavity's share
+  // being the strip's ½·p over its whole area, and nothing more for it being full.
+  const f = fixture();
+  markFull(f, ["hot_drop", "R1", "R2", "G1", "G2", "C1"]);
+  const c2 = f.element("C2");
+  f.state.sideStart[2 * c2] = 0;
+  f.state.fill[2 * c2] = 0.999 * f.network.elements[c2].volume;
+  const s = solvedNow(f, 1);
+  f.state.fill[2 * c2] = f.network.elements[c2].volume;
+  f.state.fullTime[c2] = 1;
+  f.state.cavityFullTime[f.network.elements[c2].cavity] = 1;
+  const p = (id: string) => s.pressure[f.node(id)];
+  const pC2 = p("C2");
+  const expected = 0.01 * p("C1") + 0.01 * pC2 / 2 + 5e-3 * 0.04 * p("A") +
+    1.4e-3 * 1e-3 * p("A") + 5e-3 * 0.12 * (p("J") + p("B")) / 2 +
+    1.4e-3 * 1e-3 * (p("B") + pC2) / 2;
+  assertClose(clampForce(f.ctx, f.state, s), expected, { rel: 1e-12, what: "clamp force" });
+});
+
 Deno.test("meanPressureShare: ½ on a strip; on a radial disk the area mean of (R^m − r^m), by quadrature", () => {
   const strip = { geometry: { type: "strip" } } as unknown as NetworkElement;
   const flat = {
