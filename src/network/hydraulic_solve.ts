@@ -379,8 +379,10 @@ function checkOptions(options: HydraulicOptions, elementCount: number) {
         `Cannot solve hydraulics: initialFlows has ${initial.length} values for ${elementCount} elements`,
       );
     }
-    if (!initial.every(Number.isFinite)) {
-      throw new RangeError("Cannot solve hydraulics: initialFlows must all be finite");
+    for (let e = 0; e < initial.length; e++) {
+      if (!Number.isFinite(initial[e])) {
+        throw new RangeError("Cannot solve hydraulics: initialFlows must all be finite");
+      }
     }
   }
   return { flowTolerance, massTolerance, maxIterations, initial };

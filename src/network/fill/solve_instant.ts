@@ -165,6 +165,9 @@ export function solveInstant(
  */
 export function fillDeadEnds(ctx: FillContext, state: FillState, pressure: Float64Array): void {
   const { nodeCount, elements } = ctx;
+  // Only wet nodes without a pressure get one (both ends of a full element are wet): when
+  // there is none, as before the first cavity fills, there is nothing to walk.
+  if (!someWetWithout(state, pressure)) return;
   const queue: number[] = [];
   for (let n = 0; n < nodeCount; n++) if (!Number.isNaN(pressure[n])) queue.push(n);
   while (queue.length > 0) {
@@ -185,6 +188,14 @@ export function fillDeadEnds(ctx: FillContext, state: FillState, pressure: Float
       pressure[n] = state.heldPressure[n];
     }
   }
+}
+
+/** Whether some wet node has no pressure (NaN) yet. */
+function someWetWithout(state: FillState, pressure: Float64Array): boolean {
+  for (let n = 0; n < pressure.length; n++) {
+    if (Number.isNaN(pressure[n]) && !Number.isNaN(state.wetTime[n])) return true;
+  }
+  return false;
 }
 
 /** Remember every node's pressure of a recorded instant (what a sealed node keeps). */
