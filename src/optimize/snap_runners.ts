@@ -250,6 +250,8 @@ export async function relaxAndFixRunners(
   const sizes = new Map(space.variables.map((v, j) => [v.element, continuous.x[j]]));
   const labels = new Map<string, string>();
   let simulations = 0;
+  /** How the last re-balance ended (none yet: the sizes are the continuous optimum's). */
+  let lastStop: string | undefined;
   for (;;) {
     let pick:
       | { v: (typeof space.variables)[number]; sides: Cutter[]; gap: number }
@@ -296,12 +298,24 @@ export async function relaxAndFixRunners(
     work.runners[v.index].adjustable = false;
     const free = space.variables.filter((u) => u.kind === "gate" || !labels.has(u.element));
     // Nearest cutter first; the other side only when the nearest leaves a limit broken.
-    let best: { cutter: Cutter; sizes: Map<string, number>; score: number } | undefined;
+    let best:
+      | { cutter: Cutter; sizes: Map<string, number>; score: number; stop?: string }
+      | undefined;
     for (const cutter of pick.sides) {
       work.runners[v.index].diameter_mm = mToMm(cutter.size);
       const trial = new Map(sizes);
       trial.set(v.element, cutter.size);
       let score = 0;
+      const unmoved = Math.abs(cutter.size - sizes.get(v.element)!) <= 1e-9 * cutter.size;
+      if (
+        unmoved && pick.sides.length === 1 && lastStop !== undefined &&
+        lastStop !== "iteration_limit"
+      ) {
+        // Already on its only cutter: fixing it moves nothing, and the last re-balance, with this
+        // runner free, stopped here by its own rule (not its iteration limit).
+        best = { cutter, sizes: trial, score, stop: lastStop };
+        break;
+      }
       if (free.length > 0) {
         const sub = await options.continuous(designSpace(work), {
           solver: options.solver,
@@ -315,7 +329,9 @@ export async function relaxAndFixRunners(
         const e = sub.outcome.optimum;
         sub.outcome.space.variables.forEach((u, j) => trial.set(u.element, e.x[j]));
         score = judgeOf(e);
-        if (!best || score < best.score) best = { cutter, sizes: trial, score };
+        if (!best || score < best.score) {
+          best = { cutter, sizes: trial, score, stop: sub.outcome.status };
+        }
         if (e.feasible) break;
       } else {
         best = { cutter, sizes: trial, score };
@@ -323,6 +339,7 @@ export async function relaxAndFixRunners(
       }
     }
     if (!best) return undefined;
+    lastStop = best.stop ?? lastStop;
     work.runners[v.index].diameter_mm = mToMm(best.cutter.size);
     labels.set(v.element, best.cutter.label);
     for (const [k, value] of best.sizes) sizes.set(k, value);
