@@ -4,7 +4,7 @@
  *
  * @module
  */
-import { erfInv } from "./_erf.ts";
+import { erf, erfInv } from "./_erf.ts";
 
 export { erf, erfc, erfInv } from "./_erf.ts";
 
@@ -61,6 +61,38 @@ export interface FrozenLayerOptions {
  * the layer at the channel's half-size).
  */
 export function frozenLayerThickness(contactTime: number, options: FrozenLayerOptions): number {
+  const theta = frozenLayerTheta(contactTime, options);
+  if (theta === Infinity || theta === 0) return theta;
+  return 2 * rememberedErfInv(theta) * Math.sqrt(options.diffusivity * contactTime);
+}
+
+/**
+ * Whether {@link frozenLayerThickness} at `contactTime` (s) returns less than `thickness`
+ * (m, > 0), mostly without its erf⁻¹: δ < s ⟺ θ < erf(s/(2√(α·t))) (erf increases). When
+ * erf⁻¹(θ) is not remembered the test is taken on that side with a margin of 1e-9 relative
+ * on each of z and erf(z), far above their rounding, so a true answer is always right; within
+ * the margin it answers false and the caller computes δ. Throws as frozenLayerThickness does.
+ */
+export function frozenLayerThinnerThan(
+  contactTime: number,
+  thickness: number,
+  options: FrozenLayerOptions,
+): boolean {
+  const theta = frozenLayerTheta(contactTime, options);
+  if (theta === Infinity || theta === 0) return theta < thickness;
+  const root = Math.sqrt(options.diffusivity * contactTime);
+  const remembered = knownErfInv(theta);
+  if (!Number.isNaN(remembered)) return 2 * remembered * root < thickness;
+  const z = (thickness / (2 * root)) * (1 - 1e-9);
+  return theta < erf(z) * (1 - 1e-9);
+}
+
+/**
+ * θ = (T_nf − T_w)/(T_m − T_w) of {@link frozenLayerThickness} after its argument checks,
+ * or its special results: Infinity when the melt is at or below T_nf, 0 when the wall is at
+ * or above T_nf or t = 0.
+ */
+function frozenLayerTheta(contactTime: number, options: FrozenLayerOptions): number {
   const what = "frozen-layer thickness";
   if (!(contactTime >= 0) || !Number.isFinite(contactTime)) {
     throw new RangeError(`Cannot compute ${what}: contact time must be ≥ 0 s, got ${contactTime}`);
@@ -72,8 +104,7 @@ export function frozenLayerThickness(contactTime: number, options: FrozenLayerOp
   requirePositive(what, "diffusivity", options.diffusivity);
   if (tm <= tnf) return Infinity;
   if (tw >= tnf || contactTime === 0) return 0;
-  const theta = (tnf - tw) / (tm - tw);
-  return 2 * rememberedErfInv(theta) * Math.sqrt(options.diffusivity * contactTime);
+  return (tnf - tw) / (tm - tw);
 }
 
 /**
@@ -85,14 +116,24 @@ const ERF_INV_VALUES = new Float64Array(1024);
 const BITS = new Float64Array(1);
 const BITS_WORDS = new Uint32Array(BITS.buffer);
 
-function rememberedErfInv(x: number): number {
+function slotOf(x: number): number {
   BITS[0] = x;
-  const slot = (BITS_WORDS[0] ^ BITS_WORDS[1]) & 1023;
+  return (BITS_WORDS[0] ^ BITS_WORDS[1]) & 1023;
+}
+
+function rememberedErfInv(x: number): number {
+  const slot = slotOf(x);
   if (ERF_INV_KEYS[slot] === x) return ERF_INV_VALUES[slot];
   const y = erfInv(x);
   ERF_INV_KEYS[slot] = x;
   ERF_INV_VALUES[slot] = y;
   return y;
+}
+
+/** erf⁻¹(x) if it is remembered, else NaN. */
+function knownErfInv(x: number): number {
+  const slot = slotOf(x);
+  return ERF_INV_KEYS[slot] === x ? ERF_INV_VALUES[slot] : NaN;
 }
 
 /** Options of {@link adiabaticHeating}. */

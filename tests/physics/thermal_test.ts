@@ -10,6 +10,7 @@ import {
   erfc,
   erfInv,
   frozenLayerThickness,
+  frozenLayerThinnerThan,
   plateCoolingTime,
   plateMeanCoolingTime,
 } from "../../src/physics/thermal.ts";
@@ -95,6 +96,36 @@ Deno.test("frozen layer edge cases: hot wall, zero time, frozen melt", () => {
   assert.equal(frozenLayerThickness(5, { ...layer, meltTemperature: 403.15 }), Infinity);
   assert.throws(() => frozenLayerThickness(-1, layer), RangeError);
   assert.throws(() => frozenLayerThickness(1, { ...layer, diffusivity: 0 }), RangeError);
+});
+
+// Exact comparisons on purpose: the fill takes the held layer on a true answer instead of the
+// thickness, so a true answer must never be wrong.
+Deno.test("frozenLayerThinnerThan: true only when frozenLayerThickness is thinner, and decided outside 1e-8", () => {
+  const ratios = [0.5, 1 - 1e-8, 1 - 1e-12, 1, 1 + 1e-12, 1 + 1e-8, 2];
+  // Melt temperatures no other test uses: erf⁻¹ of their θ is not remembered before
+  // frozenLayerThickness is called, so the first look takes the erf side, the second the
+  // remembered erf⁻¹.
+  for (const melt of [431.7, 467.3, 509.9, 611.1]) {
+    const at = { ...layer, meltTemperature: melt };
+    const theta = (layer.noFlowTemperature - layer.wallTemperature) /
+      (melt - layer.wallTemperature);
+    for (const t of [1e-4, 0.03, 2.5]) {
+      const delta = 2 * erfInv(theta) * Math.sqrt(layer.diffusivity * t);
+      const what = (r: number) => `${r}·δ, melt ${melt} K, t = ${t} s`;
+      for (const r of ratios) {
+        const thinner = frozenLayerThinnerThan(t, r * delta, at);
+        if (thinner) assert.ok(delta < r * delta, what(r));
+        if (Math.abs(r - 1) >= 1e-8) assert.equal(thinner, delta < r * delta, what(r));
+      }
+      assert.equal(frozenLayerThickness(t, at), delta);
+      for (const r of ratios) {
+        assert.equal(frozenLayerThinnerThan(t, r * delta, at), delta < r * delta, what(r));
+      }
+    }
+  }
+  assert.equal(frozenLayerThinnerThan(1, 1e-9, { ...layer, meltTemperature: 403.15 }), false);
+  assert.equal(frozenLayerThinnerThan(0, 1e-9, layer), true);
+  assert.throws(() => frozenLayerThinnerThan(-1, 1e-3, layer), RangeError);
 });
 
 Deno.test("adiabatic heating: 100 MPa, ρ = 1000, cp = 2000 → 50 K", () => {

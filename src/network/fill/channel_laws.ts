@@ -11,7 +11,7 @@ import {
   uniformChannelGeometry,
   uniformGeometryLaw,
 } from "../../physics/mod.ts";
-import { frozenLayerThickness } from "../../physics/thermal.ts";
+import { frozenLayerThickness, frozenLayerThinnerThan } from "../../physics/thermal.ts";
 import { taperedFilledLength } from "../_fill_geometry.ts";
 import type { NetworkElement } from "../feed_network.ts";
 import type { Branch } from "./assemble.ts";
@@ -53,16 +53,19 @@ export function frozenAt(
   const residence = flow > 0 ? filledVolume(state, e.index) / flow : Infinity;
   const tc = Math.max(0, Math.min(contact, residence / 2));
   if (tc === 0) return 0;
-  const delta = frozenLayerThickness(tc, {
+  const layer = {
     meltTemperature: state.temperature[e.index],
     wallTemperature: process.moldTemperature,
     noFlowTemperature: melt.noFlowTemperature,
     diffusivity: melt.diffusivity,
-  });
-  return Math.max(
-    state.frozenHeld[e.index],
-    Math.min(delta, CLOSURE_FRACTION * ctx.closing[e.index]),
-  );
+  };
+  const held = state.frozenHeld[e.index];
+  // Mostly the layer already held is the thicker (the melt is hotter, or its residence
+  // shorter, than when it formed): that is told apart without the erf⁻¹ of a new melt
+  // temperature, and the result below would be `held` anyway.
+  if (held > 0 && frozenLayerThinnerThan(tc, held, layer)) return held;
+  const delta = frozenLayerThickness(tc, layer);
+  return Math.max(held, Math.min(delta, CLOSURE_FRACTION * ctx.closing[e.index]));
 }
 
 /** A branch law and the inputs it was built from (see {@link BranchLawCache}). */
