@@ -23,9 +23,7 @@ export function updateMeltTemperature(ctx: FillContext, state: FillState, s: Sol
   if (process.isothermal) return;
   const nodeTemperature = new Float64Array(nodeCount).fill(NaN);
   nodeTemperature[network.inlet] = process.feedTemperature;
-  const order: number[] = [];
-  for (let n = 0; n < nodeCount; n++) if (!Number.isNaN(s.pressure[n])) order.push(n);
-  order.sort((x, y) => s.pressure[y] - s.pressure[x]);
+  const order = byFallingPressure(state, s.pressure);
   const heat = new Float64Array(nodeCount);
   const flow = new Float64Array(nodeCount);
   // Branches by upstream node, in branch order (compressed rows).
@@ -60,4 +58,37 @@ export function updateMeltTemperature(ctx: FillContext, state: FillState, s: Sol
       }
     }
   }
+}
+
+/** The order {@link byFallingPressure} gave last, per fill. */
+const lastOrders = new WeakMap<FillState, number[]>();
+
+/**
+ * The nodes that have a pressure, highest first, equal pressures by index: the one order
+ * with that property, which a stable sort of them in index order also gives. It starts from
+ * the order of the last call (nodes that lost their pressure out, new ones at the end) and is
+ * put right by insertion: between consecutive solves few nodes change places.
+ */
+function byFallingPressure(state: FillState, pressure: Float64Array): number[] {
+  const kept = lastOrders.get(state) ?? [];
+  const order = kept.filter((n) => !Number.isNaN(pressure[n]));
+  const listed = new Uint8Array(pressure.length);
+  for (const n of order) listed[n] = 1;
+  for (let n = 0; n < pressure.length; n++) {
+    if (!listed[n] && !Number.isNaN(pressure[n])) order.push(n);
+  }
+  const before = (a: number, b: number) =>
+    pressure[a] > pressure[b] || (pressure[a] === pressure[b] && a < b);
+  // Insertion costs a move per pair out of order: past a few per node, sort anew instead.
+  const movesAllowed = 8 * order.length;
+  let moves = 0;
+  for (let i = 1; i < order.length && moves <= movesAllowed; i++) {
+    const node = order[i];
+    let j = i - 1;
+    for (; j >= 0 && before(node, order[j]); j--, moves++) order[j + 1] = order[j];
+    order[j + 1] = node;
+  }
+  if (moves > movesAllowed) order.sort((x, y) => x - y).sort((x, y) => pressure[y] - pressure[x]);
+  lastOrders.set(state, order);
+  return order;
 }
