@@ -144,12 +144,21 @@ export class TangentCarrier {
     partials.forEach((k, q) => (partialOf[k] = q));
     const flows = new Float64Array(m * P);
     const inletChange = new Float64Array(m);
+    // Per filling branch: its volume's index in dv, its upstream node, its conductance.
+    const sideOf = new Int32Array(P);
+    const nodeOf = new Int32Array(P);
+    const gOf = new Float64Array(P);
+    for (let q = 0; q < P; q++) {
+      const k = partials[q];
+      sideOf[q] = 2 * branches[k].element + branches[k].side;
+      nodeOf[q] = pattern.local[k].a;
+      gOf[q] = g[k];
+    }
     for (let j = 0; j < m; j++) {
       let source = byDirection[j].length > 0;
+      const dvj = dv[j];
       for (let q = 0; q < P; q++) {
-        const k = partials[q];
-        const br = branches[k];
-        sigma[q] = slopeV[q] * dv[j][2 * br.element + br.side];
+        sigma[q] = slopeV[q] * dvj[sideOf[q]];
         if (sigma[q] !== 0) source = true;
       }
       // A direction whose size is still dry moves nothing yet: its δQ and δp stay the
@@ -165,13 +174,10 @@ export class TangentCarrier {
           if (b >= 0) rhs[b] -= g[k] * drop;
         }
       }
-      for (let q = 0; q < P; q++) rhs[pattern.local[partials[q]].a] += g[partials[q]] * sigma[q];
+      for (let q = 0; q < P; q++) rhs[nodeOf[q]] += gOf[q] * sigma[q];
       factor.solve(rhs, rhs);
       // A filling branch ends at its front (0 Pa): δQ = g·(δp_a − σ).
-      for (let q = 0; q < P; q++) {
-        const k = partials[q];
-        flows[j * P + q] = g[k] * (rhs[pattern.local[k].a] - sigma[q]);
-      }
+      for (let q = 0; q < P; q++) flows[j * P + q] = gOf[q] * (rhs[nodeOf[q]] - sigma[q]);
       inletChange[j] = rhs[inlet];
     }
     this.flows = { partials, flows };
@@ -264,9 +270,8 @@ export class TangentCarrier {
     const C = cavities.length;
     const cavity = new Float64Array(this.m * C);
     for (let j = 0; j < this.m; j++) {
-      cavities.forEach((c, i) => {
-        cavity[j * C + i] = this.dv[j][2 * c.element];
-      });
+      const dv = this.dv[j];
+      for (let i = 0; i < C; i++) cavity[j * C + i] = dv[2 * cavities[i].element];
     }
     this.cavitySamples.push(cavity);
     this.pressureSamples.push(this.dInlet.slice());
