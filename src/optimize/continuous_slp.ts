@@ -1,7 +1,12 @@
 import { mmToM, mToMm } from "../model/units.ts";
 import type { SlopeSource } from "../wire/enums.ts";
 import type { DesignSpace } from "./design_space.ts";
-import { type DesignEvaluation, evaluateDesign, simulationsOf } from "./evaluate_design.ts";
+import {
+  type DesignEvaluation,
+  evaluateDesign,
+  runnerVolumeOf,
+  simulationsOf,
+} from "./evaluate_design.ts";
 import type { LpSolver } from "./lp_solver.ts";
 import {
   broydenSensitivities,
@@ -97,6 +102,12 @@ export interface ContinuousOptions extends StopOptions {
   /** Where the slopes come from (default `"tangent"`). */
   slopes?: SlopeSource;
   /**
+   * Today's design is needed only for its runner volume (the merit's reference, from geometry):
+   * it is not simulated unless the run starts there (default false). For re-balances inside
+   * the cutter choice, whose today nobody reports.
+   */
+  todayVolumeOnly?: boolean;
+  /**
    * Share of each limit the LP aims at: room below the limits for the cutter snapping
    * ({@link LP_LIMIT_SHARE}), or {@link CONTINUOUS_LIMIT_SHARE} when the scenario asks for
    * continuous sizes (the default follows `goals.cutters`).
@@ -109,8 +120,10 @@ export interface ContinuousOutcome {
   status: ContinuousStatus;
   reason: string;
   space: DesignSpace;
-  /** Today's design, simulated. */
+  /** Today's design, simulated (the start design with `todayVolumeOnly`, when it starts elsewhere). */
   before: DesignEvaluation;
+  /** Today's cold runner volume, m³: the merit's reference V₀. */
+  referenceVolume: number;
   /** The last accepted design. */
   optimum: DesignEvaluation;
   /** The linearisation at (or last before) the optimum: what the cutter choice builds on. */
@@ -210,19 +223,22 @@ export async function solveContinuous(
     space.variables,
     (v) => Math.min(v.upper, Math.max(v.lower, options.start?.get(v.element) ?? v.current)),
   );
-  const beforeOutcome = evaluate(Float64Array.from(space.variables, (v) => v.current), false);
-  if (!beforeOutcome.ok) {
+  const today = Float64Array.from(space.variables, (v) => v.current);
+  const startsToday = start.every((v, j) => v === today[j]);
+  // Today's runner volume is geometry: with `todayVolumeOnly`, today is not simulated.
+  const beforeOutcome = options.todayVolumeOnly && !startsToday
+    ? undefined
+    : evaluate(today, false);
+  if (beforeOutcome && !beforeOutcome.ok) {
     return { ok: false, code: "simulation_failed", message: beforeOutcome.message };
   }
-  const before = beforeOutcome.evaluation;
-  const currentOutcome = start.every((v, j) => v === space.variables[j].current)
-    ? beforeOutcome
-    : evaluate(start, false);
+  const currentOutcome = startsToday && beforeOutcome ? beforeOutcome : evaluate(start, false);
   if (!currentOutcome.ok) {
     return { ok: false, code: "simulation_failed", message: currentOutcome.message };
   }
   let current = currentOutcome.evaluation;
-  const V0 = before.runnerVolume;
+  const before = beforeOutcome?.evaluation ?? current;
+  const V0 = beforeOutcome ? before.runnerVolume : runnerVolumeOf(space, today);
   const epsilon = scenario.goals.max_imbalance_percent / 100;
   const merit = (e: DesignEvaluation) => e.runnerVolume / V0 + PENALTY * violation(e, epsilon);
 
@@ -412,6 +428,7 @@ export async function solveContinuous(
       reason,
       space,
       before,
+      referenceVolume: V0,
       optimum: current,
       slopesAtOptimum: sens ?? lastSens,
       iterations,

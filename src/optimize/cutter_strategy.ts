@@ -90,7 +90,7 @@ function nearestSnap(space: DesignSpace, continuous: ContinuousOutcome): CutterO
 /** The merit a snapped design is ranked by: volume relative to the space's today, limits first. */
 function judgeOf(space: DesignSpace, continuous: ContinuousOutcome) {
   const epsilon = space.scenario.goals.max_imbalance_percent / 100;
-  const V0 = continuous.before.runnerVolume;
+  const V0 = continuous.referenceVolume;
   return (e: DesignEvaluation) => snappedMerit(e, epsilon, V0);
 }
 
@@ -111,7 +111,7 @@ async function runnerCutterRounds(
   const current = continuous.optimum;
   const linear = continuous.slopesAtOptimum;
   const epsilon = space.scenario.goals.max_imbalance_percent / 100;
-  const V0 = continuous.before.runnerVolume;
+  const V0 = continuous.referenceVolume;
   const judge = judgeOf(space, continuous);
   const catalogue = cutterCatalogue(space.scenario.goals.cutters);
   const gates = space.variables.filter((v) => v.kind === "gate").length;

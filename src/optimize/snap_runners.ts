@@ -323,6 +323,7 @@ export async function relaxAndFixRunners(
           deadline: options.deadline,
           maxIterations: RELAX_ITERATIONS,
           start: trial,
+          todayVolumeOnly: true,
         });
         if (!sub.ok) continue;
         simulations += sub.outcome.simulations;

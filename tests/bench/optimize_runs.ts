@@ -1,7 +1,8 @@
 /**
  * Whole optimize runs, phase by phase: the three demos (`scenarios/*.json`) and generated
  * families (`tests/support/family_layout.ts`: 6, 8 and 16 cavities with tunnel gates, seeds
- * 1–3; 8 cavities with edge gates, seeds 1–3, and 16 with edge gates, seed 1), each run
+ * 1–3; 4 with tunnel and 5 with edge gates, seeds 1–3, whose few runners take the cutter step
+ * to relax-and-fix; 8 cavities with edge gates, seeds 1–3, and 16 with edge gates, seed 1), each run
  * through `optimizeBalance` as the command line does, with the simulations and wall time of
  * every phase (`src/optimize/run_meter.ts`), where the time goes (simulation, LP/MIP, the
  * rest), and what the run found. Not a test: timings never go into tests. Each phase counts
@@ -93,6 +94,12 @@ const CASES: [string, () => Scenario][] = [
   ...[6, 8, 16].flatMap((n) =>
     [1, 2, 3].map((seed): [string, () => Scenario] => [`gen${n} s${seed}`, family(n, seed)])
   ),
+  // Few runners (at most RELAX_AND_FIX_MAX_RUNNERS): the cutter step ends in relax-and-fix.
+  ...[1, 2, 3].map((seed): [string, () => Scenario] => [`gen4 s${seed}`, family(4, seed)]),
+  ...[1, 2, 3].map((seed): [string, () => Scenario] => [
+    `gen5e s${seed}`,
+    family(5, seed, "edge"),
+  ]),
   // Edge gates: continuous optima that meet every limit, whose cutter sizes are the hard part.
   ...[1, 2, 3].map((seed): [string, () => Scenario] => [
     `gen8e s${seed}`,
