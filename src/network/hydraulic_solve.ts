@@ -224,6 +224,15 @@ export function hydraulicTopology(
   };
 }
 
+/**
+ * The symbolic LDLᵀ analysis of a topology's nodal matrix, as its solves factor it: rows and
+ * columns the free nodes in node order, one off-diagonal entry per element joining two free
+ * nodes, in element order. A factor from it is valid until the next one of the same topology.
+ */
+export function topologyAnalysis(topology: HydraulicTopology): SymbolicCholesky {
+  return topology.analysed.symbolic;
+}
+
 const topologyCache: Topology[] = [];
 const TOPOLOGY_CACHE_SIZE = 4;
 

@@ -1,5 +1,11 @@
 import type { ChannelFlow, ChannelLaw } from "../../physics/mod.ts";
-import { type HydraulicElement, hydraulicTopology, solveHydraulics } from "../hydraulic_solve.ts";
+import {
+  type HydraulicElement,
+  hydraulicTopology,
+  solveHydraulics,
+  topologyAnalysis,
+} from "../hydraulic_solve.ts";
+import type { SymbolicCholesky } from "../sparse_cholesky.ts";
 import type { Assembly } from "./assemble.ts";
 import { type BranchLawCache, branchLawCache, cachedBranchLaw } from "./channel_laws.ts";
 import type { FillContext } from "./context.ts";
@@ -94,6 +100,21 @@ function problemOf(ctx: FillContext, assembly: Assembly): AssemblyProblem {
   const problem = { ctx, nodeCount: next, from, to, fixedPressure, inflow, topology };
   problems.set(assembly, problem);
   return problem;
+}
+
+/**
+ * The symbolic analysis the solves of `assembly` factor its nodal matrix with: its local
+ * nodes, one entry per two-ended branch in branch order, which is `linearPattern`'s pattern of
+ * the same branches (`fill_tangent.ts`). Undefined before its first solve or for an invalid
+ * topology. A factor from it lasts until the next solve of the assembly.
+ */
+export function nodalAnalysisOf(
+  ctx: FillContext,
+  assembly: Assembly,
+): SymbolicCholesky | undefined {
+  const known = problems.get(assembly);
+  if (!known || known.ctx !== ctx || !known.topology.ok) return undefined;
+  return topologyAnalysis(known.topology.topology);
 }
 
 /** The branch laws kept between the solves of one fill (`cachedBranchLaw`). */

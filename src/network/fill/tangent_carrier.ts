@@ -10,7 +10,7 @@ import type { Assembly } from "./assemble.ts";
 import { branchLaw, type BranchLawCache, branchLawCache, cachedBranchLaw } from "./channel_laws.ts";
 import type { FillContext } from "./context.ts";
 import type { FillState } from "./fill_state.ts";
-import type { Solved } from "./solve_instant.ts";
+import { nodalAnalysisOf, type Solved } from "./solve_instant.ts";
 
 /**
  * Carries the tangent of the fill along the requested directions (the method is in
@@ -86,7 +86,11 @@ export class TangentCarrier {
         a: s.assembly.local[br.a],
         b: br.b >= 0 ? s.assembly.local[br.b] : -1,
       }));
-      pattern = { local, symbolic: linearPattern(s.assembly.nodeCount, local) };
+      // The solves of this assembly analysed the same pattern already (no solve runs while
+      // the tangent uses its factor).
+      const symbolic = nodalAnalysisOf(ctx, s.assembly) ??
+        linearPattern(s.assembly.nodeCount, local);
+      pattern = { local, symbolic };
       this.patterns.set(s.assembly, pattern);
     }
     const g = new Float64Array(K);
