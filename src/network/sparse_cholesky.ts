@@ -285,9 +285,9 @@ export function analyse(pattern: SymmetricPattern, options: AnalyseOptions = {})
           x[lowerRow[p]] -= lowerValue[p] * xj;
         }
       }
-      for (let j = 0; j < n; j++) x[j] /= pivots[j];
+      // D⁻¹ then Lᵀ back-substitution, in one pass: row j is divided just before it is used.
       for (let j = n - 1; j >= 0; j--) {
-        let xj = x[j];
+        let xj = x[j] / pivots[j];
         for (let p = columnStart[j]; p < columnStart[j + 1]; p++) {
           xj -= lowerValue[p] * x[lowerRow[p]];
         }
