@@ -594,9 +594,12 @@ function solveOn(
     return sum;
   };
 
-  /** Merit ½‖S·F‖² with S = diag(g) on the energy rows (a flow, m³/s) and 1 on the mass rows. */
-  const merit = (p: Float64Array, q: Float64Array, h: Float64Array): number => {
-    let sum = massResidual(q);
+  /**
+   * Merit ½‖S·F‖² with S = diag(g) on the energy rows (a flow, m³/s) and 1 on the mass rows,
+   * from the mass rows' Σ m_i² (`massResidual` of the flows) and the pressures and drops.
+   */
+  const merit = (massSum: number, p: Float64Array, h: Float64Array): number => {
+    let sum = massSum;
     for (let e = 0; e < m; e++) {
       const r = conductance[e] * (h[e] - (p[from[e]] - p[to[e]]));
       sum += r * r;
@@ -666,10 +669,13 @@ function solveOn(
    */
   let havePressure = false;
   let change = NaN;
+  // Σ m_i² of the current flows once known: the line search's accepted trial becomes the next
+  // iterate, and its massResidual (with worstMass and worstNode) was the last one run.
+  let flowMass = NaN;
   for (let iteration = 0;; iteration++) {
     if (havePressure) {
       const correction = convergenceMeasure();
-      massResidual(flow);
+      if (Number.isNaN(flowMass)) flowMass = massResidual(flow);
       if (correction <= flowTolerance && worstMass <= massTolerance) {
         return {
           ok: true,
@@ -710,11 +716,12 @@ function solveOn(
       pressure.set(newPressure);
       havePressure = true;
     }
-    const merit0 = merit(pressure, flow, drop);
+    const merit0 = merit(Number.isNaN(flowMass) ? massResidual(flow) : flowMass, pressure, drop);
     let largestFlow = flowScale;
     for (let e = 0; e < m; e++) largestFlow = Math.max(largestFlow, Math.abs(flow[e]));
     const meritNoise = (m + freeCount) * (ROUNDOFF * largestFlow) ** 2;
     let alpha = 1;
+    let trialMass = NaN;
     for (;;) {
       for (let k = 0; k < freeCount; k++) {
         const i = freeNodes[k];
@@ -724,7 +731,8 @@ function solveOn(
       if (!evaluate(trialFlow, trialDrop, trialSlope)) {
         return { ...lawFailure!, diagnostics: diagnostics(iteration + 1, change) };
       }
-      const meritTrial = merit(trialPressure, trialFlow, trialDrop);
+      trialMass = massResidual(trialFlow);
+      const meritTrial = merit(trialMass, trialPressure, trialDrop);
       if (
         meritTrial <= (1 - 2 * ARMIJO * alpha) * merit0 || meritTrial <= meritNoise ||
         alpha <= MIN_STEP
@@ -739,6 +747,7 @@ function solveOn(
     change = size > 0 ? moved / size : 0;
     pressure.set(trialPressure);
     flow.set(trialFlow);
+    flowMass = trialMass;
     drop.set(trialDrop);
     slope.set(trialSlope);
   }
