@@ -6,7 +6,7 @@
  * @module
  */
 
-/** Shear-thinning melt at a fixed temperature and pressure. All SI. */
+/** Shear-thinning melt at a fixed temperature and pressure. All SI. Methods are called on the curve. */
 export interface FlowCurve {
   /** Shear viscosity η(γ̇), Pa·s, for shear rate γ̇ ≥ 0 in 1/s. */
   viscosity(shearRate: number): number;
@@ -74,16 +74,37 @@ export function crossCurve(
       `Cannot build a Cross curve: need η0 > 0, τ* > 0, 0 < n < 1, got η0=${eta0}, τ*=${tauStar}, n=${n}`,
     );
   }
-  const m = 1 - n;
-  const viscosity = (g: number) => eta0 / (1 + Math.pow((eta0 * g) / tauStar, m));
-  return {
-    viscosity,
-    stress: (g) => viscosity(g) * g,
-    stressSlope: (g) => {
-      // d/dγ̇ [η0 γ̇ / (1 + x^m)], x = η0 γ̇ / τ*  →  η0 (1 + n x^m) / (1 + x^m)²
-      const xm = Math.pow((eta0 * g) / tauStar, m);
-      return (eta0 * (1 + n * xm)) / ((1 + xm) * (1 + xm));
-    },
-    cross: { zeroShearViscosity: eta0, tauStar, index: n },
+  return new CrossCurve(eta0, tauStar, n);
+}
+
+/**
+ * A Cross curve as one object with its methods on the prototype: a fill builds one per
+ * element and melt state (about 10⁵ per 64-cavity fill), so closures per curve were garbage.
+ */
+class CrossCurve implements FlowCurve {
+  readonly cross: {
+    readonly zeroShearViscosity: number;
+    readonly tauStar: number;
+    readonly index: number;
   };
+  private readonly m: number;
+
+  constructor(private readonly eta0: number, private readonly tauStar: number, n: number) {
+    this.m = 1 - n;
+    this.cross = { zeroShearViscosity: eta0, tauStar, index: n };
+  }
+
+  viscosity(g: number): number {
+    return this.eta0 / (1 + Math.pow((this.eta0 * g) / this.tauStar, this.m));
+  }
+
+  stress(g: number): number {
+    return this.viscosity(g) * g;
+  }
+
+  stressSlope(g: number): number {
+    // d/dγ̇ [η0 γ̇ / (1 + x^m)], x = η0 γ̇ / τ*  →  η0 (1 + n x^m) / (1 + x^m)²
+    const xm = Math.pow((this.eta0 * g) / this.tauStar, this.m);
+    return (this.eta0 * (1 + this.cross.index * xm)) / ((1 + xm) * (1 + xm));
+  }
 }

@@ -100,7 +100,12 @@ if (Deno.args[0] === "--profile-child") {
   Deno.exit(0);
 }
 
+/** Issue 12's targets for one fill of the 64-cavity family, ms: without and with the tangent. */
+const TARGET_MS = { plain: 150, tangent: 400 };
+
 const sizes = Deno.args.includes("--large") ? [4, 16, 64, 256] : [4, 16, 64];
+const perElementEvent: { n: number; plain: number; tangent: number }[] = [];
+let at64: { plain: number; tangent: number } | undefined;
 console.log(
   "cavities  elements  events  steps  solves  ms/sim  µs/(el·event)  µs/(el·solve)  dirs" +
     "  ms/sim+tangent  µs/(el·event)+t",
@@ -115,6 +120,12 @@ for (const n of sizes) {
   const d = last.fill.diagnostics;
   const elements = last.network.elements.length;
   const perEvent = (t: number) => ((t * 1000) / (elements * d.events)).toFixed(2);
+  perElementEvent.push({
+    n,
+    plain: (ms * 1000) / (elements * d.events),
+    tangent: (msTangent * 1000) / (elements * d.events),
+  });
+  if (n === 64) at64 = { plain: ms, tangent: msTangent };
   console.log(
     [
       String(n).padStart(8),
@@ -131,6 +142,25 @@ for (const n of sizes) {
     ].join(" "),
   );
 }
+
+// Ratios in this run: against the targets, and each size's cost per element·event against the
+// smallest's (flat or falling is what scales).
+if (at64) {
+  console.log(
+    `\n64 cavities against the targets: ${at64.plain.toFixed(0)} ms / ${TARGET_MS.plain} ms = ` +
+      `${(at64.plain / TARGET_MS.plain).toFixed(2)}×; with tangent ${
+        at64.tangent.toFixed(0)
+      } ms / ` +
+      `${TARGET_MS.tangent} ms = ${(at64.tangent / TARGET_MS.tangent).toFixed(2)}×`,
+  );
+}
+const first = perElementEvent[0];
+console.log(
+  "µs/(el·event) against 4 cavities: " +
+    perElementEvent.map((r) =>
+      `${r.n}: ${(r.plain / first.plain).toFixed(2)} (+t ${(r.tangent / first.tangent).toFixed(2)})`
+    ).join(", "),
+);
 
 if (!Deno.args.includes("--no-profile")) await whereTheTimeGoes(64);
 

@@ -143,7 +143,7 @@ Deno.test("Cross curve: the velocity profile at the computed ΔP carries the imp
   for (const Q of [2e-7, 1e-5, 4e-4]) {
     const flow = uniformChannelFlow(Q, { section: circle, length: L, curve });
     const tauW = (flow.pressureDrop * R) / (2 * L);
-    const gammaAt = (r: number) => invert(curve.stress, (tauW * r) / R);
+    const gammaAt = (r: number) => invert((x) => curve.stress(x), (tauW * r) / R);
     const panels = 8;
     const integrate = (lo: number, hi: number, f: (x: number) => number) => {
       let sum = 0;
