@@ -53,6 +53,8 @@ export interface ElementFigures {
   frozenLayerAtSwitchover: number;
   /** Whether the frozen layer closed the element during filling. */
   frozenShut: boolean;
+  /** When it closed, s (NaN when it did not). */
+  frozenShutAt: number;
 }
 
 /** Per-cavity figures. */

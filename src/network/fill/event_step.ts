@@ -1,4 +1,5 @@
 import type { Branch } from "./assemble.ts";
+import { CLOSURE_FRACTION, frozenAt } from "./channel_laws.ts";
 import type { FillContext } from "./context.ts";
 import type { FillState } from "./fill_state.ts";
 import { type Solved, solveInstant, type SolveStats } from "./solve_instant.ts";
@@ -43,6 +44,40 @@ export type EventStepOutcome =
     /** Elements that became full, in the order found. */
     newlyFull: number[];
   };
+
+/** A frozen layer past this share of what closes its section is closing (its step is watched). */
+const CLOSING_FROM = 0.5;
+/** Most growth of a closing layer in one step, as a share of what closes its section. */
+const CLOSING_STEP_SHARE = 0.02;
+
+/**
+ * The step shortened (halved, at most 30 times) until no section whose frozen layer would be
+ * past CLOSING_FROM of closing it grows by more than CLOSING_STEP_SHARE of that within it: a
+ * section freezing shut is found at the end of a step, and the flow-change control alone let
+ * that be a step late where the flows still changed little.
+ */
+function closingStep(ctx: FillContext, state: FillState, s0: Solved, proposed: number): number {
+  if (ctx.process.isothermal) return proposed;
+  const t = state.time;
+  let step = proposed;
+  for (let halving = 0; halving < 30; halving++) {
+    let ok = true;
+    for (const br of s0.assembly.branches) {
+      const e = ctx.elements[br.element];
+      if (e.heated || state.closed[e.index]) continue;
+      const closes = CLOSURE_FRACTION * ctx.closing[e.index];
+      const after = frozenAt(ctx, state, e, t + step, br.side);
+      if (after < CLOSING_FROM * closes) continue;
+      if (after - frozenAt(ctx, state, e, t, br.side) > CLOSING_STEP_SHARE * closes) {
+        ok = false;
+        break;
+      }
+    }
+    if (ok) return step;
+    step /= 2;
+  }
+  return step;
+}
 
 /**
  * One accepted step of the fill from the solved state `s0`: Heun's method (explicit trapezoid)
@@ -89,6 +124,7 @@ export function eventStep(
     }
   }
   let step = Math.min(options.h, hEvent, nominalFillTime / 40);
+  step = closingStep(ctx, state, s0, step);
   let onLanding = false;
   if (t + step >= landAt) {
     step = landAt - t;

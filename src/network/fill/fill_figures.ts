@@ -29,6 +29,7 @@ export function elementFigures(
       temperatureAtSwitchover: state.temperature[e.index],
       frozenLayerAtSwitchover: (at.frozenAtSwitchover ?? state.frozenHeld)[e.index],
       frozenShut: state.closed[e.index] === 1,
+      frozenShutAt: state.closed[e.index] === 1 ? state.closedAt[e.index] : NaN,
     };
   });
 }
