@@ -5,12 +5,15 @@ import type { FillState } from "./fill_state.ts";
 import { type Solved, solveInstant, type SolveStats } from "./solve_instant.ts";
 
 /**
- * Relative tolerance for landing a step on an element's or cavity's full volume: ten times
- * the hydraulic solve's own tolerance (1e-10), whose noise in the flows a tighter landing
- * would chase.
+ * Relative tolerance for landing a step on an element's or cavity's full volume: the hydraulic
+ * solve's own tolerance (1e-10); a tighter landing would chase the noise that leaves in the flows.
  */
 export const EVENT_TOLERANCE = 1e-10;
-/** Branches this close to capacity (relative) at the end of a step are full with it. */
+/**
+ * Branches this close to capacity (relative) at the end of a step are full with it: a thousand
+ * landing tolerances, so that branches filling together within the landing's noise fill at one
+ * event.
+ */
 const SNAP_WINDOW = 1e-7;
 
 /** Where one step may go. */
