@@ -233,8 +233,26 @@ export function topologyAnalysis(topology: HydraulicTopology): SymbolicCholesky 
   return topology.analysed.symbolic;
 }
 
-const topologyCache: Topology[] = [];
-const TOPOLOGY_CACHE_SIZE = 4;
+/**
+ * Topologies analysed lately, by structure, least recently used first. A fill meets each of its
+ * assemblies' topologies once in turn, and an optimization run meets the same sequence again in
+ * every simulation of one tool (sizes change no topology): 256 hold a run's sequence on tools of
+ * a few hundred elements, where 4 held none of it. The symbolic analysis is what is saved. A
+ * topology is shared by every problem of its structure, so a factor from it lasts until the next
+ * solve of any of them, as before.
+ */
+const topologyCache = new Map<string, Topology>();
+const TOPOLOGY_CACHE_SIZE = 256;
+
+/** The structure a topology is analysed from, as a key. */
+function structureKey(
+  nodeCount: number,
+  from: Int32Array,
+  to: Int32Array,
+  fixed: Uint8Array,
+): string {
+  return `${nodeCount}|${from.join(",")}|${to.join(",")}|${fixed.join("")}`;
+}
 
 function listNodes(nodes: number[]): string {
   const shown = nodes.slice(0, 10).join(", ");
@@ -309,12 +327,6 @@ function checkTopology(
   return { ok: true, from, to, fixed };
 }
 
-function sameArray(a: ArrayLike<number>, b: ArrayLike<number>): boolean {
-  if (a.length !== b.length) return false;
-  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
-  return true;
-}
-
 /** The cached topology with these arrays, or a new analysis (kept among the last few). */
 function topologyOf(
   nodeCount: number,
@@ -322,11 +334,12 @@ function topologyOf(
   to: Int32Array,
   fixed: Uint8Array,
 ): Topology {
-  for (const t of topologyCache) {
-    if (
-      t.nodeCount === nodeCount && sameArray(t.from, from) && sameArray(t.to, to) &&
-      sameArray(t.fixed, fixed)
-    ) return t;
+  const key = structureKey(nodeCount, from, to, fixed);
+  const known = topologyCache.get(key);
+  if (known) {
+    topologyCache.delete(key);
+    topologyCache.set(key, known);
+    return known;
   }
   const freeIndex = new Int32Array(nodeCount).fill(-1);
   const free: number[] = [];
@@ -357,8 +370,10 @@ function topologyOf(
     symbolic: analyse({ size: free.length, rows, cols }),
     workspace: undefined,
   };
-  topologyCache.unshift(topology);
-  if (topologyCache.length > TOPOLOGY_CACHE_SIZE) topologyCache.pop();
+  topologyCache.set(key, topology);
+  if (topologyCache.size > TOPOLOGY_CACHE_SIZE) {
+    topologyCache.delete(topologyCache.keys().next().value!);
+  }
   return topology;
 }
 
