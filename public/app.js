@@ -2256,6 +2256,16 @@
       }
     ];
   }
+  function xAxis(xd, xs, frame, label) {
+    const { margin, width, height } = frame;
+    const out = [];
+    for (const t of xd.ticks) {
+      const x = xs(t).toFixed(1);
+      out.push(`<line class="grid" x1="${x}" x2="${x}" y1="${margin.top - 4}" y2="${height - margin.bottom}"/>`, `<text class="tick" x="${x}" y="${height - margin.bottom + 14}" text-anchor="middle">${tickLabel(t, xd.step)}</text>`);
+    }
+    out.push(`<text class="axis-label" x="${(margin.left + width - margin.right) / 2}" y="${height - 8}" text-anchor="middle">${escapeXml(label)}</text>`);
+    return out;
+  }
   function factorWords(f) {
     switch (f.kind) {
       case "viscosity":
@@ -2325,11 +2335,11 @@
     const id = options.id ?? "fit-bars";
     const out = [];
     out.push(`<svg xmlns="http://www.w3.org/2000/svg" class="chart" id="${escapeXml(id)}" viewBox="0 0 ${width} ${height}" width="${width}" height="${height}" role="img" aria-label="Weighed fill against the model, before and after the fit">`, `<defs><pattern id="${escapeXml(id)}-hatch" width="4" height="4" patternUnits="userSpaceOnUse" patternTransform="rotate(45)"><rect width="4" height="4" fill="#ffffff"/><line x1="0" y1="0" x2="0" y2="4" stroke="${series[1].style.colour}" stroke-width="2.4"/></pattern></defs>`, `<text class="chart-title" x="${margin.left}" y="16">Part fill: weighed against the model</text>`);
-    for (const t of xd.ticks) {
-      const x = xs(t).toFixed(1);
-      out.push(`<line class="grid" x1="${x}" x2="${x}" y1="${margin.top - 4}" y2="${height - margin.bottom}"/>`, `<text class="tick" x="${x}" y="${height - margin.bottom + 14}" text-anchor="middle">${tickLabel(t, xd.step)}</text>`);
-    }
-    out.push(`<text class="axis-label" x="${(margin.left + width - margin.right) / 2}" y="${height - 8}" text-anchor="middle">fill of the part, %</text>`);
+    out.push(...xAxis(xd, xs, {
+      margin,
+      width,
+      height
+    }, "fill of the part, %"));
     const many = new Set(groups.map((g) => g.shot)).size > 1;
     groups.forEach((g, k) => {
       const y0 = margin.top + k * (groupH + groupGap);
@@ -2407,11 +2417,11 @@
       `<svg xmlns="http://www.w3.org/2000/svg" class="chart" id="${escapeXml(id)}" viewBox="0 0 ${width} ${height}" width="${width}" height="${height}" role="img" aria-label="${escapeXml(title)}">`,
       `<text class="chart-title" x="${margin.left}" y="16">${escapeXml(title)}</text>`
     ];
-    for (const t of xd.ticks) {
-      const x = xs(t).toFixed(1);
-      out.push(`<line class="grid" x1="${x}" x2="${x}" y1="${margin.top - 4}" y2="${height - margin.bottom}"/>`, `<text class="tick" x="${x}" y="${height - margin.bottom + 14}" text-anchor="middle">${tickLabel(t, xd.step)}</text>`);
-    }
-    out.push(`<text class="axis-label" x="${(margin.left + width - margin.right) / 2}" y="${height - 8}" text-anchor="middle">${escapeXml(axisLabel)}</text>`);
+    out.push(...xAxis(xd, xs, {
+      margin,
+      width,
+      height
+    }, axisLabel));
     rows.forEach((r, k) => {
       const y = margin.top + k * rowH + 6;
       const [a, b] = r.range;
@@ -2484,11 +2494,11 @@
       `<svg xmlns="http://www.w3.org/2000/svg" class="chart" id="window-effects" viewBox="0 0 ${width} ${height}" width="${width}" height="${height}" role="img" aria-label="What moves the balance">`,
       `<text class="chart-title" x="${margin.left}" y="16">What moves the balance (low \u2192 high setting)</text>`
     ];
-    for (const t of xd.ticks) {
-      const x = xs(t).toFixed(1);
-      out.push(`<line class="grid" x1="${x}" x2="${x}" y1="${margin.top - 4}" y2="${height - margin.bottom}"/>`, `<text class="tick" x="${x}" y="${height - margin.bottom + 14}" text-anchor="middle">${tickLabel(t, xd.step)}</text>`);
-    }
-    out.push(`<text class="axis-label" x="${(margin.left + width - margin.right) / 2}" y="${height - 8}" text-anchor="middle">change of the imbalance, % points</text>`);
+    out.push(...xAxis(xd, xs, {
+      margin,
+      width,
+      height
+    }, "change of the imbalance, % points"));
     factors.forEach((f, k) => {
       const y0 = margin.top + k * groupH;
       out.push(`<text class="tick" x="${margin.left - 6}" y="${y0 + (groupH - 8) / 2}" text-anchor="end" dy="0.32em">${escapeXml(WINDOW_FACTOR_WORDS[f])}</text>`);

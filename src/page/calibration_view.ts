@@ -171,6 +171,41 @@ export function factorChoices(scenario: TrialScenario): FactorChoice[] {
   ];
 }
 
+/**
+ * The horizontal axis of a bar chart: a grid line and a tick label at every tick of `xd`, and the
+ * axis label centred under the plot (escaped here).
+ */
+function xAxis(
+  xd: { ticks: number[]; step: number },
+  xs: (value: number) => number,
+  frame: {
+    margin: { left: number; right: number; top: number; bottom: number };
+    width: number;
+    height: number;
+  },
+  label: string,
+): string[] {
+  const { margin, width, height } = frame;
+  const out: string[] = [];
+  for (const t of xd.ticks) {
+    const x = xs(t).toFixed(1);
+    out.push(
+      `<line class="grid" x1="${x}" x2="${x}" y1="${margin.top - 4}" y2="${
+        height - margin.bottom
+      }"/>`,
+      `<text class="tick" x="${x}" y="${height - margin.bottom + 14}" text-anchor="middle">${
+        tickLabel(t, xd.step)
+      }</text>`,
+    );
+  }
+  out.push(
+    `<text class="axis-label" x="${(margin.left + width - margin.right) / 2}" y="${
+      height - 8
+    }" text-anchor="middle">${esc(label)}</text>`,
+  );
+  return out;
+}
+
 /** The plain words of a fitted factor's name. */
 export function factorWords(f: CalibrationFactorEntry): string {
   switch (f.kind) {
@@ -264,22 +299,7 @@ export function fitBarsSvg(result: CalibrationResult, options: FitBarsOptions = 
     }" stroke-width="2.4"/></pattern></defs>`,
     `<text class="chart-title" x="${margin.left}" y="16">Part fill: weighed against the model</text>`,
   );
-  for (const t of xd.ticks) {
-    const x = xs(t).toFixed(1);
-    out.push(
-      `<line class="grid" x1="${x}" x2="${x}" y1="${margin.top - 4}" y2="${
-        height - margin.bottom
-      }"/>`,
-      `<text class="tick" x="${x}" y="${height - margin.bottom + 14}" text-anchor="middle">${
-        tickLabel(t, xd.step)
-      }</text>`,
-    );
-  }
-  out.push(
-    `<text class="axis-label" x="${(margin.left + width - margin.right) / 2}" y="${
-      height - 8
-    }" text-anchor="middle">fill of the part, %</text>`,
-  );
+  out.push(...xAxis(xd, xs, { margin, width, height }, "fill of the part, %"));
   const many = new Set(groups.map((g) => g.shot)).size > 1;
   groups.forEach((g, k) => {
     const y0 = margin.top + k * (groupH + groupGap);
@@ -393,22 +413,7 @@ function rangeChart(
     }">`,
     `<text class="chart-title" x="${margin.left}" y="16">${esc(title)}</text>`,
   ];
-  for (const t of xd.ticks) {
-    const x = xs(t).toFixed(1);
-    out.push(
-      `<line class="grid" x1="${x}" x2="${x}" y1="${margin.top - 4}" y2="${
-        height - margin.bottom
-      }"/>`,
-      `<text class="tick" x="${x}" y="${height - margin.bottom + 14}" text-anchor="middle">${
-        tickLabel(t, xd.step)
-      }</text>`,
-    );
-  }
-  out.push(
-    `<text class="axis-label" x="${(margin.left + width - margin.right) / 2}" y="${
-      height - 8
-    }" text-anchor="middle">${esc(axisLabel)}</text>`,
-  );
+  out.push(...xAxis(xd, xs, { margin, width, height }, axisLabel));
   rows.forEach((r, k) => {
     const y = margin.top + k * rowH + 6;
     const [a, b] = r.range;
@@ -519,22 +524,7 @@ function effectsSvg(result: WindowJobResult): string {
     `<svg xmlns="http://www.w3.org/2000/svg" class="chart" id="window-effects" viewBox="0 0 ${width} ${height}" width="${width}" height="${height}" role="img" aria-label="What moves the balance">`,
     `<text class="chart-title" x="${margin.left}" y="16">What moves the balance (low → high setting)</text>`,
   ];
-  for (const t of xd.ticks) {
-    const x = xs(t).toFixed(1);
-    out.push(
-      `<line class="grid" x1="${x}" x2="${x}" y1="${margin.top - 4}" y2="${
-        height - margin.bottom
-      }"/>`,
-      `<text class="tick" x="${x}" y="${height - margin.bottom + 14}" text-anchor="middle">${
-        tickLabel(t, xd.step)
-      }</text>`,
-    );
-  }
-  out.push(
-    `<text class="axis-label" x="${(margin.left + width - margin.right) / 2}" y="${
-      height - 8
-    }" text-anchor="middle">change of the imbalance, % points</text>`,
-  );
+  out.push(...xAxis(xd, xs, { margin, width, height }, "change of the imbalance, % points"));
   factors.forEach((f, k) => {
     const y0 = margin.top + k * groupH;
     out.push(
