@@ -7,19 +7,29 @@ import { simulateFill } from "../../../src/network/simulate_fill.ts";
 import { singleLine, unequalBranches } from "../_scenarios.ts";
 import { fixture, markFull, solvedNow } from "./_fixture.ts";
 
-Deno.test("clampForce: pressure × projected area, element by element, by hand", () => {
+/**
+ * The unequal-branch tool with C1 full and C2 filling, solved with C2 at `filledShare` of its
+ * volume: the solved state and the clamp force by hand for C2 at `countedShare`. Cavities
+ * 100 cm²; round runners Ø5 (40 and 120 mm) and pin gates Ø1.4 × 1 mm project d × L; C2's
+ * filled strip carries half its inlet pressure (linear to the 0 Pa front).
+ */
+function handClamp(filledShare: number, countedShare: number) {
   const f = fixture();
   markFull(f, ["hot_drop", "R1", "R2", "G1", "G2", "C1"]);
   const c2 = f.element("C2");
   f.state.sideStart[2 * c2] = 0;
-  f.state.fill[2 * c2] = 0.25 * f.network.elements[c2].volume;
+  f.state.fill[2 * c2] = filledShare * f.network.elements[c2].volume;
   const s = solvedNow(f, 1);
   const p = (id: string) => s.pressure[f.node(id)];
   const pC2 = p("C2");
-  // Cavities 100 cm²; round runners Ø5 (40 and 120 mm) and pin gates Ø1.4 × 1 mm project d × L.
-  const expected = 0.01 * p("C1") + 0.01 * 0.25 * pC2 / 2 + 5e-3 * 0.04 * p("A") +
+  const expected = 0.01 * p("C1") + 0.01 * countedShare * pC2 / 2 + 5e-3 * 0.04 * p("A") +
     1.4e-3 * 1e-3 * p("A") + 5e-3 * 0.12 * (p("J") + p("B")) / 2 +
     1.4e-3 * 1e-3 * (p("B") + pC2) / 2;
+  return { f, c2, s, expected };
+}
+
+Deno.test("clampForce: pressure × projected area, element by element, by hand", () => {
+  const { f, s, expected } = handClamp(0.25, 0.25);
   assertClose(clampForce(f.ctx, f.state, s), expected, { rel: 1e-12, what: "clamp force" });
 });
 
@@ -27,20 +37,10 @@ Deno.test("clampForce at the end of filling: the last cavity, full now but solve
   // The end of the fill is solved on the network the last step started from (the cavity a
   // front at 0 Pa), then the cavity is marked full. By hand as above, the cavity's share
   // being the strip's ½·p over its whole area, and nothing more for it being full.
-  const f = fixture();
-  markFull(f, ["hot_drop", "R1", "R2", "G1", "G2", "C1"]);
-  const c2 = f.element("C2");
-  f.state.sideStart[2 * c2] = 0;
-  f.state.fill[2 * c2] = 0.999 * f.network.elements[c2].volume;
-  const s = solvedNow(f, 1);
+  const { f, c2, s, expected } = handClamp(0.999, 1);
   f.state.fill[2 * c2] = f.network.elements[c2].volume;
   f.state.fullTime[c2] = 1;
   f.state.cavityFullTime[f.network.elements[c2].cavity] = 1;
-  const p = (id: string) => s.pressure[f.node(id)];
-  const pC2 = p("C2");
-  const expected = 0.01 * p("C1") + 0.01 * pC2 / 2 + 5e-3 * 0.04 * p("A") +
-    1.4e-3 * 1e-3 * p("A") + 5e-3 * 0.12 * (p("J") + p("B")) / 2 +
-    1.4e-3 * 1e-3 * (p("B") + pC2) / 2;
   assertClose(clampForce(f.ctx, f.state, s), expected, { rel: 1e-12, what: "clamp force" });
 });
 
