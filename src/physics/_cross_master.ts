@@ -321,11 +321,12 @@ export function crossMasterSolve(n: number, c: number, g: number, out: Float64Ar
   if (!tables) return false;
   const m = 1 - n;
   const target = Math.log(g);
-  if (!Array.isArray(tables) && inverseInto(inverseOf(tables, n, c), target, INVERSE)) {
+  const direct = Array.isArray(tables) ? NaN : inverseAt(inverseOf(tables, n, c), target);
+  if (!Number.isNaN(direct)) {
     // One table: its inverse's cubic is the root to the tables' own accuracy (the master
     // curve tests agree with the exact integral to 3e-10 either way), so no Newton step is
     // needed; φ' by the exact formula from R there.
-    const s = INVERSE[0];
+    const s = direct;
     const x = Math.exp(s);
     const xm = Math.exp(m * s);
     out[0] = x;
@@ -376,8 +377,8 @@ const NEWTON_DONE = 1e-6;
 
 /**
  * Start of the wall solve for ln g = `target`: the inverse tables' Hermite value (for the
- * c-family interpolated in c like R, s being analytic in c too), within ~1e-9 of the root,
- * so one Newton step usually ends it; outside the inverse grid the Newtonian start
+ * c-family interpolated in c like R, s being analytic in c too), within ~1e-9 of the root, so
+ * one Newton step usually ends it; outside the inverse tables the Newtonian start
  * R = −ln(c + 1).
  */
 function startOf(
@@ -386,40 +387,30 @@ function startOf(
   tables: MasterTable | MasterTable[],
   target: number,
 ): number {
-  if (!Array.isArray(tables)) return inverseAt(inverseOf(tables, master.n, c), target, c);
-  let sum = 0;
-  for (let j = 0; j < C_COUNT; j++) {
-    sum += LW[j] * inverseAt(inverseOf(tables[j], master.n, C_NODES[j]), target, C_NODES[j]);
+  let start: number;
+  if (!Array.isArray(tables)) start = inverseAt(inverseOf(tables, master.n, c), target);
+  else {
+    start = 0;
+    for (let j = 0; j < C_COUNT; j++) {
+      start += LW[j] * inverseAt(inverseOf(tables[j], master.n, C_NODES[j]), target);
+    }
   }
-  return sum;
+  return Number.isNaN(start) ? target + Math.log(c + 1) : start;
 }
 
-/** Scratch of {@link inverseInto}. */
-const INVERSE = new Float64Array(1);
-
 /**
- * s(ln g) from the inverse table's Hermite cubic into `out[0]`, or false outside the table
- * (or where a node of the cell was clamped to the edge of the R grid).
+ * s(ln g) from the inverse table's Hermite cubic, or NaN outside the table (or where a node of
+ * the cell was clamped to the edge of the R grid).
  */
-function inverseInto(inverse: InverseTable, target: number, out: Float64Array): boolean {
+function inverseAt(inverse: InverseTable, target: number): number {
   const pos = (target - inverse.lo) / STEP;
   const last = inverse.s.length - 1;
-  if (!(pos >= 0 && pos <= last)) return false;
+  if (!(pos >= 0 && pos <= last)) return NaN;
   let cell = Math.floor(pos);
   if (cell >= last) cell = last - 1;
   const { s, ds } = inverse;
-  if (s[cell] <= S_MIN || s[cell + 1] >= S_MAX) return false;
-  out[0] = hermiteOf(s, ds, cell, pos - cell);
-  return true;
-}
-
-function inverseAt(inverse: InverseTable, target: number, c: number): number {
-  const pos = (target - inverse.lo) / STEP;
-  const last = inverse.s.length - 1;
-  if (!(pos >= 0 && pos <= last)) return target + Math.log(c + 1);
-  let cell = Math.floor(pos);
-  if (cell >= last) cell = last - 1;
-  return hermiteOf(inverse.s, inverse.ds, cell, pos - cell);
+  if (s[cell] <= S_MIN || s[cell + 1] >= S_MAX) return NaN;
+  return hermiteOf(s, ds, cell, pos - cell);
 }
 
 /**
