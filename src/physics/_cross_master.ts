@@ -282,37 +282,12 @@ export function crossMasterPotential(n: number, c: number, s: number): number {
   return evalK(master, c, tables, s);
 }
 
-/** Dimensionless wall state: x_w, F(x_w), ν(x_w) and φ' = d ln Γ/d ln γ̇w. */
-export interface MasterWall {
-  /** x_w = η0·γ̇w/τ*. */
-  x: number;
-  /** F(x_w) = τw/τ*. */
-  stressRatio: number;
-  /** Local index ν = d ln τ/d ln γ̇ at the wall. */
-  localIndex: number;
-  /** φ' = d ln Γ/d ln γ̇w (> 0). */
-  logSlope: number;
-}
-
 /**
- * Solve G(x_w) = g (g = a·Γ·η0/τ* > 0) for the Cross index n and ratio c = b/a, or
- * null when (n, c, x_w) lies outside the tabulated domain (then use the exact integral).
- */
-export function crossMasterWall(n: number, c: number, g: number): MasterWall | null {
-  if (!crossMasterSolve(n, c, g, SCRATCH)) return null;
-  return {
-    x: SCRATCH[0],
-    stressRatio: SCRATCH[1],
-    localIndex: SCRATCH[2],
-    logSlope: SCRATCH[3],
-  };
-}
-
-const SCRATCH = new Float64Array(4);
-
-/**
- * {@link crossMasterWall} without an allocation: writes x_w, F(x_w), ν and φ' into
- * `out[0…3]` and returns true, or returns false outside the tabulated domain. Same numbers.
+ * Solve G(x_w) = g (g = a·Γ·η0/τ* > 0) for the Cross index n and ratio c = b/a: writes the
+ * dimensionless wall state into `out` (0: x_w = η0·γ̇w/τ*; 1: F(x_w) = τw/τ*; 2: the local
+ * index ν = d ln τ/d ln γ̇ at the wall; 3: φ' = d ln Γ/d ln γ̇w > 0) and returns true, or
+ * returns false when (n, c, x_w) lies outside the tabulated domain (then use the exact
+ * integral).
  */
 export function crossMasterSolve(n: number, c: number, g: number, out: Float64Array): boolean {
   if (!(n >= N_LO && n <= N_HI) || !(g > 0) || !Number.isFinite(g)) return false;

@@ -36,16 +36,6 @@ export interface KozickiConstants {
   readonly b: number;
 }
 
-/** Wall state for one apparent shear rate. */
-export interface WallResponse {
-  /** True wall shear rate γ̇w, 1/s. */
-  shearRate: number;
-  /** Wall shear stress τw = f(γ̇w), Pa. */
-  stress: number;
-  /** dτw/dΓ, Pa·s (> 0; the Γ → 0 limit at Γ = 0). */
-  dStressDApparent: number;
-}
-
 /** Shear rate (1/s) at which the Γ = 0 slope is taken when f'(0) is infinite (power law, n < 1). */
 export const ZERO_FLOW_SHEAR_RATE = 1e-6;
 
@@ -137,21 +127,6 @@ export function apparentAtWall(
 }
 
 /**
- * Solve Γ(γ̇w) = `apparent` (1/s, ≥ 0) for the wall state. `cursor`, if given, is used as
- * the starting point when it holds the same curve and c, and is updated.
- */
-export function wallResponse(
-  curve: FlowCurve,
-  apparent: number,
-  constants: KozickiConstants,
-  cursor?: IntegralCursor,
-): WallResponse {
-  const out = new Float64Array(3);
-  wallResponseInto(curve, apparent, constants, cursor, out);
-  return { shearRate: out[0], stress: out[1], dStressDApparent: out[2] };
-}
-
-/**
  * The stress potential H(Γ) = ∫ τw d ln Γ of a section (Pa), at the wall state (γ̇w, τw)
  * solved for Γ; defined up to a constant of the curve and c, so only differences between two
  * wall states of one curve and one section shape have meaning. NaN when there is no closed
@@ -175,10 +150,12 @@ export function stressPotential(
 const MASTER = new Float64Array(4);
 
 /**
- * {@link wallResponse} without an allocation: writes γ̇w, τw and dτw/dΓ into `out[0…2]`.
- * Same numbers. Returns true when the exact integral was solved (the cursor, if any, then
- * holds the new state); false when a closed form or the master curve answered and the
- * cursor was neither read nor written.
+ * Solve Γ(γ̇w) = `apparent` (1/s, ≥ 0) for the wall state, written into `out`: the true wall
+ * shear rate γ̇w (1/s), the wall stress τw = f(γ̇w) (Pa) and dτw/dΓ (Pa·s, > 0; its Γ → 0 limit
+ * at Γ = 0). `cursor`, if given, starts the exact integral when it holds the same curve and c.
+ * Returns true when the exact integral was solved (the cursor, if any, then holds the new
+ * state); false when a closed form or the master curve answered and the cursor was neither
+ * read nor written.
  */
 export function wallResponseInto(
   curve: FlowCurve,
