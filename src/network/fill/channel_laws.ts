@@ -1,6 +1,7 @@
 import type { FlowCurve } from "../../materials/flow_curve.ts";
 import {
   type ChannelLaw,
+  type ChannelResistance,
   radialDiskFlow,
   type Section,
   shrinkSection,
@@ -18,8 +19,30 @@ import type { Branch } from "./assemble.ts";
 import type { FillContext } from "./context.ts";
 import { filledVolume, type FillState } from "./fill_state.ts";
 
-/** Shortest resisting length of a partly filled element, as a fraction of its length. */
-const MIN_FILLED_FRACTION = 1e-4;
+/**
+ * Least resisting volume of a partly filled element, as a fraction of its volume: keeps the law
+ * of an empty branch finite (zero volume would resist nothing). Tiny, because it decides
+ * nothing: how a fresh branch resists is {@link FRONT_START_AGE}'s to say.
+ */
+const MIN_FILLED_FRACTION = 1e-8;
+/**
+ * A fresh front's least age, as a fraction of the nominal fill time: a branch holding less than
+ * its flow × this age resists as if it had been filling at that flow for that long. Near its
+ * start a filling length grows as ∫q dt, so fronts that enter fresh branches together split the
+ * flow as their laws at volume q·τ do (for power-law tubes q ∝ R³, whatever their lengths);
+ * with a fixed least volume instead, the split right after the event is the ratio of those
+ * floors, the flows then jump to the real split within the floors' filling time, and the step
+ * control halved about ten times and regrew for twenty steps to follow a jump that is not in
+ * the physics. A millionth of the fill is far below any step (the step control halts at 1e-9,
+ * steps after an event start at 1/2000) and far above the floor.
+ */
+const FRONT_START_AGE = 1e-6;
+/**
+ * The start age's volume is extrapolated from the branch's law at its resisting volume, linear in
+ * the volume (exact for a uniform channel, and for any shape while the filled part is short);
+ * this share of the element's volume bounds it.
+ */
+const START_LINEAR_SHARE = 1e-2;
 /** A frozen layer this close to closing a section (fraction of the layer that closes its thinnest section) shuts it. */
 export const CLOSURE_FRACTION = 0.95;
 
@@ -135,7 +158,7 @@ export function cachedBranchLaw(
   const geometry = sameGeometry
     ? kept.geometry
     : branchGeometry(e, { side: branch.side, delta, volume });
-  const law = geometryLaw(geometry, curve);
+  const law = startedLaw(ctx, e, branch.side, volume, geometryLaw(geometry, curve));
   cache[slot] = { delta, volume, geometry, temperature, pressure, law };
   return law;
 }
@@ -159,7 +182,52 @@ export function branchLaw(
   const volume = branch.side === -1
     ? e.volume
     : Math.min(Math.max(volumes[2 * e.index + branch.side], 0), e.volume);
-  return geometryLaw(branchGeometry(e, { side: branch.side, delta, volume }), curve);
+  const law = geometryLaw(branchGeometry(e, { side: branch.side, delta, volume }), curve);
+  return startedLaw(ctx, e, branch.side, volume, law);
+}
+
+/** The volume a branch's geometry is built at: its filled volume, never below the floor. */
+function resistingVolume(e: NetworkElement, side: -1 | 0 | 1, volume: number): number {
+  return side === -1 ? e.volume : Math.max(volume, MIN_FILLED_FRACTION * e.volume);
+}
+
+/**
+ * `law` (built at the branch's resisting volume) with {@link FRONT_START_AGE}: where the flow
+ * × the age exceeds the resisting volume, the pressure drop is scaled up to the volume the
+ * front would hold at that age, ΔP(Q) = ΔP₀(Q)·|Q|τ/V₀, and dΔP/dQ = f·ΔP₀' + |ΔP₀|·τ/V₀.
+ * The wall shear is the section's, which the scaling leaves alone. A full branch, or one past
+ * the linear share, keeps its law.
+ */
+export function startedLaw(
+  ctx: FillContext,
+  e: NetworkElement,
+  side: -1 | 0 | 1,
+  volume: number,
+  law: ChannelLaw,
+): ChannelLaw {
+  const resisting = resistingVolume(e, side, volume);
+  const most = START_LINEAR_SHARE * e.volume;
+  if (side === -1 || resisting >= most) return law;
+  const age = FRONT_START_AGE * ctx.nominalFillTime;
+  const rate = age / resisting;
+  // Below `kink` the scale is 1; above `cap` the extrapolated volume is held at `most`.
+  const kink = 1 / rate;
+  const cap = most / age;
+  const scaled = <R extends ChannelResistance>(r: R, flow: number): R => {
+    const q = Math.abs(flow);
+    if (q <= kink) return r;
+    const f = (q < cap ? q : cap) * rate;
+    const slope = q < cap ? Math.abs(r.pressureDrop) * rate : 0;
+    return {
+      ...r,
+      pressureDrop: f * r.pressureDrop,
+      dPressureDropDFlow: f * r.dPressureDropDFlow + slope,
+    };
+  };
+  const started = (flow: number) => scaled(law(flow), flow);
+  return Object.assign(started, {
+    resistance: (flow: number) => scaled(law.resistance(flow), flow),
+  });
 }
 
 /** A branch's geometry prepared for its law: what does not depend on the melt. */
@@ -173,20 +241,19 @@ function branchGeometry(
   e: NetworkElement,
   at: { side: -1 | 0 | 1; delta: number; volume: number },
 ): BranchGeometry {
-  const { side, delta, volume: v } = at;
+  const { side, delta } = at;
+  const v = resistingVolume(e, side, at.volume);
   const g = e.geometry;
   const fraction = v / e.volume;
   switch (g.type) {
     case "uniform": {
       const section = delta > 0 ? shrinkSection(g.section, delta) : g.section;
-      const length = Math.max(fraction, MIN_FILLED_FRACTION) * g.length;
+      const length = fraction * g.length;
       return { type: "uniform", geometry: uniformChannelGeometry({ section, length }) };
     }
     case "tapered": {
       const [entry, exit] = side === 1 ? [g.exit, g.entry] : [g.entry, g.exit];
-      const filledLength = side === -1
-        ? g.length
-        : Math.max(taperedFilledLength(entry, exit, g.length, v), MIN_FILLED_FRACTION * g.length);
+      const filledLength = side === -1 ? g.length : taperedFilledLength(entry, exit, g.length, v);
       const open = (s: Section) => (delta > 0 ? shrinkSection(s, delta) : s);
       const shrunkEntry = open(entry);
       const shrunkExit = open(exit);
@@ -203,15 +270,12 @@ function branchGeometry(
     case "strip": {
       // The front advances along the flow length in a slit of the strip's width.
       const section: Section = { kind: "slit", width: g.width, gap: g.gap - 2 * delta };
-      const length = Math.max(fraction, MIN_FILLED_FRACTION) * g.flowLength;
+      const length = fraction * g.flowLength;
       return { type: "uniform", geometry: uniformChannelGeometry({ section, length }) };
     }
     case "radial": {
       const r0 = g.gateRadius;
-      const frontRadius = Math.max(
-        Math.sqrt(r0 * r0 + v / (Math.PI * g.gap)),
-        r0 + MIN_FILLED_FRACTION * (g.maxRadius - r0),
-      );
+      const frontRadius = Math.sqrt(r0 * r0 + v / (Math.PI * g.gap));
       return { type: "radial", gap: g.gap - 2 * delta, gateRadius: r0, frontRadius };
     }
   }
