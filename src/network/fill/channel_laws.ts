@@ -36,13 +36,13 @@ const MIN_FILLED_FRACTION = 1e-8;
  * the physics. A millionth of the fill is far below any step (the step control halts at 1e-9,
  * steps after an event start at 1/2000) and far above the floor.
  */
-const FRONT_START_AGE = 1e-6;
+export const FRONT_START_AGE = 1e-6;
 /**
  * The start age's volume is extrapolated from the branch's law at its resisting volume, linear in
  * the volume (exact for a uniform channel, and for any shape while the filled part is short);
  * this share of the element's volume bounds it.
  */
-const START_LINEAR_SHARE = 1e-2;
+export const START_LINEAR_SHARE = 1e-2;
 /** A frozen layer this close to closing a section (fraction of the layer that closes its thinnest section) shuts it. */
 export const CLOSURE_FRACTION = 0.95;
 
@@ -194,9 +194,11 @@ function resistingVolume(e: NetworkElement, side: -1 | 0 | 1, volume: number): n
 /**
  * `law` (built at the branch's resisting volume) with {@link FRONT_START_AGE}: where the flow
  * × the age exceeds the resisting volume, the pressure drop is scaled up to the volume the
- * front would hold at that age, ΔP(Q) = ΔP₀(Q)·|Q|τ/V₀, and dΔP/dQ = f·ΔP₀' + |ΔP₀|·τ/V₀.
- * The wall shear is the section's, which the scaling leaves alone. A full branch, or one past
- * the linear share, keeps its law.
+ * front would hold at that age, ΔP(Q) = ΔP₀(Q)·|Q|τ/V₀, and dΔP/dQ = f·ΔP₀' + |ΔP₀|·τ/V₀
+ * (Q m³/s, τ s, V₀ m³, ΔP Pa). The scaling is that of fully developed flow in a uniform
+ * channel, whose drop is proportional to its length (Bird, Armstrong & Hassager, *Dynamics of
+ * Polymeric Liquids* vol. 1, 2nd ed., §5.3). The wall shear is the section's, which the scaling
+ * leaves alone. A full branch, or one past the linear share, keeps its law.
  */
 export function startedLaw(
   ctx: FillContext,
