@@ -89,6 +89,8 @@ export type HydraulicSolution =
     pressures: Float64Array;
     /** Flow in every element from → to, m³/s. */
     flows: Float64Array;
+    /** Each element's law at its flow: the pressure drop from → to, Pa. */
+    pressureDrops: Float64Array;
     diagnostics: HydraulicDiagnostics;
   }
   | {
@@ -696,6 +698,7 @@ function solveOn(
           ok: true,
           pressures: pressure,
           flows: flow,
+          pressureDrops: drop.slice(0, m),
           diagnostics: diagnostics(iteration, change),
         };
       }

@@ -1,7 +1,7 @@
 import type { FeedNetwork } from "./feed_network.ts";
 import type { FillTangentRequest } from "./fill_tangent.ts";
 import type { FillDiagnostics, FillResult } from "./fill_result.ts";
-import { assemble, sameBranches } from "./fill/assemble.ts";
+import { assemble, carriedFlows, sameBranches } from "./fill/assemble.ts";
 import { CLOSURE_FRACTION, frozenAt } from "./fill/channel_laws.ts";
 import { type FillContext, fillContext, type FillProcess, type MeltModel } from "./fill/context.ts";
 import { cavityFigures, elementFigures, flowPaths } from "./fill/fill_figures.ts";
@@ -214,7 +214,7 @@ function fillLoop(
       t,
       volumes: state.fill,
       assembly,
-      warm: unchanged ? step.end.flows : undefined,
+      warm: unchanged ? step.end.flows : carriedFlows(ctx, s0.assembly, step.end.flows, assembly),
     });
     if ("failure" in next) return next;
     current = next;

@@ -108,6 +108,9 @@ Deno.test("power-law parallel branches: split ∝ r_i^(−1/n) and the inlet pre
         what: `n=${n} Q${i}`,
       })
     );
+    // The drops returned are each law at its returned flow, and every branch drops P1.
+    elements.forEach((e, k) => assert.equal(s.pressureDrops[k], e.law(s.flows[k]).pressureDrop));
+    r.forEach((_, i) => assertClose(s.pressureDrops[i + 1], p1, { rel: 1e-10, what: `ΔP${i}` }));
   }
 });
 

@@ -4,6 +4,12 @@ import type { FillState } from "./fill_state.ts";
 import type { Solved } from "./solve_instant.ts";
 
 /**
+ * Flows below this share of the injection rate are rounding noise of the solve (its mass
+ * tolerance is 1e-10 of the inflow): such a branch is stagnant.
+ */
+const STAGNANT_SHARE = 1e-12;
+
+/**
  * The thermal update after a solve (lagged by one step): each branch's flow and mean pressure,
  * and, unless isothermal, each element's melt temperature: its inlet temperature (the
  * flow-weighted mix at its upstream node, walking nodes from the highest pressure down) plus
@@ -40,15 +46,19 @@ export function updateMeltTemperature(ctx: FillContext, state: FillState, s: Sol
   const cursor = start.slice(0, nodeCount);
   for (let k = 0; k < K; k++) if (upstream[k] >= 0) byUpstream[cursor[upstream[k]]++] = k;
   const heating = { density: melt.meltDensity, specificHeat: melt.specificHeat };
+  const stagnant = STAGNANT_SHARE * ctx.injectionRate;
   for (const n of order) {
     if (n !== network.inlet) {
       nodeTemperature[n] = flow[n] > 0 ? heat[n] / flow[n] : process.feedTemperature;
     }
     for (let p = start[n]; p < start[n + 1]; p++) {
       const k = byUpstream[p];
+      // Stagnant melt (a flow at the solve's rounding level) is not carried anywhere: it keeps
+      // the temperature it had, instead of one taken from whichever end the noise flows from.
+      if (Math.abs(s.flows[k]) <= stagnant) continue;
       const br = s.assembly.branches[k];
       const e = elements[br.element];
-      const rise = adiabaticHeating(Math.abs(s.channel[k].pressureDrop), heating);
+      const rise = adiabaticHeating(Math.abs(s.drops[k]), heating);
       const inlet = e.heated ? process.feedTemperature : nodeTemperature[n];
       state.temperature[e.index] = inlet + rise / 2;
       const down = s.flows[k] >= 0 ? br.b : br.a;

@@ -18,13 +18,16 @@ export interface Solved {
   flows: Float64Array;
   /** Pressure per graph node, Pa (NaN where dry). */
   pressure: Float64Array;
+  /** Each branch's pressure drop at its flow, Pa (assembly order): the solve's own. */
+  drops: Float64Array;
   /** Each branch's law at its flow (full results: wall shear as well as the pressure drop). */
   readonly channel: readonly ChannelFlow[];
 }
 
 /**
  * A solved instant whose full channel results are evaluated on first use: most solves are
- * trials of a step, whose flows are all that is read. The laws are pure functions of the
+ * trials of a step, whose flows are all that is read, and the thermal update reads only the
+ * pressure drops, which the solve has. The laws are pure functions of the
  * flow, so when they are evaluated does not change a number.
  */
 class SolvedInstant implements Solved {
@@ -34,6 +37,7 @@ class SolvedInstant implements Solved {
     readonly assembly: Assembly,
     readonly flows: Float64Array,
     readonly pressure: Float64Array,
+    readonly drops: Float64Array,
     private readonly laws: readonly ChannelLaw[],
   ) {}
 
@@ -138,7 +142,7 @@ export function solveInstant(
     // Frozen shut at the feed: nothing flows, every wet node keeps its last pressure.
     const pressure = new Float64Array(nodeCount).fill(NaN);
     fillDeadEnds(ctx, state, pressure);
-    return new SolvedInstant(assembly, new Float64Array(0), pressure, []);
+    return new SolvedInstant(assembly, new Float64Array(0), pressure, new Float64Array(0), []);
   }
   let cache = lawCaches.get(ctx);
   if (!cache) lawCaches.set(ctx, cache = branchLawCache(ctx.elements.length));
@@ -174,7 +178,7 @@ export function solveInstant(
     if (assembly.local[n] >= 0) pressure[n] = solution.pressures[assembly.local[n]];
   }
   fillDeadEnds(ctx, state, pressure);
-  return new SolvedInstant(assembly, solution.flows, pressure, laws);
+  return new SolvedInstant(assembly, solution.flows, pressure, solution.pressureDrops, laws);
 }
 
 /**

@@ -152,3 +152,24 @@ Deno.test("sampleVolumes: a step lands on each requested injected volume; one ca
   assertClose(r.samples![1].cavityFill[0], 0.75, { rel: 1e-9, what: "75 %" });
   assert.equal(r.samples![2].cavityFill[0], 1, "past the end: full");
 });
+
+Deno.test("updateMeltTemperature: a branch whose flow is rounding noise keeps its melt temperature; one just above it is updated", () => {
+  const f = fixture(unequalBranches("full"));
+  markFull(f, ["hot_drop", "R1", "R2"]);
+  for (const id of ["G1", "G2"]) f.state.sideStart[2 * f.element(id)] = 0;
+  const s = solvedNow(f, 0.01);
+  const r2 = s.assembly.branches.findIndex((b) => b.element === f.element("R2"));
+  const withR2Flow = (q: number) => {
+    const flows = s.flows.slice();
+    flows[r2] = q;
+    return { ...s, channel: s.channel, flows };
+  };
+  const Q = f.ctx.injectionRate;
+  f.state.temperature[f.element("R2")] = 123.4;
+  updateMeltTemperature(f.ctx, f.state, withR2Flow(1e-14 * Q));
+  assert.equal(f.state.temperature[f.element("R2")], 123.4);
+  // R1 carries its real flow and is updated: above the tip temperature by its heating.
+  assert.ok(f.state.temperature[f.element("R1")] > f.ctx.process.feedTemperature);
+  updateMeltTemperature(f.ctx, f.state, withR2Flow(1e-9 * Q));
+  assert.notEqual(f.state.temperature[f.element("R2")], 123.4);
+});
