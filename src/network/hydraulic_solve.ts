@@ -104,8 +104,11 @@ export type HydraulicSolution =
 const FLOW_FLOOR_RATIO = 1e-30;
 /** Armijo sufficient-decrease constant of the backtracking line search. */
 const ARMIJO = 1e-4;
-/** Elements carrying less than this fraction of the flow scale always take the secant step. */
-const STAGNANT_RATIO = 1e-12;
+/**
+ * Flows below this fraction of the flow scale (the total inflow) are at the solve's rounding
+ * level: such elements always take the secant step, and a caller may treat them as stagnant.
+ */
+export const STAGNANT_RATIO = 1e-12;
 /** A tangent step that leaves less than this fraction of an element's flow is redone with the secant. */
 const SHRINK_LIMIT = 0.5;
 /** Relative size of rounding noise in flows, below which the merit cannot be resolved. */
@@ -698,7 +701,7 @@ function solveOn(
           ok: true,
           pressures: pressure,
           flows: flow,
-          pressureDrops: drop.slice(0, m),
+          pressureDrops: drop.slice(),
           diagnostics: diagnostics(iteration, change),
         };
       }

@@ -11,6 +11,14 @@ export interface Branch {
   b: number;
 }
 
+/**
+ * Index of (element, side) in per-branch arrays of a whole network, 3 per element: the full
+ * element (side −1), then its side 0 and side 1.
+ */
+export function branchSlot(element: number, side: -1 | 0 | 1): number {
+  return 3 * element + side + 1;
+}
+
 /** The network the melt sees at one instant. */
 export interface Assembly {
   branches: Branch[];
@@ -108,18 +116,17 @@ export function carriedFlows(
   flows: Float64Array,
   after: Assembly,
 ): Float64Array {
-  // Flow of each (element, side) before, NaN where it had no branch; side −1, 0, 1 → slot 0, 1, 2.
-  const slotOf = (br: Branch) => 3 * br.element + br.side + 1;
-  const had = new Float64Array(3 * ctx.elements.length).fill(NaN);
-  before.branches.forEach((br, k) => (had[slotOf(br)] = flows[k]));
+  // Flow of each (element, side) before, NaN where it had no branch.
+  const had = new Float64Array(branchSlot(ctx.elements.length, -1)).fill(NaN);
+  before.branches.forEach((br, k) => (had[branchSlot(br.element, br.side)] = flows[k]));
   const warm = new Float64Array(after.branches.length);
   const received = new Float64Array(ctx.nodeCount);
   received[ctx.network.inlet] = ctx.injectionRate;
   const fresh: number[] = [];
   after.branches.forEach((br, k) => {
-    let q = had[slotOf(br)];
+    let q = had[branchSlot(br.element, br.side)];
     if (Number.isNaN(q) && br.side === -1) {
-      const fromSide = had[3 * br.element + 1], toSide = had[3 * br.element + 2];
+      const fromSide = had[branchSlot(br.element, 0)], toSide = had[branchSlot(br.element, 1)];
       if (!Number.isNaN(fromSide) || !Number.isNaN(toSide)) {
         q = (Number.isNaN(fromSide) ? 0 : fromSide) - (Number.isNaN(toSide) ? 0 : toSide);
       }

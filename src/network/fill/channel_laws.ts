@@ -15,7 +15,7 @@ import {
 import { frozenLayerThickness, frozenLayerThinnerThan } from "../../physics/thermal.ts";
 import { taperedFilledLength } from "../_fill_geometry.ts";
 import type { NetworkElement } from "../feed_network.ts";
-import type { Branch } from "./assemble.ts";
+import { type Branch, branchSlot } from "./assemble.ts";
 import type { FillContext } from "./context.ts";
 import { filledVolume, type FillState } from "./fill_state.ts";
 
@@ -113,7 +113,7 @@ export type BranchLawCache = (KeptLaw | undefined)[];
 
 /** An empty cache for a network of `elementCount` elements. */
 export function branchLawCache(elementCount: number): BranchLawCache {
-  return new Array<KeptLaw | undefined>(3 * elementCount).fill(undefined);
+  return new Array<KeptLaw | undefined>(branchSlot(elementCount, -1)).fill(undefined);
 }
 
 function curveFor(ctx: FillContext, state: FillState, e: NetworkElement): FlowCurve {
@@ -147,7 +147,7 @@ export function cachedBranchLaw(
   const volume = branch.side === -1
     ? e.volume
     : Math.min(Math.max(volumes[2 * e.index + branch.side], 0), e.volume);
-  const slot = 3 * e.index + branch.side + 1;
+  const slot = branchSlot(e.index, branch.side);
   const kept = cache[slot];
   const sameGeometry = kept !== undefined && kept.delta === delta && kept.volume === volume;
   if (

@@ -1,13 +1,8 @@
 import { adiabaticHeating } from "../../physics/thermal.ts";
+import { STAGNANT_RATIO } from "../hydraulic_solve.ts";
 import type { FillContext } from "./context.ts";
 import type { FillState } from "./fill_state.ts";
 import type { Solved } from "./solve_instant.ts";
-
-/**
- * Flows below this share of the injection rate are rounding noise of the solve (its mass
- * tolerance is 1e-10 of the inflow): such a branch is stagnant.
- */
-const STAGNANT_SHARE = 1e-12;
 
 /**
  * The thermal update after a solve (lagged by one step): each branch's flow and mean pressure,
@@ -46,7 +41,7 @@ export function updateMeltTemperature(ctx: FillContext, state: FillState, s: Sol
   const cursor = start.slice(0, nodeCount);
   for (let k = 0; k < K; k++) if (upstream[k] >= 0) byUpstream[cursor[upstream[k]]++] = k;
   const heating = { density: melt.meltDensity, specificHeat: melt.specificHeat };
-  const stagnant = STAGNANT_SHARE * ctx.injectionRate;
+  const stagnant = STAGNANT_RATIO * ctx.injectionRate;
   for (const n of order) {
     if (n !== network.inlet) {
       nodeTemperature[n] = flow[n] > 0 ? heat[n] / flow[n] : process.feedTemperature;
