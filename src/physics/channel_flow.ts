@@ -52,6 +52,11 @@ export interface ChannelResistance {
 export interface ChannelLaw {
   (flowRate: number): ChannelFlow;
   resistance(flowRate: number): ChannelResistance;
+  /**
+   * Flows |Q|, m³/s, at which dΔP/dQ jumps, if any (`HydraulicElement.kinks`): the laws of
+   * this module are smooth; the fill's law of a fresh front has two.
+   */
+  readonly kinks?: readonly number[];
 }
 
 /** Options of {@link uniformChannelFlow}. */

@@ -122,8 +122,19 @@ export function simulateCase(c: GoldenCase): FillResult {
   return outcome.run.fill;
 }
 
+/**
+ * Below these fractions of the feed pressure peak and of the injection rate, a pressure drop
+ * or a flow is rounding noise (a dead end's drop, a stagnant branch's flow: 1e-15 of the scale
+ * and its sign arbitrary) and is kept as 0, so that the snapshot holds results, not noise.
+ */
+const NOISE_PRESSURE = 1e-12;
+const NOISE_FLOW = 1e-12;
+
 /** Every number of a fill result, flattened in a fixed order (ids and texts left out). */
 export function snapshot(fill: FillResult): number[] {
+  const pressure = (p: number) =>
+    Math.abs(p) < NOISE_PRESSURE * Math.abs(fill.feedPressurePeak) ? 0 : p;
+  const flow = (q: number) => Math.abs(q) < NOISE_FLOW * fill.injectionRate ? 0 : q;
   const out: number[] = [
     fill.injectionRate,
     fill.switchoverTime,
@@ -150,9 +161,9 @@ export function snapshot(fill: FillResult): number[] {
   }
   for (const e of fill.elements) {
     out.push(
-      e.pressureDropAtSwitchover,
-      e.pressureDropAtFirstFull,
-      e.flowAtSwitchover,
+      pressure(e.pressureDropAtSwitchover),
+      pressure(e.pressureDropAtFirstFull),
+      flow(e.flowAtSwitchover),
       e.wallShearRatePeak,
       e.wallShearRatePeakBeforeFirstFull,
       e.apparentShearRatePeak,
@@ -170,11 +181,13 @@ export function snapshot(fill: FillResult): number[] {
       c.fillAtSwitchover,
       c.gateShearRatePeak,
       c.gateShearRatePeakBeforeFirstFull,
-      c.gatePressureDrop,
+      pressure(c.gatePressureDrop),
       c.inletPressureAtSwitchover,
     );
   }
-  for (const p of fill.paths) out.push(...p.pressureDrops, ...p.pressureDropsAtFirstFull);
+  for (const p of fill.paths) {
+    out.push(...p.pressureDrops.map(pressure), ...p.pressureDropsAtFirstFull.map(pressure));
+  }
   if (fill.tangent) {
     out.push(fill.tangent.directions, fill.tangent.samples);
     for (const v of fill.tangent.cavityVolume) out.push(...v);

@@ -229,6 +229,7 @@ export function startedLaw(
   const started = (flow: number) => scaled(law(flow), flow);
   return Object.assign(started, {
     resistance: (flow: number) => scaled(law.resistance(flow), flow),
+    kinks: [kink, cap],
   });
 }
 

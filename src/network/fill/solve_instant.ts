@@ -151,7 +151,12 @@ export function solveInstant(
   const problem = problemOf(ctx, assembly);
   const hydraulic: HydraulicElement[] = new Array(laws.length);
   for (let k = 0; k < laws.length; k++) {
-    hydraulic[k] = { from: problem.from[k], to: problem.to[k], law: laws[k].resistance };
+    hydraulic[k] = {
+      from: problem.from[k],
+      to: problem.to[k],
+      law: laws[k].resistance,
+      kinks: laws[k].kinks,
+    };
   }
   const topology = problem.topology;
   const solution = topology.ok

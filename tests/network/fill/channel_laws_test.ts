@@ -72,3 +72,28 @@ Deno.test("a fresh branch resists as a front that has filled at its flow for the
     assert.equal(fresh.resistance(q).pressureDrop, got);
   }
 });
+
+Deno.test("a fresh branch's law declares the two flows where its slope jumps, and only those", () => {
+  // ΔP = ΔP₀(Q)·f(Q): f = 1 up to Q·τ = V₀, f = Q·τ/V₀ up to the linear share, then constant
+  // (the scaling of the test above). The slope picks up |ΔP₀|·τ/V₀ at the first kink and
+  // loses f's slope at the second; between and beyond them it is continuous. The hydraulic
+  // solve must know where (HydraulicElement.kinks): a Newton step across a kink is not
+  // second-order accurate.
+  const f = fixture(unequalBranches("isothermal"));
+  markFull(f, ["hot_drop"], 0);
+  const assembly = assemble(f.ctx, f.state);
+  const r1 = assembly.branches.find((br) => br.element === f.element("R1") && br.side === 0)!;
+  const fresh = branchLaw(f.ctx, f.state, r1, 0, f.state.fill);
+  assert.ok(fresh.kinks && fresh.kinks.length === 2, "two kinks");
+  const [first, second] = fresh.kinks;
+  const slope = (q: number) => fresh.resistance(q).dPressureDropDFlow;
+  const jump = (q: number) => Math.abs(slope(q * (1 + 1e-9)) - slope(q * (1 - 1e-9))) / slope(q);
+  assert.ok(jump(first) > 0.1, `slope jumps by ${jump(first)} at the first kink`);
+  assert.ok(jump(second) > 0.1, `slope jumps by ${jump(second)} at the second kink`);
+  for (const q of [first / 3, Math.sqrt(first * second), 3 * second]) {
+    assert.ok(jump(q) < 1e-6, `slope continuous at ${q} m³/s: ${jump(q)}`);
+  }
+  // A full branch keeps the channel's own smooth law.
+  const full = assembly.branches.find((br) => br.side === -1)!;
+  assert.equal(branchLaw(f.ctx, f.state, full, 0, f.state.fill).kinks, undefined);
+});
