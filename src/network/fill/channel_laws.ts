@@ -61,8 +61,7 @@ export function frozenAt(
   t: number,
   side: -1 | 0 | 1,
 ): number {
-  const { process, melt } = ctx;
-  if (process.isothermal || e.heated) return 0;
+  if (ctx.process.isothermal || e.heated) return 0;
   const start0 = state.sideStart[2 * e.index];
   const start1 = state.sideStart[2 * e.index + 1];
   if (Number.isNaN(start0) && Number.isNaN(start1)) return 0;
@@ -76,19 +75,73 @@ export function frozenAt(
   const residence = flow > 0 ? filledVolume(state, e.index) / flow : Infinity;
   const tc = Math.max(0, Math.min(contact, residence / 2));
   if (tc === 0) return 0;
+  const memo = frozenMemoOf(ctx, state);
+  const i = e.index;
+  const held = state.frozenHeld[i];
+  const temperature = state.temperature[i];
+  if (memo.contact[i] === tc && memo.temperature[i] === temperature && memo.held[i] === held) {
+    return memo.layer[i];
+  }
+  const layer = computeFrozen(ctx, temperature, tc, held, ctx.closing[i]);
+  memo.contact[i] = tc;
+  memo.temperature[i] = temperature;
+  memo.held[i] = held;
+  memo.layer[i] = layer;
+  return layer;
+}
+
+/**
+ * The last frozen layer worked out per element with its inputs (contact time, melt
+ * temperature, layer held): the trials of one step ask again for the full elements, whose
+ * contact time is half their residence and does not move within the step. The layer is a pure
+ * function of these and of the fill's constants, so a repeat is answered with the same number.
+ */
+interface FrozenMemo {
+  ctx: FillContext;
+  contact: Float64Array;
+  temperature: Float64Array;
+  held: Float64Array;
+  layer: Float64Array;
+}
+
+const frozenMemos = new WeakMap<FillState, FrozenMemo>();
+
+function frozenMemoOf(ctx: FillContext, state: FillState): FrozenMemo {
+  const known = frozenMemos.get(state);
+  if (known && known.ctx === ctx) return known;
+  const E = ctx.elements.length;
+  const memo = {
+    ctx,
+    contact: new Float64Array(E).fill(NaN),
+    temperature: new Float64Array(E).fill(NaN),
+    held: new Float64Array(E).fill(NaN),
+    layer: new Float64Array(E),
+  };
+  frozenMemos.set(state, memo);
+  return memo;
+}
+
+/** {@link frozenAt}'s layer for contact time `tc` > 0 s, melt `temperature` K, `held` m. */
+function computeFrozen(
+  ctx: FillContext,
+  temperature: number,
+  tc: number,
+  held: number,
+  closing: number,
+): number {
+  const { process, melt } = ctx;
   const layer = {
-    meltTemperature: state.temperature[e.index],
+    meltTemperature: temperature,
     wallTemperature: process.moldTemperature,
     noFlowTemperature: melt.noFlowTemperature,
     diffusivity: melt.diffusivity,
   };
-  const held = state.frozenHeld[e.index];
   // Mostly the layer already held is the thicker (the melt is hotter, or its residence
   // shorter, than when it formed): that is told apart without the erf⁻¹ of a new melt
   // temperature, and the result below would be `held` anyway.
   if (held > 0 && frozenLayerThinnerThan(tc, held, layer)) return held;
   const delta = frozenLayerThickness(tc, layer);
-  return Math.max(held, Math.min(delta, CLOSURE_FRACTION * ctx.closing[e.index]));
+  return Math.max(held, Math.min(delta, CLOSURE_FRACTION * closing));
 }
 
 /** A branch law and the inputs it was built from (see {@link BranchLawCache}). */

@@ -5,8 +5,10 @@ import {
   branchLawCache,
   cachedBranchLaw,
   FRONT_START_AGE,
+  frozenAt,
   START_LINEAR_SHARE,
 } from "../../../src/network/fill/channel_laws.ts";
+import type { FillState } from "../../../src/network/fill/fill_state.ts";
 import { unequalBranches } from "../_scenarios.ts";
 import { fixture, markFull } from "./_fixture.ts";
 
@@ -96,4 +98,35 @@ Deno.test("a fresh branch's law declares the two flows where its slope jumps, an
   // A full branch keeps the channel's own smooth law.
   const full = assembly.branches.find((br) => br.side === -1)!;
   assert.equal(branchLaw(f.ctx, f.state, full, 0, f.state.fill).kinks, undefined);
+});
+
+Deno.test("frozenAt answers a repeat from its memory and works out a changed melt, flow or layer afresh", () => {
+  // The memory must never change a number: every answer equals the one a state with the same
+  // values but no memory gives (a copy of the state is a new key of the memory).
+  const f = fixture(unequalBranches("full"));
+  markFull(f, ["hot_drop", "R1", "R2", "G1"], 0);
+  const r1 = f.network.elements[f.element("R1")];
+  f.state.lastFlow[r1.index] = 2e-5;
+  const copy = (s: FillState): FillState => ({
+    ...s,
+    lastFlow: s.lastFlow.slice(),
+    temperature: s.temperature.slice(),
+    frozenHeld: s.frozenHeld.slice(),
+  });
+  const fresh = (t: number) => frozenAt(f.ctx, copy(f.state), r1, t, -1);
+  const first = frozenAt(f.ctx, f.state, r1, 0.5, -1);
+  assert.ok(first > 0, "a full runner at 0.5 s has a frozen layer");
+  assert.equal(frozenAt(f.ctx, f.state, r1, 0.5, -1), first);
+  assert.equal(first, fresh(0.5));
+  f.state.temperature[r1.index] -= 15; // a cooler melt: a thicker layer
+  const cooler = frozenAt(f.ctx, f.state, r1, 0.5, -1);
+  assert.ok(cooler > first, `cooler melt: ${cooler} > ${first}`);
+  assert.equal(cooler, fresh(0.5));
+  f.state.lastFlow[r1.index] = 2e-6; // slower flow, longer residence: thicker again
+  const slower = frozenAt(f.ctx, f.state, r1, 0.5, -1);
+  assert.ok(slower > cooler, `slower flow: ${slower} > ${cooler}`);
+  assert.equal(slower, fresh(0.5));
+  f.state.frozenHeld[r1.index] = 2 * slower; // a thicker layer already held is kept
+  assert.equal(frozenAt(f.ctx, f.state, r1, 0.5, -1), 2 * slower);
+  assert.equal(fresh(0.5), 2 * slower);
 });
