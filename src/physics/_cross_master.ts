@@ -300,7 +300,8 @@ export function crossMasterSolve(n: number, c: number, g: number, out: Float64Ar
   if (!Number.isNaN(direct)) {
     // One table: its inverse's cubic is the root to the tables' own accuracy (the master
     // curve tests agree with the exact integral to 3e-10 either way), so no Newton step is
-    // needed; φ' by the exact formula from R there.
+    // needed; φ' by the exact formula, with R = ln g − s at the root (ln G = R + s), so
+    // e^−R = x/g.
     const s = direct;
     const x = Math.exp(s);
     const xm = Math.exp(m * s);
@@ -308,7 +309,7 @@ export function crossMasterSolve(n: number, c: number, g: number, out: Float64Ar
     out[1] = x / (1 + xm);
     const nu = (1 + n * xm) / (1 + xm);
     out[2] = nu;
-    out[3] = nu * (Math.exp(-evalR(tables, s)) - c);
+    out[3] = nu * (x / g - c);
     return true;
   }
   let s = startOf(master, c, tables, target);

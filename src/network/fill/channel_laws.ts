@@ -106,9 +106,16 @@ interface FrozenMemo {
 
 const frozenMemos = new WeakMap<FillState, FrozenMemo>();
 
+/** The memory asked for last, and its state: a fill asks with one state thousands of times. */
+let lastMemo: { state: FillState; memo: FrozenMemo } | undefined;
+
 function frozenMemoOf(ctx: FillContext, state: FillState): FrozenMemo {
+  if (lastMemo && lastMemo.state === state && lastMemo.memo.ctx === ctx) return lastMemo.memo;
   const known = frozenMemos.get(state);
-  if (known && known.ctx === ctx) return known;
+  if (known && known.ctx === ctx) {
+    lastMemo = { state, memo: known };
+    return known;
+  }
   const E = ctx.elements.length;
   const memo = {
     ctx,
@@ -118,6 +125,7 @@ function frozenMemoOf(ctx: FillContext, state: FillState): FrozenMemo {
     layer: new Float64Array(E),
   };
   frozenMemos.set(state, memo);
+  lastMemo = { state, memo };
   return memo;
 }
 
