@@ -160,5 +160,6 @@ export function uniformGeometryLaw(
       dPressureDropDFlow: local[D_GRADIENT] * length,
     };
   };
-  return Object.assign(law, { resistance });
+  law.resistance = resistance;
+  return law;
 }

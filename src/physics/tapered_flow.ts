@@ -205,7 +205,8 @@ export function taperedGeometryLaw(
         dPressureDropDFlow: 0,
       };
     };
-    return Object.assign(empty, { resistance: empty });
+    empty.resistance = empty;
+    return empty;
   }
   const cone = Number.isFinite(geometry.potentialFactor) &&
     (curve.powerLaw !== undefined || curve.cross !== undefined);
@@ -268,7 +269,8 @@ function coneLaw(geometry: TaperedChannelGeometry, curve: FlowCurve): ChannelLaw
     if (!solve(Math.abs(flowRate))) return quadrature().resistance(flowRate);
     return { pressureDrop: Math.sign(flowRate) * pressure, dPressureDropDFlow: slope };
   };
-  return Object.assign(full, { resistance });
+  full.resistance = resistance;
+  return full;
 }
 
 /** The law of a partly or wholly filled taper by Gauss–Legendre quadrature of the local law. */
@@ -353,5 +355,6 @@ function quadratureLaw(geometry: TaperedChannelGeometry, curve: FlowCurve): Chan
     if (integrate(q)) inOrder(q);
     return { pressureDrop: Math.sign(flowRate) * pressure, dPressureDropDFlow: slope };
   };
-  return Object.assign(full, { resistance });
+  full.resistance = resistance;
+  return full;
 }

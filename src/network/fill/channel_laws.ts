@@ -288,10 +288,9 @@ export function startedLaw(
     };
   };
   const started = (flow: number) => scaled(law(flow), flow);
-  return Object.assign(started, {
-    resistance: (flow: number) => scaled(law.resistance(flow), flow),
-    kinks: [kink, cap],
-  });
+  started.resistance = (flow: number) => scaled(law.resistance(flow), flow);
+  started.kinks = [kink, cap] as const;
+  return started;
 }
 
 /** A branch's geometry prepared for its law: what does not depend on the melt. */
@@ -355,7 +354,8 @@ function geometryLaw(geometry: BranchGeometry, curve: FlowCurve): ChannelLaw {
     case "radial": {
       const { gap, gateRadius, frontRadius } = geometry;
       const law = (flow: number) => radialDiskFlow(flow, { gap, gateRadius, frontRadius, curve });
-      return Object.assign(law, { resistance: law });
+      law.resistance = law;
+      return law;
     }
   }
 }
