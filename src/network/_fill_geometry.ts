@@ -14,9 +14,23 @@ export function taperedVolume(
 ): number {
   const t = filledLength / length;
   const a0 = sectionArea(entry);
-  const am = sectionArea(interpolateSection(entry, exit, t / 2));
-  const a1 = sectionArea(interpolateSection(entry, exit, t));
+  const am = areaAlong(entry, exit, t / 2);
+  const a1 = areaAlong(entry, exit, t);
   return (filledLength / 6) * (a0 + 4 * am + a1);
+}
+
+/**
+ * `sectionArea(interpolateSection(entry, exit, t))`, the same arithmetic, without building
+ * the section for the round kinds (a filling taper asks for it a dozen times per law).
+ */
+function areaAlong(entry: Section, exit: Section, t: number): number {
+  if ((entry.kind === "circle" || entry.kind === "half_round") && exit.kind === entry.kind) {
+    if (!(t >= 0 && t <= 1)) return sectionArea(interpolateSection(entry, exit, t)); // throws
+    const r = entry.radius + ((exit as typeof entry).radius - entry.radius) * t;
+    if (!(r > 0) || !Number.isFinite(r)) return sectionArea(interpolateSection(entry, exit, t));
+    return entry.kind === "circle" ? Math.PI * r * r : 0.5 * Math.PI * r * r;
+  }
+  return sectionArea(interpolateSection(entry, exit, t));
 }
 
 /** Filled length of a taper holding `volume` from its entry (m), by safeguarded Newton. */
@@ -37,7 +51,7 @@ export function taperedFilledLength(
     if (Math.abs(f) <= 1e-14 * total) break;
     if (f > 0) hi = x;
     else lo = x;
-    const area = sectionArea(interpolateSection(entry, exit, x / length));
+    const area = areaAlong(entry, exit, x / length);
     let next = x - f / area;
     if (!(next > lo && next < hi)) next = (lo + hi) / 2;
     x = next;

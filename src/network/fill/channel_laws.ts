@@ -152,29 +152,39 @@ function computeFrozen(
   return Math.max(held, Math.min(delta, CLOSURE_FRACTION * closing));
 }
 
-/** A branch law and the inputs it was built from (see {@link BranchLawCache}). */
-interface KeptLaw {
-  delta: number;
-  volume: number;
-  geometry: BranchGeometry;
-  temperature: number;
-  pressure: number;
-  law: ChannelLaw;
-}
-
 /**
- * The last law built for each branch of one fill (element × side), with its inputs. A branch
- * law is a pure function of its element, its frozen layer and filled volume (its geometry)
- * and of the melt temperature and pressure its flow curve is taken at; when all are the same
- * as last time the same law serves again, and when only the melt changed the prepared
- * geometry does. (A memory of each law's recent flows was tried and dropped: its look-ups
- * cost more than the few evaluations they saved.)
+ * The last law built for each branch of one fill (element × side, `branchSlot`), with its
+ * inputs. A branch law is a pure function of its element, its frozen layer and filled volume
+ * (its geometry) and of the melt temperature and pressure its flow curve is taken at; when all
+ * are the same as last time the same law serves again, and when only the melt changed the
+ * prepared geometry does. The inputs sit in typed arrays, not in an object per law: a fill
+ * keeps about a hundred thousand laws, and every number in an object is a heap allocation of
+ * its own. (A memory of each law's recent flows was tried and dropped: its look-ups cost more
+ * than the few evaluations they saved.)
  */
-export type BranchLawCache = (KeptLaw | undefined)[];
+export interface BranchLawCache {
+  /** Frozen layer (m) and filled volume (m³) the kept law's geometry was built at. */
+  readonly delta: Float64Array;
+  readonly volume: Float64Array;
+  /** Melt temperature (K) and pressure (Pa) of its flow curve (NaN when isothermal). */
+  readonly temperature: Float64Array;
+  readonly pressure: Float64Array;
+  readonly geometry: (BranchGeometry | undefined)[];
+  /** The kept law, undefined for none. */
+  readonly law: (ChannelLaw | undefined)[];
+}
 
 /** An empty cache for a network of `elementCount` elements. */
 export function branchLawCache(elementCount: number): BranchLawCache {
-  return new Array<KeptLaw | undefined>(branchSlot(elementCount, -1)).fill(undefined);
+  const slots = branchSlot(elementCount, -1);
+  return {
+    delta: new Float64Array(slots),
+    volume: new Float64Array(slots),
+    temperature: new Float64Array(slots),
+    pressure: new Float64Array(slots),
+    geometry: new Array<BranchGeometry | undefined>(slots).fill(undefined),
+    law: new Array<ChannelLaw | undefined>(slots).fill(undefined),
+  };
 }
 
 function curveFor(ctx: FillContext, state: FillState, e: NetworkElement): FlowCurve {
@@ -209,18 +219,25 @@ export function cachedBranchLaw(
     ? e.volume
     : Math.min(Math.max(volumes[2 * e.index + branch.side], 0), e.volume);
   const slot = branchSlot(e.index, branch.side);
-  const kept = cache[slot];
-  const sameGeometry = kept !== undefined && kept.delta === delta && kept.volume === volume;
+  const kept = cache.law[slot];
+  const sameGeometry = kept !== undefined && cache.delta[slot] === delta &&
+    cache.volume[slot] === volume;
   if (
     sameGeometry &&
-    (ctx.process.isothermal || (kept.temperature === temperature && kept.pressure === pressure))
-  ) return kept.law;
+    (ctx.process.isothermal ||
+      (cache.temperature[slot] === temperature && cache.pressure[slot] === pressure))
+  ) return kept;
   const curve = curveFor(ctx, state, e);
   const geometry = sameGeometry
-    ? kept.geometry
+    ? cache.geometry[slot]!
     : branchGeometry(e, { side: branch.side, delta, volume });
   const law = startedLaw(ctx, e, branch.side, volume, geometryLaw(geometry, curve));
-  cache[slot] = { delta, volume, geometry, temperature, pressure, law };
+  cache.delta[slot] = delta;
+  cache.volume[slot] = volume;
+  cache.temperature[slot] = temperature;
+  cache.pressure[slot] = pressure;
+  cache.geometry[slot] = geometry;
+  cache.law[slot] = law;
   return law;
 }
 
