@@ -57,6 +57,17 @@ export interface HydraulicOptions {
   /** Warm start: one flow per element, m³/s (default: a linear-theory start). */
   initialFlows?: Float64Array;
   /**
+   * The laws already evaluated at `initialFlows` for the elements a previous solve shares law
+   * and flow with: where `known[e]` is 1, `drop[e]` (Pa) and `slope[e]` (Pa·s/m³, > 0) are
+   * taken as h and h' at the start instead of evaluating the law there (values a solve
+   * returned, `pressureDrops` and `pressureDropSlopes`, are within its tolerance of them).
+   * They must be the laws' own values to within the tolerance: the solve ends on a small
+   * Newton step without evaluating the laws again, so a known drop that is off (a stale law)
+   * may move the pressures without moving the flows and go unnoticed. Only with
+   * `initialFlows`.
+   */
+  initialLaws?: { known: Uint8Array; drop: Float64Array; slope: Float64Array };
+  /**
    * Stop when the first-order flow correction Σ|r_e/h'_e| / Σ|Q_e| (r_e: the energy
    * residual of element e) is at most this; dimensionless, default 1e-10.
    */
@@ -100,6 +111,11 @@ export type HydraulicSolution =
      * step, the laws linearised along it, h + h'·δ, equal to them within the tolerance).
      */
     pressureDrops: Float64Array;
+    /**
+     * dΔP/dQ of each element where the solve last evaluated it (Pa·s/m³): at the flows
+     * returned, or at the start of a last Newton step, which moved them within the tolerance.
+     */
+    pressureDropSlopes: Float64Array;
     diagnostics: HydraulicDiagnostics;
   }
   | {
@@ -434,7 +450,28 @@ function checkOptions(options: HydraulicOptions, elementCount: number) {
       }
     }
   }
-  return { flowTolerance, massTolerance, maxIterations, initial };
+  const known = options.initialLaws;
+  if (known !== undefined) {
+    if (initial === undefined) {
+      throw new RangeError("Cannot solve hydraulics: initialLaws needs initialFlows");
+    }
+    const { known: mask, drop, slope } = known;
+    if (
+      mask.length !== elementCount || drop.length !== elementCount || slope.length !== elementCount
+    ) {
+      throw new RangeError(
+        `Cannot solve hydraulics: initialLaws must have one value per element (${elementCount})`,
+      );
+    }
+    for (let e = 0; e < elementCount; e++) {
+      if (mask[e] && (!Number.isFinite(drop[e]) || !(slope[e] > 0) || !Number.isFinite(slope[e]))) {
+        throw new RangeError(
+          `Cannot solve hydraulics: initialLaws of element ${e} must be finite with a slope > 0`,
+        );
+      }
+    }
+  }
+  return { flowTolerance, massTolerance, maxIterations, initial, known };
 }
 
 /**
@@ -492,7 +529,7 @@ function solveOn(
   topology: Topology,
   at: { settings: ReturnType<typeof checkOptions>; workspace: Workspace },
 ): HydraulicSolution {
-  const { flowTolerance, massTolerance, maxIterations, initial } = at.settings;
+  const { flowTolerance, massTolerance, maxIterations, initial, known } = at.settings;
   const n = problem.nodeCount;
   const elements = problem.elements;
   const m = elements.length;
@@ -533,9 +570,15 @@ function solveOn(
 
   let lawFailure: Failure | undefined;
   const floorSecant = (e: number) => elements[e].law(flowFloor).pressureDrop / flowFloor;
-  /** h and h' at `q`; h' at the floor flow when |Q| is below it or h' is not finite there. */
-  const evaluate = (q: Float64Array, h: Float64Array, dh: Float64Array): boolean => {
+  /** h and h' at `q` (not for the elements `skip` marks); h' at the floor flow when |Q| is below it or h' is not finite there. */
+  const evaluate = (
+    q: Float64Array,
+    h: Float64Array,
+    dh: Float64Array,
+    skip?: Uint8Array,
+  ): boolean => {
     for (let e = 0; e < m; e++) {
+      if (skip !== undefined && skip[e]) continue;
       const law = elements[e].law(q[e]);
       let d = law.dPressureDropDFlow;
       if (Math.abs(q[e]) < flowFloor || !Number.isFinite(d)) {
@@ -698,6 +741,7 @@ function solveOn(
       pressures: pressure,
       flows: flow,
       pressureDrops: drops,
+      pressureDropSlopes: slope.slice(),
       diagnostics: {
         iterations: iteration + 1,
         worstMassResidual: worstMass,
@@ -729,7 +773,15 @@ function solveOn(
     if (failure) return failure;
     flow.set(newFlow);
   }
-  if (!evaluate(flow, drop, slope)) return lawFailure!;
+  if (known) {
+    // The laws a previous solve left at these flows; the others evaluated here.
+    for (let e = 0; e < m; e++) {
+      if (!known.known[e]) continue;
+      drop[e] = known.drop[e];
+      slope[e] = known.slope[e];
+    }
+    if (!evaluate(flow, drop, slope, known.known)) return lawFailure!;
+  } else if (!evaluate(flow, drop, slope)) return lawFailure!;
 
   /*
    * Global gradient Newton (Todini & Pilati 1988; Rossman 2000, app. D).
@@ -769,6 +821,7 @@ function solveOn(
           pressures: pressure,
           flows: flow,
           pressureDrops: drop.slice(),
+          pressureDropSlopes: slope.slice(),
           diagnostics: diagnostics(iteration, change),
         };
       }

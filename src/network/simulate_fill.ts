@@ -169,6 +169,7 @@ function fillLoop(
         volumes: state.fill,
         assembly: s0.assembly,
         warm: step.end.flows,
+        from: step.end,
       });
       if ("failure" in end) return end;
       tangent.at(end, t);
@@ -215,6 +216,7 @@ function fillLoop(
       volumes: state.fill,
       assembly,
       warm: unchanged ? step.end.flows : carriedFlows(ctx, s0.assembly, step.end.flows, assembly),
+      from: step.end,
     });
     if ("failure" in next) return next;
     current = next;

@@ -158,6 +158,7 @@ export function eventStep(
       volumes: predicted,
       assembly: s0.assembly,
       warm: warmAt(length),
+      from: lastLength === 0 ? s0 : undefined,
     });
     if ("failure" in s1) return s1;
     lastLength = length;

@@ -6,7 +6,7 @@ import {
   topologyAnalysis,
 } from "../hydraulic_solve.ts";
 import type { SymbolicCholesky } from "../sparse_cholesky.ts";
-import type { Assembly } from "./assemble.ts";
+import { type Assembly, branchSlot } from "./assemble.ts";
 import { type BranchLawCache, branchLawCache, cachedBranchLaw } from "./channel_laws.ts";
 import type { FillContext } from "./context.ts";
 import { type FillState, isFull } from "./fill_state.ts";
@@ -20,6 +20,10 @@ export interface Solved {
   pressure: Float64Array;
   /** Each branch's pressure drop at its flow, Pa (assembly order): the solve's own. */
   drops: Float64Array;
+  /** Each branch's dΔP/dQ as the solve last linearised it, Pa·s/m³ (assembly order). */
+  slopes: Float64Array;
+  /** Each branch's law (assembly order). */
+  readonly laws: readonly ChannelLaw[];
   /** Each branch's law at its flow (full results: wall shear as well as the pressure drop). */
   readonly channel: readonly ChannelFlow[];
 }
@@ -38,7 +42,8 @@ class SolvedInstant implements Solved {
     readonly flows: Float64Array,
     readonly pressure: Float64Array,
     readonly drops: Float64Array,
-    private readonly laws: readonly ChannelLaw[],
+    readonly slopes: Float64Array,
+    readonly laws: readonly ChannelLaw[],
   ) {}
 
   get channel(): readonly ChannelFlow[] {
@@ -134,7 +139,14 @@ export function solveInstant(
   ctx: FillContext,
   state: FillState,
   stats: SolveStats,
-  at: { t: number; volumes: Float64Array; assembly: Assembly; warm?: Float64Array },
+  at: {
+    t: number;
+    volumes: Float64Array;
+    assembly: Assembly;
+    warm?: Float64Array;
+    /** The solved instant `warm` carries flows from: its laws, where they serve again at the same flow, are not evaluated anew ({@link knownLaws}). */
+    from?: Solved;
+  },
 ): Solved | { failure: string } {
   const { t, volumes, assembly, warm } = at;
   const { nodeCount } = ctx;
@@ -142,7 +154,8 @@ export function solveInstant(
     // Frozen shut at the feed: nothing flows, every wet node keeps its last pressure.
     const pressure = new Float64Array(nodeCount).fill(NaN);
     fillDeadEnds(ctx, state, pressure);
-    return new SolvedInstant(assembly, new Float64Array(0), pressure, new Float64Array(0), []);
+    const none = new Float64Array(0);
+    return new SolvedInstant(assembly, none, pressure, none, none, []);
   }
   let cache = lawCaches.get(ctx);
   if (!cache) lawCaches.set(ctx, cache = branchLawCache(ctx.elements.length));
@@ -167,7 +180,11 @@ export function solveInstant(
         fixedPressure: problem.fixedPressure,
         inflow: problem.inflow,
       },
-      { initialFlows: warm, topology: topology.topology },
+      {
+        initialFlows: warm,
+        initialLaws: warm && at.from ? knownLaws(ctx, assembly, laws, warm, at.from) : undefined,
+        topology: topology.topology,
+      },
     )
     : topology;
   stats.hydraulicSolves++;
@@ -183,7 +200,50 @@ export function solveInstant(
     if (assembly.local[n] >= 0) pressure[n] = solution.pressures[assembly.local[n]];
   }
   fillDeadEnds(ctx, state, pressure);
-  return new SolvedInstant(assembly, solution.flows, pressure, solution.pressureDrops, laws);
+  return new SolvedInstant(
+    assembly,
+    solution.flows,
+    pressure,
+    solution.pressureDrops,
+    solution.pressureDropSlopes,
+    laws,
+  );
+}
+
+/**
+ * The branches of `assembly` whose law (the same law object) and warm flow are those of a
+ * branch of `from`, the solve the warm start came from, with that solve's drop and slope there:
+ * the law is a pure function of the flow, so its value is what `from` had (within its
+ * tolerance, `solveHydraulics`), and the start need not evaluate it again. Undefined when none.
+ */
+function knownLaws(
+  ctx: FillContext,
+  assembly: Assembly,
+  laws: readonly ChannelLaw[],
+  warm: Float64Array,
+  from: Solved,
+): { known: Uint8Array; drop: Float64Array; slope: Float64Array } | undefined {
+  const K = laws.length;
+  if (from.slopes.length !== from.assembly.branches.length) return undefined;
+  let slotOf: Int32Array | undefined;
+  if (from.assembly !== assembly) {
+    slotOf = new Int32Array(branchSlot(ctx.elements.length, -1)).fill(-1);
+    from.assembly.branches.forEach((br, k) => (slotOf![branchSlot(br.element, br.side)] = k));
+  }
+  const known = new Uint8Array(K);
+  const drop = new Float64Array(K);
+  const slope = new Float64Array(K);
+  let any = false;
+  for (let k = 0; k < K; k++) {
+    const br = assembly.branches[k];
+    const j = slotOf ? slotOf[branchSlot(br.element, br.side)] : k;
+    if (j < 0 || from.laws[j] !== laws[k] || from.flows[j] !== warm[k]) continue;
+    known[k] = 1;
+    drop[k] = from.drops[j];
+    slope[k] = from.slopes[j];
+    any = true;
+  }
+  return any ? { known, drop, slope } : undefined;
 }
 
 /**

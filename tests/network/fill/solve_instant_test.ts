@@ -1,10 +1,14 @@
 import assert from "node:assert/strict";
 import { assertClose } from "../../assert_close.ts";
+import { assemble } from "../../../src/network/fill/assemble.ts";
 import {
   fillDeadEnds,
   holdPressures,
   type Solved,
+  solveInstant,
+  solveStats,
 } from "../../../src/network/fill/solve_instant.ts";
+import { unequalBranches } from "../_scenarios.ts";
 import { fixture, markFull, solvedNow } from "./_fixture.ts";
 
 // Power-law tube and slit, Bird, Armstrong & Hassager, Dynamics of Polymeric Liquids vol. 1
@@ -64,4 +68,37 @@ Deno.test("fillDeadEnds: a node sealed by a frozen-shut element keeps its last p
   const p = new Float64Array(dry.ctx.nodeCount).fill(NaN);
   fillDeadEnds(dry.ctx, dry.state, p);
   assert.ok(Number.isNaN(p[dry.node("A")]));
+});
+
+Deno.test("solveInstant from another solve: shared laws are taken as known, a changed law is not", () => {
+  // Warm-started from a solve of the same state, the solve takes that solve's laws as known
+  // and must land on its flows; after one element's melt is made hotter (a new law for it),
+  // the stale value must not be reused: the solve must land where a cold solve of the new
+  // state does. (A stale drop taken as known could move the pressures without moving the
+  // flows, unnoticed: solveHydraulics' initialLaws.)
+  const f = fixture(unequalBranches("full"));
+  markFull(f, ["hot_drop", "R1", "R2", "G1", "G2"], 0);
+  for (const id of ["C1", "C2"]) {
+    const c = f.element(id);
+    f.state.sideStart[2 * c] = 0;
+    f.state.fill[2 * c] = 0.3 * f.network.elements[c].volume;
+  }
+  f.state.lastFlow.fill(2e-5);
+  const assembly = assemble(f.ctx, f.state);
+  const at = { t: 0.5, volumes: f.state.fill, assembly };
+  const stats = solveStats();
+  const first = solveInstant(f.ctx, f.state, stats, at);
+  assert.ok(!("failure" in first));
+  const again = solveInstant(f.ctx, f.state, stats, { ...at, warm: first.flows, from: first });
+  assert.ok(!("failure" in again));
+  first.flows.forEach((q, k) => assertClose(again.flows[k], q, { rel: 1e-9, what: `Q${k}` }));
+  f.state.temperature[f.element("R1")] += 20;
+  const hotter = solveInstant(f.ctx, f.state, stats, { ...at, warm: first.flows, from: first });
+  const cold = solveInstant(f.ctx, f.state, stats, at);
+  assert.ok(!("failure" in hotter) && !("failure" in cold));
+  const r1 = assembly.branches.findIndex((br) => br.element === f.element("R1"));
+  assert.ok(hotter.flows[r1] > first.flows[r1] * (1 + 1e-6), "a hotter R1 takes more of the flow");
+  cold.flows.forEach((q, k) => assertClose(hotter.flows[k], q, { rel: 1e-9, what: `hot Q${k}` }));
+  const inlet = f.network.inlet;
+  assertClose(hotter.pressure[inlet], cold.pressure[inlet], { rel: 1e-9, what: "feed pressure" });
 });
