@@ -140,6 +140,7 @@ export function eventStep(
   // interpolated linearly in the length between s0 and it (mass-balanced like both).
   let lastLength = 0;
   let lastFlows = s0.flows;
+  let lastSolved = s0;
   const warmAt = (length: number): Float64Array => {
     if (lastLength === 0) return s0.flows;
     const w = length / lastLength;
@@ -158,11 +159,12 @@ export function eventStep(
       volumes: predicted,
       assembly: s0.assembly,
       warm: warmAt(length),
-      from: lastLength === 0 ? s0 : undefined,
+      from: lastSolved,
     });
     if ("failure" in s1) return s1;
     lastLength = length;
     lastFlows = s1.flows;
+    lastSolved = s1;
     let change = 0;
     const next = fill.slice();
     for (const { br, k } of partial) {
