@@ -77,14 +77,46 @@ export function frozenLayerThinnerThan(
   contactTime: number,
   thickness: number,
   options: FrozenLayerOptions,
+  bound?: ThinnerBound,
 ): boolean {
   const theta = frozenLayerTheta(contactTime, options);
   if (theta === Infinity || theta === 0) return theta < thickness;
   const root = Math.sqrt(options.diffusivity * contactTime);
   const remembered = knownErfInv(theta);
   if (!Number.isNaN(remembered)) return 2 * remembered * root < thickness;
+  return theta < (bound ? bound.value(contactTime, thickness) : thinnerBound(root, thickness));
+}
+
+/**
+ * The bound θ is compared with in {@link frozenLayerThinnerThan}, erf(z)·(1 − 1e-9) with
+ * z = s/(2√(α·t))·(1 − 1e-9): it does not depend on the melt, so a caller that asks again
+ * at the same contact time and thickness with another melt temperature may keep it.
+ */
+export interface ThinnerBound {
+  value(contactTime: number, thickness: number): number;
+}
+
+/** erf(z)·(1 − 1e-9), z = thickness/(2·root)·(1 − 1e-9), root = √(α·t). */
+function thinnerBound(root: number, thickness: number): number {
   const z = (thickness / (2 * root)) * (1 - 1e-9);
-  return theta < erf(z) * (1 - 1e-9);
+  return erf(z) * (1 - 1e-9);
+}
+
+/** A {@link ThinnerBound} for diffusivity α (m²/s) that remembers its last answer. */
+export function rememberedThinnerBound(diffusivity: number): ThinnerBound {
+  let lastTime = NaN;
+  let lastThickness = NaN;
+  let last = NaN;
+  return {
+    value(contactTime: number, thickness: number): number {
+      if (contactTime !== lastTime || thickness !== lastThickness) {
+        last = thinnerBound(Math.sqrt(diffusivity * contactTime), thickness);
+        lastTime = contactTime;
+        lastThickness = thickness;
+      }
+      return last;
+    },
+  };
 }
 
 /**

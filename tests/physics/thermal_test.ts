@@ -13,6 +13,7 @@ import {
   frozenLayerThinnerThan,
   plateCoolingTime,
   plateMeanCoolingTime,
+  rememberedThinnerBound,
 } from "../../src/physics/thermal.ts";
 
 Deno.test("erf against Abramowitz & Stegun Table 7.1 (10 decimals)", () => {
@@ -282,4 +283,39 @@ Deno.test("frozen layer: remembered erf⁻¹ gives the uncached 2·erf⁻¹(θ)�
       );
     }
   }
+});
+
+Deno.test("frozenLayerThinnerThan with a remembered bound answers as without, for any melt", () => {
+  // The bound erf(s/(2√(α·t))) does not depend on the melt: kept across melt temperatures at
+  // one contact time and thickness, it must give the answers a fresh computation gives, and a
+  // new time or thickness must not be answered from the old one. Melt temperatures no other
+  // test uses, so erf⁻¹ of their θ is not remembered (the bound is what decides).
+  const bound = rememberedThinnerBound(layer.diffusivity);
+  let asked = 0;
+  const counting = { value: (t: number, s: number) => (asked++, bound.value(t, s)) };
+  for (const t of [2e-3, 0.7]) {
+    for (const thickness of [1e-5, 1e-4, 4e-4]) {
+      for (const melt of [437.3, 452.9, 488.1, 523.7, 563.3]) {
+        const at = { ...layer, meltTemperature: melt };
+        const what = `t = ${t} s, ${thickness} m, melt ${melt} K`;
+        assert.equal(
+          frozenLayerThinnerThan(t, thickness, at, counting),
+          frozenLayerThinnerThan(t, thickness, at),
+          what,
+        );
+      }
+    }
+  }
+  assert.ok(asked > 0, "the bound was asked");
+  // Both answers occur with one kept bound: at the layer of a middle melt, a hotter melt's is
+  // thinner and a colder one's is not.
+  const middle = frozenLayerThickness(0.7, { ...layer, meltTemperature: 500 });
+  assert.equal(
+    frozenLayerThinnerThan(0.7, middle, { ...layer, meltTemperature: 563.3 }, bound),
+    true,
+  );
+  assert.equal(
+    frozenLayerThinnerThan(0.7, middle, { ...layer, meltTemperature: 437.3 }, bound),
+    false,
+  );
 });

@@ -12,7 +12,12 @@ import {
   uniformChannelGeometry,
   uniformGeometryLaw,
 } from "../../physics/mod.ts";
-import { frozenLayerThickness, frozenLayerThinnerThan } from "../../physics/thermal.ts";
+import {
+  frozenLayerThickness,
+  frozenLayerThinnerThan,
+  rememberedThinnerBound,
+  type ThinnerBound,
+} from "../../physics/thermal.ts";
 import { taperedFilledLength } from "../_fill_geometry.ts";
 import type { NetworkElement } from "../feed_network.ts";
 import { type Branch, branchSlot } from "./assemble.ts";
@@ -82,7 +87,7 @@ export function frozenAt(
   if (memo.contact[i] === tc && memo.temperature[i] === temperature && memo.held[i] === held) {
     return memo.layer[i];
   }
-  const layer = computeFrozen(ctx, temperature, tc, held, ctx.closing[i]);
+  const layer = computeFrozen(ctx, temperature, tc, held, ctx.closing[i], memo.bounds[i]);
   memo.contact[i] = tc;
   memo.temperature[i] = temperature;
   memo.held[i] = held;
@@ -102,6 +107,8 @@ interface FrozenMemo {
   temperature: Float64Array;
   held: Float64Array;
   layer: Float64Array;
+  /** Per element, the erf bound of its last held layer and contact time (a new melt temperature keeps it). */
+  bounds: ThinnerBound[];
 }
 
 const frozenMemos = new WeakMap<FillState, FrozenMemo>();
@@ -123,6 +130,7 @@ function frozenMemoOf(ctx: FillContext, state: FillState): FrozenMemo {
     temperature: new Float64Array(E).fill(NaN),
     held: new Float64Array(E).fill(NaN),
     layer: new Float64Array(E),
+    bounds: ctx.elements.map(() => rememberedThinnerBound(ctx.melt.diffusivity)),
   };
   frozenMemos.set(state, memo);
   lastMemo = { state, memo };
@@ -136,6 +144,7 @@ function computeFrozen(
   tc: number,
   held: number,
   closing: number,
+  bound: ThinnerBound,
 ): number {
   const { process, melt } = ctx;
   const layer = {
@@ -147,7 +156,7 @@ function computeFrozen(
   // Mostly the layer already held is the thicker (the melt is hotter, or its residence
   // shorter, than when it formed): that is told apart without the erf⁻¹ of a new melt
   // temperature, and the result below would be `held` anyway.
-  if (held > 0 && frozenLayerThinnerThan(tc, held, layer)) return held;
+  if (held > 0 && frozenLayerThinnerThan(tc, held, layer, bound)) return held;
   const delta = frozenLayerThickness(tc, layer);
   return Math.max(held, Math.min(delta, CLOSURE_FRACTION * closing));
 }
