@@ -285,7 +285,8 @@ export function crossMasterPotential(n: number, c: number, s: number): number {
 /**
  * Solve G(x_w) = g (g = a·Γ·η0/τ* > 0) for the Cross index n and ratio c = b/a: writes the
  * dimensionless wall state into `out` (0: x_w = η0·γ̇w/τ*; 1: F(x_w) = τw/τ*; 2: the local
- * index ν = d ln τ/d ln γ̇ at the wall; 3: φ' = d ln Γ/d ln γ̇w > 0) and returns true, or
+ * index ν = d ln τ/d ln γ̇ at the wall; 3: φ' = d ln Γ/d ln γ̇w > 0; 4, when `out` has a
+ * fifth slot: s = ln x_w, the argument of {@link crossMasterPotential}) and returns true, or
  * returns false when (n, c, x_w) lies outside the tabulated domain (then use the exact
  * integral).
  */
@@ -310,6 +311,7 @@ export function crossMasterSolve(n: number, c: number, g: number, out: Float64Ar
     const nu = (1 + n * xm) / (1 + xm);
     out[2] = nu;
     out[3] = nu * (x / g - c);
+    if (out.length > 4) out[4] = s;
     return true;
   }
   let s = startOf(master, c, tables, target);
@@ -338,6 +340,7 @@ export function crossMasterSolve(n: number, c: number, g: number, out: Float64Ar
       out[1] = x / (1 + xmFinal);
       out[2] = nuFinal;
       out[3] = nuFinal * (Math.exp(-rFinal) - c);
+      if (out.length > 4) out[4] = s;
       return true;
     }
   }

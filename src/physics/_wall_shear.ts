@@ -148,6 +148,38 @@ export function stressPotential(
 }
 
 const MASTER = new Float64Array(4);
+const MASTER_WITH_LOG = new Float64Array(5);
+
+/**
+ * {@link wallResponseInto} and {@link stressPotential} at once for a Cross curve inside its
+ * master tables, at apparent shear rate `apparent` > 0 (1/s): `out` gets 0–2 as
+ * wallResponseInto's (the same numbers) and 3: the stress potential H, Pa, taken at the wall
+ * solve's own s = ln(η0·γ̇w/τ*) instead of the logarithm of the shear rate it returned (a cone
+ * asks for both at each end of every evaluation). False, `out` untouched, for any other curve
+ * or outside the tables: then ask the two functions.
+ */
+export function crossWallPotentialInto(
+  curve: FlowCurve,
+  apparent: number,
+  constants: KozickiConstants,
+  out: Float64Array,
+): boolean {
+  const cross = curve.cross;
+  if (!cross || curve.powerLaw || !(apparent > 0) || !Number.isFinite(apparent)) return false;
+  const { a, b } = constants;
+  const c = b / a;
+  const { zeroShearViscosity: eta0, tauStar } = cross;
+  const wall = MASTER_WITH_LOG;
+  if (!crossMasterSolve(cross.index, c, (a * apparent * eta0) / tauStar, wall)) return false;
+  const potential = crossMasterPotential(cross.index, c, wall[4]);
+  if (!Number.isFinite(potential)) return false;
+  const stress = tauStar * wall[1];
+  out[0] = (tauStar / eta0) * wall[0];
+  out[1] = stress;
+  out[2] = (wall[2] * stress) / (apparent * wall[3]);
+  out[3] = tauStar * potential;
+  return true;
+}
 
 /**
  * Solve Γ(γ̇w) = `apparent` (1/s, ≥ 0) for the wall state, written into `out`: the true wall

@@ -20,7 +20,12 @@ import {
   STRESS,
 } from "./_local_gradient.ts";
 import { gaussLegendre } from "./_quadrature.ts";
-import { type IntegralCursor, newCursor, stressPotential } from "./_wall_shear.ts";
+import {
+  crossWallPotentialInto,
+  type IntegralCursor,
+  newCursor,
+  stressPotential,
+} from "./_wall_shear.ts";
 
 /** Options of {@link taperedChannelFlow}. */
 export interface TaperedChannelFlowOptions {
@@ -184,6 +189,7 @@ function taperQuadrature(
 
 /** Scratch of the taper laws (no law calls another while it evaluates). */
 const LOCAL = new Float64Array(5);
+const CONE_END = new Float64Array(4);
 const CURSOR: IntegralCursor = newCursor();
 const ENDS = new Float64Array(3);
 
@@ -233,16 +239,26 @@ function coneLaw(geometry: TaperedChannelGeometry, curve: FlowCurve): ChannelLaw
   let shear = 0;
   let apparent = 0;
   let stress = 0;
+  /** The wall at one end into `local` (SHEAR_RATE, STRESS, APPARENT), its potential returned. */
+  const end = (q: number, data: SectionFlowData): number => {
+    const apparent = q * data.toApparent;
+    if (crossWallPotentialInto(curve, apparent, data, CONE_END)) {
+      local[SHEAR_RATE] = CONE_END[0];
+      local[STRESS] = CONE_END[1];
+      local[APPARENT] = data.sum * apparent;
+      return CONE_END[3];
+    }
+    localGradientInto(q, data, curve, undefined, local);
+    return stressPotential(curve, data, local[SHEAR_RATE], local[STRESS]);
+  };
   const solve = (q: number): boolean => {
     if (q === at) return true;
     if (!(q > 0)) return false;
-    localGradientInto(q, firstData, curve, undefined, local);
-    const first = stressPotential(curve, firstData, local[SHEAR_RATE], local[STRESS]);
+    const first = end(q, firstData);
     const firstShear = local[SHEAR_RATE];
     const firstApparent = local[APPARENT];
     const firstStress = local[STRESS];
-    localGradientInto(q, lastData, curve, undefined, local);
-    const last = stressPotential(curve, lastData, local[SHEAR_RATE], local[STRESS]);
+    const last = end(q, lastData);
     if (!Number.isFinite(first) || !Number.isFinite(last)) return false;
     pressure = factor * (first - last);
     slope = (factor * (firstStress - local[STRESS])) / q;

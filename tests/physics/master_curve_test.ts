@@ -8,6 +8,7 @@
  * vol. 1, 2nd ed., §5.3), evaluated by an independent method; the required agreement
  * (1e-7 relative) is the project's accuracy budget for the fast path.
  */
+import assert from "node:assert/strict";
 import { assertClose } from "../assert_close.ts";
 import { crossCurve } from "../../src/materials/flow_curve.ts";
 import { uniformChannelFlow } from "../../src/physics/channel_flow.ts";
@@ -15,6 +16,11 @@ import { kozickiConstants } from "../../src/physics/noncircular.ts";
 import { radialDiskFlow } from "../../src/physics/radial_flow.ts";
 import { hydraulicDiameter, type Section, sectionArea } from "../../src/physics/section.ts";
 import { taperedChannelFlow } from "../../src/physics/tapered_flow.ts";
+import {
+  crossWallPotentialInto,
+  stressPotential,
+  wallResponseInto,
+} from "../../src/physics/_wall_shear.ts";
 import { seededRandom, untagged } from "./_curves.ts";
 
 const REL = 1e-7;
@@ -180,4 +186,35 @@ Deno.test("Cross master curves: tapered and radial laws match the exact path", (
       });
     }
   }
+});
+
+Deno.test("crossWallPotentialInto: wallResponseInto's wall state and stressPotential's H in one solve", () => {
+  // The same wall solve, so the wall state must agree to the bit; the potential is taken at the
+  // solve's own s instead of ln of the shear rate it returns, which differ by rounding only.
+  const random = seededRandom(7);
+  let compared = 0;
+  for (const n of [0.2, 0.32, 0.6, 0.9]) {
+    const curve = crossCurve(3000 * (0.5 + random()), { tauStar: 3e4 + 4e4 * random(), index: n });
+    for (const constants of [{ a: 0.25, b: 0.75 }, { a: 0.5, b: 1 }, { a: 0.3, b: 0.8 }]) {
+      for (const apparent of [1e-2, 3, 400, 5e4, 2e6]) {
+        const together = new Float64Array(4);
+        const wall = new Float64Array(3);
+        const what = `n ${n}, a ${constants.a}, Γ ${apparent} 1/s`;
+        assert.ok(crossWallPotentialInto(curve, apparent, constants, together), what);
+        wallResponseInto(curve, apparent, constants, undefined, wall);
+        for (let i = 0; i < 3; i++) assert.equal(together[i], wall[i], `${what}: slot ${i}`);
+        assertClose(together[3], stressPotential(curve, constants, wall[0], wall[1]), {
+          rel: 1e-13,
+          what: `${what}: H`,
+        });
+        compared++;
+      }
+    }
+  }
+  assert.equal(compared, 60);
+  // Not a tagged Cross curve, no flow: false, and the caller takes the two functions.
+  const out = new Float64Array(4);
+  const cross = crossCurve(3000, { tauStar: 3e4, index: 0.3 });
+  assert.equal(crossWallPotentialInto(untagged(cross), 10, { a: 0.25, b: 0.75 }, out), false);
+  assert.equal(crossWallPotentialInto(cross, 0, { a: 0.25, b: 0.75 }, out), false);
 });
