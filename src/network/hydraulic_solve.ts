@@ -756,7 +756,7 @@ function solveOn(
       }
       if (!(q > 0) || flow[e] * newFlow[e] <= 0) return undefined;
       const kinks = elements[e].kinks;
-      if (kinks && kinks.some((k) => (Math.abs(flow[e]) - k) * (q - k) <= 0)) return undefined;
+      if (kinks && crossesKink(kinks, Math.abs(flow[e]), q)) return undefined;
       predicted += (step * step) / q;
       moved += Math.abs(step);
       size += q;
@@ -929,6 +929,14 @@ function solveOn(
     drop.set(trialDrop);
     slope.set(trialSlope);
   }
+}
+
+/** Whether the flows |q0| and |q1| lie on two sides of (or on) one of `kinks`. */
+function crossesKink(kinks: readonly number[], q0: number, q1: number): boolean {
+  for (let i = 0; i < kinks.length; i++) {
+    if ((q0 - kinks[i]) * (q1 - kinks[i]) <= 0) return true;
+  }
+  return false;
 }
 
 function countSlots(slot: Int32Array): number {

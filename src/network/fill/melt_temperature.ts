@@ -22,23 +22,26 @@ export function updateMeltTemperature(ctx: FillContext, state: FillState, s: Sol
     state.meanPressure[br.element] = (pa + pb) / 2;
   }
   if (process.isothermal) return;
-  const nodeTemperature = new Float64Array(nodeCount).fill(NaN);
+  const K = s.assembly.branches.length;
+  const { nodeTemperature, heat, flow, start, cursor, upstream, byUpstream } = scratchOf(
+    state,
+    nodeCount,
+    K,
+  );
+  nodeTemperature.fill(NaN);
   nodeTemperature[network.inlet] = process.feedTemperature;
   const order = byFallingPressure(state, s.pressure);
-  const heat = new Float64Array(nodeCount);
-  const flow = new Float64Array(nodeCount);
+  heat.fill(0);
+  flow.fill(0);
   // Branches by upstream node, in branch order (compressed rows).
-  const K = s.assembly.branches.length;
-  const upstream = new Int32Array(K);
-  const start = new Int32Array(nodeCount + 1);
+  start.fill(0);
   for (let k = 0; k < K; k++) {
     const br = s.assembly.branches[k];
     upstream[k] = s.flows[k] >= 0 ? br.a : br.b;
     if (upstream[k] >= 0) start[upstream[k] + 1]++;
   }
   for (let n = 0; n < nodeCount; n++) start[n + 1] += start[n];
-  const byUpstream = new Int32Array(start[nodeCount]);
-  const cursor = start.slice(0, nodeCount);
+  cursor.set(start.subarray(0, nodeCount));
   for (let k = 0; k < K; k++) if (upstream[k] >= 0) byUpstream[cursor[upstream[k]]++] = k;
   const heating = { density: melt.meltDensity, specificHeat: melt.specificHeat };
   const stagnant = STAGNANT_RATIO * ctx.injectionRate;
@@ -63,6 +66,36 @@ export function updateMeltTemperature(ctx: FillContext, state: FillState, s: Sol
       }
     }
   }
+}
+
+/** Working arrays of the thermal update, kept per fill (every one is cleared before it is read). */
+interface Scratch {
+  nodeTemperature: Float64Array;
+  heat: Float64Array;
+  flow: Float64Array;
+  start: Int32Array;
+  cursor: Int32Array;
+  upstream: Int32Array;
+  byUpstream: Int32Array;
+}
+
+const scratches = new WeakMap<FillState, Scratch>();
+
+function scratchOf(state: FillState, nodeCount: number, branches: number): Scratch {
+  let known = scratches.get(state);
+  if (!known || known.heat.length !== nodeCount || known.upstream.length < branches) {
+    known = {
+      nodeTemperature: new Float64Array(nodeCount),
+      heat: new Float64Array(nodeCount),
+      flow: new Float64Array(nodeCount),
+      start: new Int32Array(nodeCount + 1),
+      cursor: new Int32Array(nodeCount),
+      upstream: new Int32Array(Math.max(branches, 2 * state.fullTime.length)),
+      byUpstream: new Int32Array(Math.max(branches, 2 * state.fullTime.length)),
+    };
+    scratches.set(state, known);
+  }
+  return known;
 }
 
 /** The order {@link byFallingPressure} gave last, per fill. */

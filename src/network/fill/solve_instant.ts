@@ -218,6 +218,20 @@ export function solveInstant(
  */
 const NEAR_FLOW = 1e-6;
 
+/** Per assembly, each (element, side) slot's branch index (−1: none), made on first use. */
+const slotIndexes = new WeakMap<Assembly, Int32Array>();
+
+function slotsOf(ctx: FillContext, assembly: Assembly): Int32Array {
+  let known = slotIndexes.get(assembly);
+  if (!known) {
+    known = new Int32Array(branchSlot(ctx.elements.length, -1)).fill(-1);
+    const slots = known;
+    assembly.branches.forEach((br, k) => (slots[branchSlot(br.element, br.side)] = k));
+    slotIndexes.set(assembly, known);
+  }
+  return known;
+}
+
 /**
  * The branches of `assembly` whose law (the same law object) is that of a branch of `from`,
  * the solve the warm start came from, and whose warm flow is that branch's flow or within
@@ -235,10 +249,7 @@ function knownLaws(
   const K = laws.length;
   if (from.slopes.length !== from.assembly.branches.length) return undefined;
   let slotOf: Int32Array | undefined;
-  if (from.assembly !== assembly) {
-    slotOf = new Int32Array(branchSlot(ctx.elements.length, -1)).fill(-1);
-    from.assembly.branches.forEach((br, k) => (slotOf![branchSlot(br.element, br.side)] = k));
-  }
+  if (from.assembly !== assembly) slotOf = slotsOf(ctx, from.assembly);
   const known = new Uint8Array(K);
   const drop = new Float64Array(K);
   const slope = new Float64Array(K);
