@@ -52,6 +52,36 @@ export const START_LINEAR_SHARE = 1e-2;
 export const CLOSURE_FRACTION = 0.95;
 
 /**
+ * Whether a full element `e` (side −1) keeps the same frozen layer ({@link frozenAt}) at every
+ * instant from `t` on, for as long as the state holds (the layer held, the last flow, the melt
+ * temperature): heated, isothermal (no layer), or its contact time has reached half its
+ * residence, which then bounds the time the layer grows over (t_c stays residence/2 while the
+ * contact time grows). Then its law, a function of its layer, its volume and its melt, does not
+ * change either. False for a filling side, whose volume moves.
+ */
+export function frozenFixedFrom(
+  ctx: FillContext,
+  state: FillState,
+  e: NetworkElement,
+  t: number,
+  side: -1 | 0 | 1,
+): boolean {
+  if (side !== -1) return false;
+  if (ctx.process.isothermal || e.heated) return true;
+  const start0 = state.sideStart[2 * e.index];
+  const start1 = state.sideStart[2 * e.index + 1];
+  if (Number.isNaN(start0) && Number.isNaN(start1)) return true;
+  const start = Number.isNaN(start0)
+    ? start1
+    : Number.isNaN(start1)
+    ? start0
+    : Math.min(start0, start1);
+  const contact = t - (start + state.fullTime[e.index]) / 2;
+  const flow = state.lastFlow[e.index];
+  return flow > 0 && contact >= filledVolume(state, e.index) / flow / 2;
+}
+
+/**
  * Frozen-layer thickness of element `e` at `t`, m: the no-flow conduction solution
  * δ = 2·erf⁻¹(θ)·√(α·t_c) (semi-infinite solid, Carslaw & Jaeger, *Conduction of Heat in
  * Solids*, 2nd ed., §2.4) with t_c the shorter of the wall's mean contact time

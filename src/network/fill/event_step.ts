@@ -1,5 +1,6 @@
 import type { Branch } from "./assemble.ts";
-import { CLOSURE_FRACTION, frozenAt } from "./channel_laws.ts";
+import type { ChannelLaw } from "../../physics/mod.ts";
+import { CLOSURE_FRACTION, frozenAt, frozenFixedFrom } from "./channel_laws.ts";
 import type { FillContext } from "./context.ts";
 import type { FillState } from "./fill_state.ts";
 import { type Solved, solveInstant, type SolveStats } from "./solve_instant.ts";
@@ -141,6 +142,13 @@ export function eventStep(
   let lastLength = 0;
   let lastFlows = s0.flows;
   let lastSolved = s0;
+  // Full branches whose law stays the same for the whole step (frozenFixedFrom at its start):
+  // every trial after the first takes the first trial's law for them.
+  const fixed = new Uint8Array(s0.assembly.branches.length);
+  s0.assembly.branches.forEach((br, k) => {
+    if (frozenFixedFrom(ctx, state, elements[br.element], t, br.side)) fixed[k] = 1;
+  });
+  let stepLaws: readonly ChannelLaw[] | undefined;
   const warmAt = (length: number): Float64Array => {
     if (lastLength === 0) return s0.flows;
     const w = length / lastLength;
@@ -160,8 +168,10 @@ export function eventStep(
       assembly: s0.assembly,
       warm: warmAt(length),
       from: lastSolved,
+      reuse: stepLaws ? { laws: stepLaws, fixed } : undefined,
     });
     if ("failure" in s1) return s1;
+    stepLaws ??= s1.laws;
     lastLength = length;
     lastFlows = s1.flows;
     lastSolved = s1;

@@ -146,6 +146,11 @@ export function solveInstant(
     warm?: Float64Array;
     /** The solved instant `warm` carries flows from: its laws, where they serve again at the same flow, are not evaluated anew ({@link knownLaws}). */
     from?: Solved;
+    /**
+     * Laws of this assembly that the caller knows are still those of this instant (`fixed[k]`
+     * = 1: `laws[k]` serves as is; `frozenFixedFrom`), so they are not asked for again.
+     */
+    reuse?: { laws: readonly ChannelLaw[]; fixed: Uint8Array };
   },
 ): Solved | { failure: string } {
   const { t, volumes, assembly, warm } = at;
@@ -160,7 +165,10 @@ export function solveInstant(
   let cache = lawCaches.get(ctx);
   if (!cache) lawCaches.set(ctx, cache = branchLawCache(ctx.elements.length));
   const keep = { t, volumes, cache };
-  const laws = assembly.branches.map((br) => cachedBranchLaw(ctx, state, br, keep));
+  const reuse = at.reuse;
+  const laws = assembly.branches.map((br, k) =>
+    reuse && reuse.fixed[k] ? reuse.laws[k] : cachedBranchLaw(ctx, state, br, keep)
+  );
   const problem = problemOf(ctx, assembly);
   const hydraulic: HydraulicElement[] = new Array(laws.length);
   for (let k = 0; k < laws.length; k++) {

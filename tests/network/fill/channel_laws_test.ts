@@ -6,6 +6,7 @@ import {
   cachedBranchLaw,
   FRONT_START_AGE,
   frozenAt,
+  frozenFixedFrom,
   START_LINEAR_SHARE,
 } from "../../../src/network/fill/channel_laws.ts";
 import type { FillState } from "../../../src/network/fill/fill_state.ts";
@@ -129,4 +130,33 @@ Deno.test("frozenAt answers a repeat from its memory and works out a changed mel
   f.state.frozenHeld[r1.index] = 2 * slower; // a thicker layer already held is kept
   assert.equal(frozenAt(f.ctx, f.state, r1, 0.5, -1), 2 * slower);
   assert.equal(fresh(0.5), 2 * slower);
+});
+
+Deno.test("frozenFixedFrom: a full element past half its residence keeps its layer; a filling side never counts", () => {
+  // t_c = min(contact, residence/2): once the contact time passes half the residence, later
+  // instants give the same t_c, so the same layer (checked here against frozenAt itself);
+  // before that the layer still grows with the contact time, and a filling side's volume moves.
+  const f = fixture(unequalBranches("full"));
+  markFull(f, ["hot_drop", "R1", "R2", "G1"], 0);
+  const r1 = f.network.elements[f.element("R1")];
+  const residence = r1.volume / 2e-5;
+  f.state.lastFlow[r1.index] = 2e-5;
+  const early = residence / 4; // contact = t while the element has been full since 0
+  assert.equal(frozenFixedFrom(f.ctx, f.state, r1, early, -1), false);
+  assert.ok(frozenAt(f.ctx, f.state, r1, 2 * early, -1) > frozenAt(f.ctx, f.state, r1, early, -1));
+  const late = residence;
+  assert.equal(frozenFixedFrom(f.ctx, f.state, r1, late, -1), true);
+  const layer = frozenAt(f.ctx, f.state, r1, late, -1);
+  assert.ok(layer > 0);
+  for (const t of [1.5 * late, 4 * late, 40 * late]) {
+    assert.equal(frozenAt(f.ctx, f.state, r1, t, -1), layer, `t = ${t} s`);
+  }
+  // A filling side: never, not even isothermal (its law moves with its volume).
+  const g2 = f.network.elements[f.element("G2")];
+  f.state.sideStart[2 * g2.index] = 0;
+  assert.equal(frozenFixedFrom(f.ctx, f.state, g2, late, 0), false);
+  const iso = fixture(unequalBranches("isothermal"));
+  const g2i = iso.network.elements[iso.element("G2")];
+  assert.equal(frozenFixedFrom(iso.ctx, iso.state, g2i, 1, 0), false);
+  assert.equal(frozenFixedFrom(iso.ctx, iso.state, g2i, 1, -1), true);
 });
