@@ -409,7 +409,7 @@ function topologyOf(
 ): Topology {
   const key = structureKey(nodeCount, from, to, fixed);
   const known = topologyCache.get(key);
-  if (known && known.nodeCount === nodeCount && sameStructure(known, from, to, fixed)) {
+  if (known && sameStructure(known, from, to, fixed)) {
     topologyCache.delete(key);
     topologyCache.set(key, known);
     return known;

@@ -84,16 +84,17 @@ export function frozenLayerThinnerThan(
   const root = Math.sqrt(options.diffusivity * contactTime);
   const remembered = knownErfInv(theta);
   if (!Number.isNaN(remembered)) return 2 * remembered * root < thickness;
-  return theta < (bound ? bound.value(contactTime, thickness) : thinnerBound(root, thickness));
+  return theta < (bound ? bound.value(root, thickness) : thinnerBound(root, thickness));
 }
 
 /**
  * The bound θ is compared with in {@link frozenLayerThinnerThan}, erf(z)·(1 − 1e-9) with
- * z = s/(2√(α·t))·(1 − 1e-9): it does not depend on the melt, so a caller that asks again
- * at the same contact time and thickness with another melt temperature may keep it.
+ * z = s/(2√(α·t))·(1 − 1e-9), asked with root = √(α·t) (m) and the thickness s (m): it does not
+ * depend on the melt, so a caller that asks again at the same root and thickness with another
+ * melt temperature may keep it.
  */
 export interface ThinnerBound {
-  value(contactTime: number, thickness: number): number;
+  value(root: number, thickness: number): number;
 }
 
 /** erf(z)·(1 − 1e-9), z = thickness/(2·root)·(1 − 1e-9), root = √(α·t). */
@@ -102,16 +103,16 @@ function thinnerBound(root: number, thickness: number): number {
   return erf(z) * (1 - 1e-9);
 }
 
-/** A {@link ThinnerBound} for diffusivity α (m²/s) that remembers its last answer. */
-export function rememberedThinnerBound(diffusivity: number): ThinnerBound {
-  let lastTime = NaN;
+/** A {@link ThinnerBound} that remembers its last answer. */
+export function rememberedThinnerBound(): ThinnerBound {
+  let lastRoot = NaN;
   let lastThickness = NaN;
   let last = NaN;
   return {
-    value(contactTime: number, thickness: number): number {
-      if (contactTime !== lastTime || thickness !== lastThickness) {
-        last = thinnerBound(Math.sqrt(diffusivity * contactTime), thickness);
-        lastTime = contactTime;
+    value(root: number, thickness: number): number {
+      if (root !== lastRoot || thickness !== lastThickness) {
+        last = thinnerBound(root, thickness);
+        lastRoot = root;
         lastThickness = thickness;
       }
       return last;

@@ -290,9 +290,9 @@ Deno.test("frozenLayerThinnerThan with a remembered bound answers as without, fo
   // one contact time and thickness, it must give the answers a fresh computation gives, and a
   // new time or thickness must not be answered from the old one. Melt temperatures no other
   // test uses, so erf⁻¹ of their θ is not remembered (the bound is what decides).
-  const bound = rememberedThinnerBound(layer.diffusivity);
+  const bound = rememberedThinnerBound();
   let asked = 0;
-  const counting = { value: (t: number, s: number) => (asked++, bound.value(t, s)) };
+  const counting = { value: (root: number, s: number) => (asked++, bound.value(root, s)) };
   for (const t of [2e-3, 0.7]) {
     for (const thickness of [1e-5, 1e-4, 4e-4]) {
       for (const melt of [437.3, 452.9, 488.1, 523.7, 563.3]) {

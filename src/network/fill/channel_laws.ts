@@ -68,17 +68,31 @@ export function frozenFixedFrom(
 ): boolean {
   if (side !== -1) return false;
   if (ctx.process.isothermal || e.heated) return true;
+  const contact = contactTime(state, e, t, side);
+  return Number.isNaN(contact) || contact >= residenceTime(state, e) / 2;
+}
+
+/**
+ * The wall's mean contact time of element `e` at `t`, s: since the melt first reached it, or,
+ * for a full element (side −1), the mean over its length (from first wetting and from full).
+ * NaN when neither side has started filling.
+ */
+function contactTime(state: FillState, e: NetworkElement, t: number, side: -1 | 0 | 1): number {
   const start0 = state.sideStart[2 * e.index];
   const start1 = state.sideStart[2 * e.index + 1];
-  if (Number.isNaN(start0) && Number.isNaN(start1)) return true;
+  if (Number.isNaN(start0) && Number.isNaN(start1)) return NaN;
   const start = Number.isNaN(start0)
     ? start1
     : Number.isNaN(start1)
     ? start0
     : Math.min(start0, start1);
-  const contact = t - (start + state.fullTime[e.index]) / 2;
+  return side === -1 ? t - (start + state.fullTime[e.index]) / 2 : (t - start) / 2;
+}
+
+/** The melt's residence time in element `e` at its last flow, s (Infinity without flow). */
+function residenceTime(state: FillState, e: NetworkElement): number {
   const flow = state.lastFlow[e.index];
-  return flow > 0 && contact >= filledVolume(state, e.index) / flow / 2;
+  return flow > 0 ? filledVolume(state, e.index) / flow : Infinity;
 }
 
 /**
@@ -97,18 +111,9 @@ export function frozenAt(
   side: -1 | 0 | 1,
 ): number {
   if (ctx.process.isothermal || e.heated) return 0;
-  const start0 = state.sideStart[2 * e.index];
-  const start1 = state.sideStart[2 * e.index + 1];
-  if (Number.isNaN(start0) && Number.isNaN(start1)) return 0;
-  const start = Number.isNaN(start0)
-    ? start1
-    : Number.isNaN(start1)
-    ? start0
-    : Math.min(start0, start1);
-  const contact = side === -1 ? t - (start + state.fullTime[e.index]) / 2 : (t - start) / 2;
-  const flow = state.lastFlow[e.index];
-  const residence = flow > 0 ? filledVolume(state, e.index) / flow : Infinity;
-  const tc = Math.max(0, Math.min(contact, residence / 2));
+  const contact = contactTime(state, e, t, side);
+  if (Number.isNaN(contact)) return 0;
+  const tc = Math.max(0, Math.min(contact, residenceTime(state, e) / 2));
   if (tc === 0) return 0;
   const memo = frozenMemoOf(ctx, state);
   const i = e.index;
@@ -160,7 +165,7 @@ function frozenMemoOf(ctx: FillContext, state: FillState): FrozenMemo {
     temperature: new Float64Array(E).fill(NaN),
     held: new Float64Array(E).fill(NaN),
     layer: new Float64Array(E),
-    bounds: ctx.elements.map(() => rememberedThinnerBound(ctx.melt.diffusivity)),
+    bounds: ctx.elements.map(() => rememberedThinnerBound()),
   };
   frozenMemos.set(state, memo);
   lastMemo = { state, memo };

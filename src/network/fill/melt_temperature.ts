@@ -23,10 +23,11 @@ export function updateMeltTemperature(ctx: FillContext, state: FillState, s: Sol
   }
   if (process.isothermal) return;
   const K = s.assembly.branches.length;
+  // An assembly has at most two branches per element (its two filling sides).
   const { nodeTemperature, heat, flow, start, cursor, upstream, byUpstream } = scratchOf(
     state,
     nodeCount,
-    K,
+    Math.max(K, 2 * elements.length),
   );
   nodeTemperature.fill(NaN);
   nodeTemperature[network.inlet] = process.feedTemperature;
@@ -81,6 +82,7 @@ interface Scratch {
 
 const scratches = new WeakMap<FillState, Scratch>();
 
+/** The scratch of `state`, for `nodeCount` nodes and up to `branches` branches. */
 function scratchOf(state: FillState, nodeCount: number, branches: number): Scratch {
   let known = scratches.get(state);
   if (!known || known.heat.length !== nodeCount || known.upstream.length < branches) {
@@ -90,8 +92,8 @@ function scratchOf(state: FillState, nodeCount: number, branches: number): Scrat
       flow: new Float64Array(nodeCount),
       start: new Int32Array(nodeCount + 1),
       cursor: new Int32Array(nodeCount),
-      upstream: new Int32Array(Math.max(branches, 2 * state.fullTime.length)),
-      byUpstream: new Int32Array(Math.max(branches, 2 * state.fullTime.length)),
+      upstream: new Int32Array(branches),
+      byUpstream: new Int32Array(branches),
     };
     scratches.set(state, known);
   }
